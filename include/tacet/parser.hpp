@@ -1,0 +1,22 @@
+#pragma once
+// parse: netlist text -> syntax tree. The only door into the Spirit X3 parser.
+
+#include <optional>
+#include <string_view>
+
+#include "tacet/ast.hpp"
+#include "tacet/diagnostics.hpp"
+
+namespace tacet {
+
+/// Parses one file's text. `file_id` is the SourceManager id of that text and is
+/// used for the diagnostics. On a syntax error, reports it (position, source line,
+/// caret, hint) to `diagnostics` and returns nullopt. Node offsets are relative to
+/// the start of `text`.
+std::optional<ast::Netlist> parse_netlist(std::string_view text, int file_id,
+                                          Diagnostics& diagnostics);
+
+/// The statement keywords of the language, for "did you mean" hints.
+const std::vector<std::string>& statement_keywords();
+
+}  // namespace tacet
