@@ -20,3 +20,12 @@ std::optional<ast::Netlist> parse_netlist(std::string_view text, int file_id,
 const std::vector<std::string>& statement_keywords();
 
 }  // namespace tacet
+
+namespace tacet {
+
+/// Parses a lone expression (a --set value on the command line); the whole text
+/// must be one expression. Reports errors to `diagnostics` like parse_netlist.
+std::optional<ast::Expr> parse_expression(std::string_view text, int file_id,
+                                          Diagnostics& diagnostics);
+
+}  // namespace tacet

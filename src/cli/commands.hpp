@@ -1,0 +1,12 @@
+#pragma once
+// One file per subcommand: each setup_X registers its flags into an options
+// struct of its own and a callback that runs the pipeline as far as it needs.
+
+#include <CLI/CLI.hpp>
+
+namespace tacet::cli {
+
+void setup_ac(CLI::App& app);
+void setup_show(CLI::App& app);
+
+}  // namespace tacet::cli

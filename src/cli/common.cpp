@@ -1,0 +1,81 @@
+#include "common.hpp"
+
+#include <charconv>
+#include <cmath>
+#include <iostream>
+
+#include <fmt/format.h>
+
+#include "tacet/elaborate.hpp"
+#include "tacet/errors.hpp"
+
+namespace tacet::cli {
+
+void add_common_options(CLI::App& command, CommonOptions& options) {
+  command.add_option("file", options.file, "The netlist (.tacet)")->required();
+  command.add_option("--format", options.format, "Output format: table, csv or json")
+      ->capture_default_str();
+  command.add_option("--output", options.output,
+                     "Write to this file (atomically) instead of stdout");
+  command.add_option("--set", options.set,
+                     "Override a param, an element value (R1=12k, F1.R1=12k) or a model "
+                     "parameter (quiet_bipolar.en=2n); repeatable");
+  command.add_option("--ambient", options.ambient, "Ambient temperature (25C, 300K)");
+}
+
+double parse_quantity(const std::string& option, const std::string& text, Dimension dimension) {
+  auto fail = [&](const std::string& hint) {
+    throw InputError(fmt::format("error: {} '{}' is not {}\n{}", option, text, describe(dimension),
+                                 hint.empty() ? "" : "hint: " + hint + "\n"));
+  };
+  double number = 0;
+  const char* begin = text.data();
+  const char* end = begin + text.size();
+  auto [ptr, ec] = std::from_chars(begin, end, number);
+  if (ec != std::errc{} || !std::isfinite(number)) fail("write a number such as 1k or 20kHz");
+  std::string suffix(ptr, end);
+  auto unit = decode_suffix(suffix);
+  if (!unit) fail(suffix_hint(suffix, dimension));
+  if (!unit_fits(unit->dimension, dimension)) fail(suffix_hint(suffix, dimension));
+  return apply_unit(number, *unit, dimension);
+}
+
+std::vector<double> parse_quantity_list(const std::string& option, const std::string& text,
+                                        Dimension dimension) {
+  std::vector<double> out;
+  std::size_t start = 0;
+  while (start <= text.size()) {
+    std::size_t comma = text.find(',', start);
+    if (comma == std::string::npos) comma = text.size();
+    out.push_back(parse_quantity(option, text.substr(start, comma - start), dimension));
+    start = comma + 1;
+  }
+  return out;
+}
+
+OutputFormat output_format(const CommonOptions& options) {
+  auto format = parse_output_format(options.format);
+  if (!format)
+    throw InputError(fmt::format("error: --format '{}' is not one of table, csv, json\n", options.format));
+  return *format;
+}
+
+Circuit load(const CommonOptions& options, ReportContext& context) {
+  ElaborateOptions elaborate;
+  for (const auto& assignment : options.set) {
+    auto eq = assignment.find('=');
+    if (eq == std::string::npos || eq == 0 || eq + 1 == assignment.size())
+      throw InputError(fmt::format("error: --set '{}' is not NAME=VALUE\nhint: write --set R1=12k\n", assignment));
+    elaborate.overrides.push_back({assignment.substr(0, eq), assignment.substr(eq + 1)});
+  }
+  if (!options.ambient.empty())
+    elaborate.ambient_celsius = parse_quantity("--ambient", options.ambient, Dimension::temperature);
+  std::string warnings;
+  Circuit circuit = load_circuit(options.file, elaborate, &warnings);
+  std::cerr << warnings;
+  context.file = options.file;
+  context.title = circuit.title;
+  return circuit;
+}
+
+}  // namespace tacet::cli

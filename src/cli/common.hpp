@@ -1,0 +1,40 @@
+#pragma once
+// Flags every analysis shares (--format --output --set --ambient) and the
+// first stages of the pipeline that every subcommand runs alike.
+
+#include <string>
+#include <vector>
+
+#include <CLI/CLI.hpp>
+
+#include "tacet/circuit.hpp"
+#include "tacet/output.hpp"
+#include "tacet/units.hpp"
+
+namespace tacet::cli {
+
+struct CommonOptions {
+  std::string file;                 ///< the netlist
+  std::string format = "table";     ///< table | csv | json
+  std::string output;               ///< empty: stdout
+  std::vector<std::string> set;     ///< NAME=VALUE overrides
+  std::string ambient;              ///< temperature, e.g. 40C; empty: the netlist's
+};
+
+void add_common_options(CLI::App& command, CommonOptions& options);
+
+/// Parses and elaborates the netlist with the overrides; throws InputError.
+/// Warnings go to stderr. Fills `context` for the report header.
+Circuit load(const CommonOptions& options, ReportContext& context);
+
+OutputFormat output_format(const CommonOptions& options);
+
+/// A number from the command line with an optional SI prefix and unit that
+/// must fit `dimension` ("1k", "20kHz"); throws InputError naming `option`.
+double parse_quantity(const std::string& option, const std::string& text, Dimension dimension);
+
+/// "100,1k,10k" -> numbers, each through parse_quantity.
+std::vector<double> parse_quantity_list(const std::string& option, const std::string& text,
+                                        Dimension dimension);
+
+}  // namespace tacet::cli

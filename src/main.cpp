@@ -1,0 +1,30 @@
+// tacet: registers the subcommands, parses the command line, and maps every
+// failure to its exit status in one place.
+
+#include <iostream>
+
+#include <CLI/CLI.hpp>
+
+#include "cli/commands.hpp"
+#include "tacet/errors.hpp"
+
+int main(int argc, char** argv) {
+  CLI::App app{"tacet: small-signal solver for precision op-amp stages"};
+  app.set_version_flag("--version", std::string("tacet ") + TACET_VERSION);
+  app.require_subcommand(1);
+  tacet::cli::setup_ac(app);
+  tacet::cli::setup_show(app);
+  try {
+    app.parse(argc, argv);
+  } catch (const CLI::ParseError& e) {
+    const int code = app.exit(e);
+    return code == 0 ? 0 : static_cast<int>(tacet::ExitStatus::bad_input);
+  } catch (const tacet::Error& e) {
+    std::cerr << e.what();
+    return static_cast<int>(e.status());
+  } catch (const std::exception& e) {
+    std::cerr << "internal error: " << e.what() << "\n";
+    return 70;
+  }
+  return 0;
+}
