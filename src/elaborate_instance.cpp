@@ -141,7 +141,7 @@ std::optional<double> Elaborator::value_of(const ast::Expr& expr, int file, cons
 
 std::optional<Rails> Elaborator::rails_of(const ast::Expr& expr, int file, const Scope& scope) {
   // rails=+15/-15 reads as high/low, not as a division.
-  const auto* chain = boost::get<ast::x3::forward_ast<ast::Chain>>(&expr);
+  const auto* chain = boost::get<ast::x3::forward_ast<ast::Chain>>(&unwrap(expr));
   if (!chain || chain->get().rest.size() != 1 || chain->get().rest[0].op != '/') {
     error(file, extent(expr), "rails= takes the high and the low rail", "write rails=+15/-15");
     return std::nullopt;
@@ -187,7 +187,7 @@ void Elaborator::build_element(const ast::Instance& instance, int file,
     }
   }
   if (kind == ElementKind::opamp && instance.value) {
-    const auto* id = boost::get<ast::Identifier>(&*instance.value);
+    const auto* id = boost::get<ast::Identifier>(&unwrap(*instance.value));
     auto it = id ? model_index_.find(id->text) : model_index_.end();
     if (!id) {
       error(file, extent(*instance.value), "expected an op-amp model name");
@@ -298,7 +298,7 @@ void Elaborator::build_element(const ast::Instance& instance, int file,
 void Elaborator::expand_block(const ast::Instance& use, int file, const InstanceContext& context) {
   const std::string full = context.prefix + use.name.text;
   if (!check_unique(element_names_, "instance", use.name, file, full)) return;
-  const auto* id = use.value ? boost::get<ast::Identifier>(&*use.value) : nullptr;
+  const auto* id = use.value ? boost::get<ast::Identifier>(&unwrap(*use.value)) : nullptr;
   auto it = id ? blocks_.find(id->text) : blocks_.end();
   if (it == blocks_.end()) {
     std::vector<std::string> names;

@@ -21,6 +21,15 @@ std::vector<std::string> Scope::names() const {
   return out;
 }
 
+const ast::Expr& unwrap(const ast::Expr& expr) {
+  const ast::Expr* e = &expr;
+  while (const auto* chain = boost::get<ast::x3::forward_ast<ast::Chain>>(e)) {
+    if (!chain->get().rest.empty()) break;
+    e = &chain->get().first;
+  }
+  return *e;
+}
+
 ast::Located extent(const ast::Expr& expr) {
   return boost::apply_visitor(
       [](const auto& node) -> ast::Located {

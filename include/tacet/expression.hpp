@@ -36,6 +36,9 @@ struct Scope {
 std::optional<double> evaluate(const ast::Expr& expr, int file_id, const Scope& scope,
                                Dimension expected, Diagnostics& diagnostics);
 
+/// `expr` without the single-term chains a parser wraps around every operand.
+const ast::Expr& unwrap(const ast::Expr& expr);
+
 /// The offset and length of the whole expression's text.
 ast::Located extent(const ast::Expr& expr);
 

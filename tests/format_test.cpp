@@ -1,0 +1,36 @@
+#include <catch2/catch.hpp>
+
+#include <cmath>
+#include <complex>
+
+#include "tacet/format.hpp"
+
+using namespace tacet;
+
+TEST_CASE("SI formatting picks the prefix and drops trailing zeros", "[format]") {
+  CHECK(format_si(22000) == "22k");
+  CHECK(format_si(4.7e-9) == "4.7n");
+  CHECK(format_si(1.5e6) == "1.5M");
+  CHECK(format_si(0) == "0");
+  CHECK(format_si(-0.001) == "-1m");
+  CHECK(format_si(999.96, 4) == "1k");
+  CHECK(format_si(1) == "1");
+}
+
+TEST_CASE("fixed SI formatting keeps digits for aligned columns", "[format]") {
+  CHECK(format_si_fixed(1000) == "1.000k");
+  CHECK(format_si_fixed(20000) == "20.00k");
+  CHECK(format_si_fixed(158.489) == "158.5");
+}
+
+TEST_CASE("exact formatting reads back to the same double", "[format]") {
+  const double v = 0.1 + 0.2;
+  CHECK(std::stod(format_exact(v)) == v);
+}
+
+TEST_CASE("dB and degrees of a phasor", "[format]") {
+  CHECK(to_db({0.1, 0}) == Approx(-20));
+  CHECK(to_degrees({0, 1}) == Approx(90));
+  CHECK(to_degrees({-1, 0}) == Approx(180));
+  CHECK(std::isinf(to_db({0, 0})));
+}
