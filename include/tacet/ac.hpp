@@ -8,6 +8,7 @@
 
 #include "tacet/circuit.hpp"
 #include "tacet/probe.hpp"
+#include "tacet/sparse_solver.hpp"
 
 namespace tacet {
 
@@ -32,6 +33,7 @@ struct Sweep {
 struct AcOptions {
   Sweep sweep;
   std::vector<std::string> probes;  ///< probe texts, resolved by run_ac
+  SolverKind solver = SolverKind::klu;  ///< sparse LU backend (Eigen: for comparison)
 };
 
 struct AcTrace {

@@ -1,7 +1,13 @@
 #pragma once
 // What a user asks to see: a node voltage (`out`), a node pair (`out,ref`),
 // or the current through an element (`i(R1)`, flowing from its first
-// connection through it to its second).
+// connection through it to its second; for an op amp, `i(U1)` is the current
+// its output delivers into the output pin).
+//
+// Every probe is a linear functional of the MNA unknowns x plus a constant:
+//   value = constant + sum_k coefficient_k x_k
+// (a current source's probe is just its phasor). The noise analysis uses the
+// coefficients as the right-hand side of its adjoint (transposed) solve.
 
 #include <complex>
 #include <cstddef>
@@ -9,6 +15,7 @@
 #include <vector>
 
 #include "tacet/circuit.hpp"
+#include "tacet/mna.hpp"
 
 namespace tacet {
 
@@ -28,5 +35,22 @@ Probe resolve_probe(const std::string& text, const Circuit& circuit);
 
 /// The unit a probe's values carry: "V" or "A".
 const char* probe_unit(const Probe& probe);
+
+/// One term of a probe's functional: coefficient times unknown `unknown`.
+struct ProbeTerm {
+  int unknown;
+  std::complex<double> coefficient;
+};
+
+/// Fills `terms` (cleared first; its capacity is reused, so a caller that
+/// keeps the vector allocates nothing per point) with the probe's functional
+/// at the Laplace variable s, and returns the constant part.
+std::complex<double> probe_functional(const Probe& probe, const MnaSystem& mna,
+                                      std::complex<double> s, std::vector<ProbeTerm>& terms);
+
+/// The probe's value for the solution x (mna.size() values) at s; `scratch`
+/// is reused working space.
+std::complex<double> probe_value(const Probe& probe, const MnaSystem& mna, std::complex<double> s,
+                                 const std::complex<double>* x, std::vector<ProbeTerm>& scratch);
 
 }  // namespace tacet

@@ -1,0 +1,55 @@
+#pragma once
+// LU factorisation of a complex sparse matrix whose pattern is fixed for a
+// whole analysis (the MNA matrix of one circuit) while its values change at
+// every frequency.
+//
+// Usage: analyse(pattern) once, then per point factor(values) and solve(rhs).
+// `values` follow the pattern's compressed-sparse-column (CSC) order: entry k
+// sits at row row_index[k] of the column c with col_ptr[c] <= k < col_ptr[c+1],
+// row indices sorted within each column. Both solves overwrite the right-hand
+// side with the solution, so no buffer is allocated per point.
+//
+// solve_transposed solves A^T x = b (the plain transpose, not the conjugate
+// one): the adjoint noise analysis needs exactly that.
+
+#include <complex>
+#include <memory>
+#include <string>
+#include <vector>
+
+namespace tacet {
+
+/// The structure of a square n x n sparse matrix in CSC form.
+struct CscPattern {
+  int n = 0;
+  std::vector<int> col_ptr;    ///< n + 1 entries
+  std::vector<int> row_index;  ///< col_ptr[n] entries, sorted within each column
+  int nonzeros() const { return col_ptr.empty() ? 0 : col_ptr.back(); }
+};
+
+enum class FactorStatus { ok, singular };
+
+class SparseLu {
+ public:
+  virtual ~SparseLu() = default;
+  /// Symbolic analysis (ordering); the pattern must outlive the solver.
+  virtual void analyse(const CscPattern& pattern) = 0;
+  /// Numeric factorisation of the values in pattern order.
+  virtual FactorStatus factor(const std::complex<double>* values) = 0;
+  /// After FactorStatus::singular: the column (unknown) of the original matrix
+  /// found without a usable pivot, or -1 when the backend cannot tell.
+  virtual int singular_column() const = 0;
+  /// rhs_in_out: n values, b on entry, x with A x = b on return.
+  virtual void solve(std::complex<double>* rhs_in_out) = 0;
+  /// rhs_in_out: n values, b on entry, x with A^T x = b on return.
+  virtual void solve_transposed(std::complex<double>* rhs_in_out) = 0;
+  /// How many full (pivoting) factorisations were done, for tests and the benchmark.
+  virtual int full_factorizations() const = 0;
+};
+
+enum class SolverKind { klu, eigen };
+const char* to_string(SolverKind kind);
+
+std::unique_ptr<SparseLu> make_sparse_lu(SolverKind kind = SolverKind::klu);
+
+}  // namespace tacet

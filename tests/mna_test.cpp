@@ -1,0 +1,250 @@
+// The MNA system: numbering, the stamp of each element, the fixed pattern and
+// the structural checks that run before any solve.
+
+#include <catch2/catch.hpp>
+
+#include "is_close.hpp"
+#include "reference_circuits.hpp"
+#include "tacet/errors.hpp"
+#include "tacet/mna.hpp"
+
+using namespace tacet;
+using namespace tacet::testing;
+
+namespace {
+
+// The assembled matrix entry (row, col) at s; 0 when outside the pattern.
+cplx entry(const MnaSystem& mna, cplx s, int row, int col) {
+  std::vector<cplx> values(static_cast<std::size_t>(mna.pattern().nonzeros()));
+  mna.assemble(s, values.data());
+  const int k = mna.slot(row, col);
+  return k < 0 ? cplx{} : values[static_cast<std::size_t>(k)];
+}
+
+int count_entries(const MnaSystem& mna) { return mna.pattern().nonzeros(); }
+
+const cplx kS{0, 2 * kPi * 1e3};
+
+}  // namespace
+
+TEST_CASE("unknowns are node voltages, then internal nodes, then branch currents", "[mna]") {
+  CircuitBuilder b;
+  b.vsrc("V1", "in", "gnd", 1);
+  OpAmpModel model = single_pole(1e6, 1e5);
+  model.rout = 50;
+  b.opamp("U1", "in", "out", "out", model);
+  b.add(ElementKind::inductor, "L1", {"out", "gnd"}, 1e-3);
+  const MnaSystem mna(b.circuit);
+  REQUIRE(mna.size() == 6);
+  CHECK(mna.unknown_name(0) == "node in");
+  CHECK(mna.unknown_name(1) == "node out");
+  CHECK(mna.unknown_name(2) == "internal node of U1");
+  CHECK(mna.unknown_name(3) == "current in V1");
+  CHECK(mna.unknown_name(4) == "current in U1");
+  CHECK(mna.unknown_name(5) == "current in L1");
+  CHECK(mna.node_unknown(0) == -1);
+  CHECK(mna.branch_unknown(0) == 3);
+  CHECK(mna.branch_unknown(1) == 4);
+  CHECK(mna.opamp_gain_row(1) == 4);
+  CHECK(mna.opamp_gain_row(0) == -1);
+}
+
+TEST_CASE("a resistor stamps 1/R between its nodes and nothing to gnd", "[mna]") {
+  CircuitBuilder b;
+  b.vsrc("V1", "a", "gnd", 1);
+  b.add(ElementKind::resistor, "R1", {"a", "b"}, 2e3);
+  b.add(ElementKind::resistor, "R2", {"b", "gnd"}, 4e3);
+  const MnaSystem mna(b.circuit);
+  CHECK_THAT(entry(mna, kS, 0, 0), IsClose(0.5e-3, 1e-15));
+  CHECK_THAT(entry(mna, kS, 0, 1), IsClose(-0.5e-3, 1e-15));
+  CHECK_THAT(entry(mna, kS, 1, 0), IsClose(-0.5e-3, 1e-15));
+  CHECK_THAT(entry(mna, kS, 1, 1), IsClose(0.75e-3, 1e-15));  // both resistors summed in one slot
+  CHECK(count_entries(mna) == 4 + 2);                          // plus V1's two incidence entries
+}
+
+TEST_CASE("a capacitor stamps sC and an inductor a branch with -sL", "[mna]") {
+  CircuitBuilder b;
+  b.vsrc("V1", "a", "gnd", 1);
+  b.add(ElementKind::capacitor, "C1", {"a", "b"}, 1e-9);
+  b.add(ElementKind::inductor, "L1", {"b", "gnd"}, 1e-3);
+  const MnaSystem mna(b.circuit);
+  const int l = mna.branch_unknown(2);
+  CHECK_THAT(entry(mna, kS, 0, 1), IsClose(-kS * 1e-9, 1e-15));
+  CHECK_THAT(entry(mna, kS, 1, 1), IsClose(kS * 1e-9, 1e-15));
+  CHECK_THAT(entry(mna, kS, 1, l), IsClose(1.0, 1e-15));
+  CHECK_THAT(entry(mna, kS, l, 1), IsClose(1.0, 1e-15));
+  CHECK_THAT(entry(mna, kS, l, l), IsClose(-kS * 1e-3, 1e-15));
+}
+
+TEST_CASE("a vcvs stamps its incidence and -gain on its controlling nodes", "[mna]") {
+  CircuitBuilder b;
+  b.vsrc("V1", "p", "n", 1);
+  b.add(ElementKind::resistor, "R1", {"n", "gnd"}, 1e3);
+  b.add(ElementKind::vcvs, "E1", {"o", "gnd", "p", "n"}, 7.0);
+  b.add(ElementKind::resistor, "R2", {"o", "gnd"}, 1e3);
+  const MnaSystem mna(b.circuit);
+  const int e = mna.branch_unknown(2);
+  const int p = mna.node_unknown(1), n = mna.node_unknown(2), o = mna.node_unknown(3);
+  CHECK_THAT(entry(mna, kS, o, e), IsClose(1.0, 1e-15));
+  CHECK_THAT(entry(mna, kS, e, o), IsClose(1.0, 1e-15));
+  CHECK_THAT(entry(mna, kS, e, p), IsClose(-7.0, 1e-15));
+  CHECK_THAT(entry(mna, kS, e, n), IsClose(7.0, 1e-15));
+}
+
+TEST_CASE("a vccs stamps +-gm from its controlling nodes into its output rows", "[mna]") {
+  CircuitBuilder b;
+  b.vsrc("V1", "p", "gnd", 1);
+  b.add(ElementKind::vccs, "G1", {"o", "gnd", "p", "gnd"}, 2e-3);
+  b.add(ElementKind::resistor, "R1", {"o", "gnd"}, 1e3);
+  const MnaSystem mna(b.circuit);
+  CHECK_THAT(entry(mna, kS, mna.node_unknown(2), mna.node_unknown(1)), IsClose(2e-3, 1e-15));
+  CHECK(mna.slot(mna.node_unknown(1), mna.node_unknown(2)) == -1);
+}
+
+TEST_CASE("an op amp's gain row is v_out/A(s) - (v+ - v-) with both poles", "[mna]") {
+  CircuitBuilder b;
+  b.vsrc("V1", "p", "gnd", 1);
+  OpAmpModel model = single_pole(10e6, 1e5);
+  model.fp2 = 40e6;
+  b.opamp("U1", "p", "m", "o", model);
+  b.add(ElementKind::resistor, "R1", {"o", "m"}, 1e3);
+  b.add(ElementKind::resistor, "R2", {"m", "gnd"}, 1e3);
+  const MnaSystem mna(b.circuit);
+  const int row = mna.opamp_gain_row(1);
+  const int p = mna.node_unknown(1), m = mna.node_unknown(2), o = mna.node_unknown(3);
+  const double wp = 2 * kPi * 10e6 / 1e5, wp2 = 2 * kPi * 40e6;
+  const cplx s{0, 2 * kPi * 3e6};
+  CHECK_THAT(entry(mna, s, row, o), IsClose((1.0 + s / wp) * (1.0 + s / wp2) / 1e5, 1e-14));
+  CHECK_THAT(entry(mna, s, row, p), IsClose(-1.0, 1e-15));
+  CHECK_THAT(entry(mna, s, row, m), IsClose(1.0, 1e-15));
+  CHECK_THAT(entry(mna, s, o, row), IsClose(1.0, 1e-15));
+}
+
+TEST_CASE("an op amp with rout drives its pin from an internal node, rin across its inputs", "[mna]") {
+  CircuitBuilder b;
+  b.vsrc("V1", "p", "gnd", 1);
+  OpAmpModel model = single_pole(1e6, 1e5);
+  model.rout = 50;
+  model.rin = 1e6;
+  b.opamp("U1", "p", "o", "o", model);
+  const MnaSystem mna(b.circuit);
+  const int p = mna.node_unknown(1), o = mna.node_unknown(2), x = 2;
+  REQUIRE(mna.unknown_name(x) == "internal node of U1");
+  const int row = mna.opamp_gain_row(1);
+  CHECK_THAT(entry(mna, kS, x, row), IsClose(1.0, 1e-15));
+  CHECK(mna.slot(o, row) == -1);
+  CHECK_THAT(entry(mna, kS, x, o), IsClose(-1.0 / 50, 1e-15));
+  CHECK_THAT(entry(mna, kS, o, o), IsClose(1.0 / 50 + 1e-6, 1e-15));
+  CHECK_THAT(entry(mna, kS, p, o), IsClose(-1e-6, 1e-15));
+  CHECK(mna.slot(row, x) >= 0);
+}
+
+TEST_CASE("the excitation holds vsrc phasors on branch rows and isrc currents on node rows", "[mna]") {
+  CircuitBuilder b;
+  b.vsrc("V1", "a", "gnd", 2.0).ac_phase = 90;
+  b.add(ElementKind::resistor, "R1", {"a", "b"}, 1e3);
+  b.isrc("I1", "b", "c", 1e-3);
+  b.add(ElementKind::resistor, "R2", {"c", "gnd"}, 1e3);
+  const MnaSystem mna(b.circuit);
+  std::vector<cplx> rhs(static_cast<std::size_t>(mna.size()), 99.0);
+  mna.excitation(rhs.data());
+  CHECK_THAT(rhs[static_cast<std::size_t>(mna.branch_unknown(0))], IsClose(cplx(0, 2), 1e-15));
+  CHECK(rhs[static_cast<std::size_t>(mna.node_unknown(2))] == cplx(-1e-3));
+  CHECK(rhs[static_cast<std::size_t>(mna.node_unknown(3))] == cplx(1e-3));
+  CHECK(rhs[0] == cplx(0));
+}
+
+TEST_CASE("the pattern is fixed at construction and assemble only rewrites values", "[mna]") {
+  const MnaSystem mna(twin_t_notch(10e3, 10e-9));
+  const CscPattern before = mna.pattern();
+  std::vector<cplx> low(static_cast<std::size_t>(before.nonzeros()));
+  std::vector<cplx> high(low.size());
+  mna.assemble({0, 1.0}, low.data());
+  mna.assemble({0, 1e9}, high.data());
+  CHECK(mna.pattern().col_ptr == before.col_ptr);
+  CHECK(mna.pattern().row_index == before.row_index);
+  CHECK(low != high);
+  for (int c = 0; c < before.n; ++c)  // rows sorted within each column, as KLU expects
+    for (int k = before.col_ptr[c] + 1; k < before.col_ptr[c + 1]; ++k)
+      CHECK(before.row_index[k - 1] < before.row_index[k]);
+}
+
+TEST_CASE("a node reached only through op-amp inputs is reported as floating", "[mna]") {
+  CircuitBuilder b;
+  b.vsrc("V1", "in", "gnd", 1);
+  b.opamp("U1", "x", "out", "out", single_pole(1e6, 1e5));
+  b.add(ElementKind::resistor, "R1", {"in", "out"}, 1e3);
+  CHECK_THROWS_MATCHES(MnaSystem(b.circuit), SolveError,
+                       Catch::Message("circuit cannot be solved: node 'x' has no connection to gnd "
+                                      "(only through op-amp inputs or current sources)"));
+}
+
+TEST_CASE("an island of several nodes fed by a current source names them all", "[mna]") {
+  CircuitBuilder b;
+  b.isrc("I1", "gnd", "p", 1e-3);
+  b.add(ElementKind::resistor, "R1", {"p", "q"}, 1e3);
+  b.add(ElementKind::capacitor, "C1", {"q", "p"}, 1e-9);
+  CHECK_THROWS_MATCHES(MnaSystem(b.circuit), SolveError,
+                       Catch::Message("circuit cannot be solved: nodes 'p', 'q' have no connection "
+                                      "to gnd (only through op-amp inputs or current sources)"));
+}
+
+TEST_CASE("at DC a node reached only through a capacitor has no path to gnd", "[mna]") {
+  CircuitBuilder b;
+  b.vsrc("V1", "in", "gnd", 1);
+  b.add(ElementKind::capacitor, "C1", {"in", "x"}, 1e-9);
+  b.add(ElementKind::capacitor, "C2", {"x", "gnd"}, 1e-9);
+  CHECK_NOTHROW(check_solvable(b.circuit, AnalysisKind::ac));
+  CHECK_THROWS_MATCHES(check_solvable(b.circuit, AnalysisKind::dc), SolveError,
+                       Catch::Message("circuit cannot be solved at DC: node 'x' has no DC path to "
+                                      "gnd (only through capacitors, op-amp inputs or current "
+                                      "sources)"));
+}
+
+TEST_CASE("two voltage sources across the same node pair are named", "[mna]") {
+  CircuitBuilder b;
+  b.vsrc("V1", "a", "gnd", 1);
+  b.vsrc("V2", "gnd", "a", 1);
+  CHECK_THROWS_MATCHES(MnaSystem(b.circuit), SolveError,
+                       Catch::Message("circuit cannot be solved: 'V1' and 'V2' both set the voltage "
+                                      "between nodes 'gnd' and 'a'"));
+}
+
+TEST_CASE("a loop of voltage-defining elements names every element on it", "[mna]") {
+  CircuitBuilder b;
+  b.vsrc("V1", "a", "gnd", 1);
+  b.add(ElementKind::resistor, "R0", {"a", "b"}, 1e3);  // not part of the loop
+  b.add(ElementKind::vcvs, "E1", {"c", "a", "b", "gnd"}, 2.0);
+  b.opamp("U1", "b", "c", "c", single_pole(1e6, 1e5));  // output c to gnd closes the loop
+  CHECK_THROWS_MATCHES(MnaSystem(b.circuit), SolveError,
+                       Catch::Message("circuit cannot be solved: 'V1', 'E1', 'U1' form a loop of "
+                                      "elements that each set a voltage"));
+}
+
+TEST_CASE("an op amp with rout does not close a voltage loop", "[mna]") {
+  CircuitBuilder b;
+  b.vsrc("V1", "out", "gnd", 1);
+  OpAmpModel model = single_pole(1e6, 1e5);
+  model.rout = 10;
+  b.opamp("U1", "gnd", "out", "out", model);
+  CHECK_NOTHROW(MnaSystem(b.circuit));
+}
+
+TEST_CASE("inductors close voltage loops at DC only", "[mna]") {
+  CircuitBuilder b;
+  b.vsrc("V1", "a", "gnd", 1);
+  b.add(ElementKind::inductor, "L1", {"a", "gnd"}, 1e-3);
+  CHECK_NOTHROW(check_solvable(b.circuit, AnalysisKind::ac));
+  CHECK_THROWS_MATCHES(check_solvable(b.circuit, AnalysisKind::dc), SolveError,
+                       Catch::Message("circuit cannot be solved at DC: 'V1' and 'L1' both set the "
+                                      "voltage between nodes 'a' and 'gnd'"));
+}
+
+TEST_CASE("a source with both terminals on one node is reported", "[mna]") {
+  CircuitBuilder b;
+  b.vsrc("V1", "a", "a", 1);
+  b.add(ElementKind::resistor, "R1", {"a", "gnd"}, 1e3);
+  CHECK_THROWS_MATCHES(MnaSystem(b.circuit), SolveError,
+                       Catch::Message("circuit cannot be solved: 'V1' sets a voltage between node "
+                                      "'a' and itself"));
+}

@@ -1,0 +1,140 @@
+// Both sparse LU backends against a dense LU of the same matrix (Eigen's
+// FullPivLU, a reference implementation outside this project).
+
+#include <catch2/catch.hpp>
+
+#include <Eigen/Dense>
+
+#include "is_close.hpp"
+#include "tacet/sparse_solver.hpp"
+
+using namespace tacet;
+using namespace tacet::testing;
+using cplx = std::complex<double>;
+
+namespace {
+
+// A dense matrix in a fixed CSC pattern (entries kept where the mask is set).
+struct SmallSystem {
+  CscPattern pattern;
+  std::vector<cplx> values;
+  Eigen::MatrixXcd dense;
+};
+
+SmallSystem from_dense(const Eigen::MatrixXcd& dense, const Eigen::MatrixXi& mask) {
+  SmallSystem system;
+  const int n = static_cast<int>(dense.rows());
+  system.pattern.n = n;
+  system.pattern.col_ptr.push_back(0);
+  for (int c = 0; c < n; ++c) {
+    for (int r = 0; r < n; ++r)
+      if (mask(r, c) != 0) {
+        system.pattern.row_index.push_back(r);
+        system.values.push_back(dense(r, c));
+      }
+    system.pattern.col_ptr.push_back(static_cast<int>(system.pattern.row_index.size()));
+  }
+  system.dense = dense;
+  return system;
+}
+
+SmallSystem complex_four_by_four() {
+  Eigen::MatrixXi mask(4, 4);
+  mask << 1, 1, 0, 1,
+          1, 1, 1, 0,
+          0, 1, 1, 1,
+          1, 0, 1, 0;  // zero diagonal in the last row, as a source branch row has
+  Eigen::MatrixXcd dense = Eigen::MatrixXcd::Zero(4, 4);
+  for (int r = 0; r < 4; ++r)
+    for (int c = 0; c < 4; ++c)
+      if (mask(r, c) != 0) dense(r, c) = cplx(1.0 + r + 2 * c, 0.5 * (r - c) + 0.25);
+  return from_dense(dense, mask);
+}
+
+std::vector<cplx> right_hand_side() { return {cplx(1, 0), cplx(0, -2), cplx(3, 1), cplx(-1, 0.5)}; }
+
+void check_against_dense(const Eigen::VectorXcd& expected, const std::vector<cplx>& actual) {
+  for (int k = 0; k < expected.size(); ++k)
+    CHECK_THAT(actual[static_cast<std::size_t>(k)], IsClose(expected(k), 1e-12));
+}
+
+}  // namespace
+
+TEST_CASE("both backends solve a small complex system like a dense LU", "[solver]") {
+  const auto kind = GENERATE(SolverKind::klu, SolverKind::eigen);
+  INFO(to_string(kind));
+  const SmallSystem system = complex_four_by_four();
+  auto lu = make_sparse_lu(kind);
+  lu->analyse(system.pattern);
+  REQUIRE(lu->factor(system.values.data()) == FactorStatus::ok);
+  const auto b = right_hand_side();
+  auto x = b;
+  const Eigen::VectorXcd expected =
+      system.dense.fullPivLu().solve(Eigen::Map<const Eigen::VectorXcd>(b.data(), 4));
+  lu->solve(x.data());
+  check_against_dense(expected, x);
+}
+
+TEST_CASE("the transposed solve uses A^T, not the conjugate transpose", "[solver]") {
+  const auto kind = GENERATE(SolverKind::klu, SolverKind::eigen);
+  INFO(to_string(kind));
+  const SmallSystem system = complex_four_by_four();
+  auto lu = make_sparse_lu(kind);
+  lu->analyse(system.pattern);
+  REQUIRE(lu->factor(system.values.data()) == FactorStatus::ok);
+  const auto b = right_hand_side();
+  auto x = b;
+  lu->solve_transposed(x.data());
+  const Eigen::VectorXcd expected =
+      system.dense.transpose().fullPivLu().solve(Eigen::Map<const Eigen::VectorXcd>(b.data(), 4));
+  check_against_dense(expected, x);
+}
+
+TEST_CASE("KLU refactors new values with the old pivots while they stay good", "[solver]") {
+  SmallSystem system = complex_four_by_four();
+  auto lu = make_sparse_lu(SolverKind::klu);
+  lu->analyse(system.pattern);
+  REQUIRE(lu->factor(system.values.data()) == FactorStatus::ok);
+  for (auto& v : system.values) v *= cplx(1.1, 0.2);  // the pivots scale alike
+  system.dense *= cplx(1.1, 0.2);
+  REQUIRE(lu->factor(system.values.data()) == FactorStatus::ok);
+  CHECK(lu->full_factorizations() == 1);
+  auto x = right_hand_side();
+  lu->solve(x.data());
+  const auto b = right_hand_side();
+  check_against_dense(system.dense.fullPivLu().solve(Eigen::Map<const Eigen::VectorXcd>(b.data(), 4)), x);
+}
+
+TEST_CASE("KLU picks new pivots when a reused pivot collapses", "[solver]") {
+  Eigen::MatrixXi mask(2, 2);
+  mask << 1, 1, 1, 1;
+  Eigen::MatrixXcd first(2, 2), second(2, 2);
+  first << 4.0, 1.0, 1.0, 3.0;
+  second << 1e-14, 1.0, 1.0, 3.0;  // the (0,0) pivot chosen first is now nearly zero
+  SmallSystem a = from_dense(first, mask);
+  const SmallSystem b = from_dense(second, mask);
+  auto lu = make_sparse_lu(SolverKind::klu);
+  lu->analyse(a.pattern);
+  REQUIRE(lu->factor(a.values.data()) == FactorStatus::ok);
+  REQUIRE(lu->factor(b.values.data()) == FactorStatus::ok);
+  CHECK(lu->full_factorizations() == 2);
+  std::vector<cplx> x{1.0, 2.0};
+  lu->solve(x.data());
+  const Eigen::Vector2cd expected = second.fullPivLu().solve(Eigen::Vector2cd(1.0, 2.0));
+  check_against_dense(expected, x);
+}
+
+TEST_CASE("a singular matrix is reported with its column", "[solver]") {
+  const auto kind = GENERATE(SolverKind::klu, SolverKind::eigen);
+  INFO(to_string(kind));
+  Eigen::MatrixXi mask = Eigen::MatrixXi::Ones(3, 3);
+  Eigen::MatrixXcd dense(3, 3);
+  dense << 2.0, 1.0, 0.0,
+           1.0, 3.0, 0.0,
+           0.0, 1.0, 0.0;  // column 2 holds only zeros: no pivot can be found for it
+  const SmallSystem system = from_dense(dense, mask);
+  auto lu = make_sparse_lu(kind);
+  lu->analyse(system.pattern);
+  CHECK(lu->factor(system.values.data()) == FactorStatus::singular);
+  CHECK(lu->singular_column() == 2);
+}
