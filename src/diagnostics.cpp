@@ -1,0 +1,134 @@
+// The one renderer of complaints about the input, and the "did you mean" helpers.
+#include "tacet/diagnostics.hpp"
+
+#include <algorithm>
+#include <cctype>
+#include <numeric>
+
+namespace tacet {
+
+namespace {
+
+bool is_utf8_continuation(char c) {
+  return (static_cast<unsigned char>(c) & 0xC0U) == 0x80U;
+}
+
+const char* severity_word(Severity severity) {
+  switch (severity) {
+    case Severity::error: return "error";
+    case Severity::warning: return "warning";
+    case Severity::note: return "note";
+  }
+  return "error";
+}
+
+// Spaces up to the caret, except that tabs stay tabs so the caret lines up
+// under the same character whatever the reader's tab width.
+std::string caret_line(std::string_view line, std::size_t column_byte, std::uint32_t length) {
+  std::string out;
+  const std::size_t before = std::min(column_byte, line.size());
+  for (std::size_t i = 0; i < before; ++i) {
+    if (is_utf8_continuation(line[i])) continue;
+    out += line[i] == '\t' ? '\t' : ' ';
+  }
+  // `length` is in bytes of source text (what the syntax tree records);
+  // the underline shows the code points those bytes hold, up to the line end.
+  const std::size_t span_end = std::min(line.size(), before + std::max<std::uint32_t>(length, 1));
+  const auto code_points =
+      std::count_if(line.begin() + static_cast<std::ptrdiff_t>(before),
+                    line.begin() + static_cast<std::ptrdiff_t>(span_end),
+                    [](char c) { return !is_utf8_continuation(c); });
+  out += '^';
+  if (code_points > 1) out.append(static_cast<std::size_t>(code_points - 1), '~');
+  out += '\n';
+  return out;
+}
+
+std::string lower(std::string_view text) {
+  std::string out(text);
+  std::transform(out.begin(), out.end(), out.begin(),
+                 [](unsigned char c) { return static_cast<char>(std::tolower(c)); });
+  return out;
+}
+
+}  // namespace
+
+void Diagnostics::error(SourceLocation where, std::string message, std::string hint,
+                        std::uint32_t length) {
+  add(Diagnostic{Severity::error, where, length, std::move(message), std::move(hint)});
+}
+
+void Diagnostics::warning(SourceLocation where, std::string message, std::string hint,
+                          std::uint32_t length) {
+  add(Diagnostic{Severity::warning, where, length, std::move(message), std::move(hint)});
+}
+
+bool Diagnostics::has_errors() const { return error_count() > 0; }
+
+int Diagnostics::error_count() const {
+  return static_cast<int>(std::count_if(list_.begin(), list_.end(), [](const Diagnostic& d) {
+    return d.severity == Severity::error;
+  }));
+}
+
+std::string Diagnostics::render(const Diagnostic& d) const {
+  std::string out;
+  if (d.where.file < 0) {
+    out = std::string(severity_word(d.severity)) + ": " + d.message + '\n';
+  } else {
+    const SourceFile& file = sources_->file(d.where.file);
+    const LineColumn at = sources_->line_column(d.where);
+    const std::string_view line = sources_->line_text(d.where);
+    const std::size_t line_begin = static_cast<std::size_t>(line.data() - file.text.data());
+    const std::size_t column_byte = std::min<std::size_t>(d.where.offset, file.text.size()) - line_begin;
+    out = file.path + ':' + std::to_string(at.line) + ':' + std::to_string(at.column) + ": " +
+          severity_word(d.severity) + ": " + d.message + '\n';
+    out.append(line);
+    out += '\n';
+    out += caret_line(line, column_byte, d.length);
+  }
+  if (!d.hint.empty()) out += "hint: " + d.hint + '\n';
+  return out;
+}
+
+std::string Diagnostics::render_all() const {
+  return std::accumulate(list_.begin(), list_.end(), std::string{},
+                         [this](std::string all, const Diagnostic& d) { return all + render(d); });
+}
+
+int edit_distance(std::string_view a, std::string_view b) {
+  // One row of the Levenshtein table at a time: row[j] is the distance between
+  // the first i characters of a and the first j of b.
+  std::vector<int> row(b.size() + 1);
+  std::iota(row.begin(), row.end(), 0);
+  for (std::size_t i = 1; i <= a.size(); ++i) {
+    int diagonal = row[0];
+    row[0] = static_cast<int>(i);
+    for (std::size_t j = 1; j <= b.size(); ++j) {
+      const int substitution = diagonal + (a[i - 1] == b[j - 1] ? 0 : 1);
+      diagonal = row[j];
+      row[j] = std::min({row[j] + 1, row[j - 1] + 1, substitution});
+    }
+  }
+  return row[b.size()];
+}
+
+std::string nearest_word(std::string_view word, const std::vector<std::string>& candidates) {
+  const std::string folded = lower(word);
+  for (const auto& candidate : candidates) {
+    if (lower(candidate) == folded) return candidate;  // only the case differs
+  }
+  const int limit = std::max(1, static_cast<int>(word.size() / 3));
+  std::string best;
+  int best_distance = limit + 1;
+  for (const auto& candidate : candidates) {
+    const int distance = edit_distance(word, candidate);
+    if (distance < best_distance) {
+      best = candidate;
+      best_distance = distance;
+    }
+  }
+  return best;
+}
+
+}  // namespace tacet

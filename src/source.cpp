@@ -1,0 +1,78 @@
+// Source texts, positions and the readers `include` goes through.
+#include "tacet/source.hpp"
+
+#include <algorithm>
+#include <filesystem>
+#include <fstream>
+#include <sstream>
+
+namespace tacet {
+
+namespace {
+
+bool is_utf8_continuation(char c) {
+  return (static_cast<unsigned char>(c) & 0xC0U) == 0x80U;
+}
+
+// Offsets past the end (an error at end of file) are reported at the end.
+std::size_t clamp_offset(const std::string& text, std::uint32_t offset) {
+  return std::min<std::size_t>(offset, text.size());
+}
+
+std::size_t line_start(const std::string& text, std::size_t offset) {
+  const auto newline = offset == 0 ? std::string::npos : text.rfind('\n', offset - 1);
+  return newline == std::string::npos ? 0 : newline + 1;
+}
+
+}  // namespace
+
+int SourceManager::add(std::string path, std::string text) {
+  files_.push_back(SourceFile{std::move(path), std::move(text)});
+  return size() - 1;
+}
+
+LineColumn SourceManager::line_column(SourceLocation where) const {
+  const std::string& text = file(where.file).text;
+  const std::size_t offset = clamp_offset(text, where.offset);
+  const std::size_t start = line_start(text, offset);
+  const auto newlines = std::count(text.begin(), text.begin() + static_cast<std::ptrdiff_t>(start), '\n');
+  const auto continuation_bytes =
+      std::count_if(text.begin() + static_cast<std::ptrdiff_t>(start),
+                    text.begin() + static_cast<std::ptrdiff_t>(offset), is_utf8_continuation);
+  const auto code_points = static_cast<std::ptrdiff_t>(offset - start) - continuation_bytes;
+  return LineColumn{static_cast<int>(newlines) + 1, static_cast<int>(code_points) + 1};
+}
+
+std::string_view SourceManager::line_text(SourceLocation where) const {
+  const std::string& text = file(where.file).text;
+  const std::size_t start = line_start(text, clamp_offset(text, where.offset));
+  std::size_t end = text.find('\n', start);
+  if (end == std::string::npos) end = text.size();
+  // A CRLF file shows its lines without the CR, like an LF one.
+  if (end > start && text[end - 1] == '\r') --end;
+  return std::string_view(text).substr(start, end - start);
+}
+
+std::optional<std::string> DiskFileReader::read(const std::string& path) {
+  std::ifstream in(path, std::ios::binary);
+  if (!in) return std::nullopt;
+  std::ostringstream contents;
+  contents << in.rdbuf();
+  if (in.bad()) return std::nullopt;
+  return contents.str();
+}
+
+std::optional<std::string> MemoryFileReader::read(const std::string& path) {
+  const auto found = files_.find(path);
+  if (found == files_.end()) return std::nullopt;
+  return found->second;
+}
+
+std::string resolve_relative(const std::string& including_file, const std::string& relative) {
+  const std::filesystem::path target(relative);
+  if (target.is_absolute()) return target.lexically_normal().string();
+  const auto folder = std::filesystem::path(including_file).parent_path();
+  return (folder / target).lexically_normal().string();
+}
+
+}  // namespace tacet
