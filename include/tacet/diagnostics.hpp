@@ -19,7 +19,7 @@ enum class Severity { error, warning, note };
 struct Diagnostic {
   Severity severity = Severity::error;
   SourceLocation where;
-  std::uint32_t length = 1;  ///< characters to underline (at least the caret)
+  std::uint32_t length = 1;  ///< bytes of source text to underline, as AST lengths are (at least the caret)
   std::string message;
   std::string hint;  ///< empty: no hint line
 };
