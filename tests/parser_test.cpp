@@ -490,3 +490,84 @@ TEST_CASE("after twenty errors parsing stops with a note", "[parser]") {
   CHECK(outcome.diagnostics.find("demo.tacet:21:1: note: too many errors; stopping here\n") !=
         std::string::npos);
 }
+
+TEST_CASE("nodes may start with a digit, names may not", "[parser]") {
+  const auto n = parse_good("res R1 (1, 2_b) 1k\n");
+  CHECK(instance(n, 0).connections.first.at(0).node == "1");
+  CHECK(instance(n, 0).connections.first.at(1).node == "2_b");
+  CHECK(parse_bad("res 1R (a, b) 1k\n") ==
+        "demo.tacet:1:5: error: expected a name after 'res'\n"
+        "res 1R (a, b) 1k\n"
+        "    ^~\n");
+}
+
+TEST_CASE("missing connections are asked for by example", "[parser]") {
+  CHECK(parse_bad("res R1 a b 1k\n") ==
+        "demo.tacet:1:8: error: expected the connections in parentheses, like (a, b), after "
+        "'res R1'\n"
+        "res R1 a b 1k\n"
+        "       ^\n");
+}
+
+TEST_CASE("an op amp or a use without its model or block name is reported", "[parser]") {
+  CHECK(parse_bad("opamp U1 (+a, -b, out)\n") ==
+        "demo.tacet:1:23: error: expected a model name after 'opamp U1 (+a, -b, out)'\n"
+        "opamp U1 (+a, -b, out)\n"
+        "                      ^\n");
+  CHECK(parse_bad("use F1 (a, b) r=1k\n") ==
+        "demo.tacet:1:15: error: expected a block name after 'use F1 (a, b)'\n"
+        "use F1 (a, b) r=1k\n"
+        "              ^\n");
+}
+
+TEST_CASE("an expression cut short is reported at the gap", "[parser]") {
+  CHECK(parse_bad("param x = 1 +\n") ==
+        "demo.tacet:1:14: error: expected a value after 'param x = 1 +'\n"
+        "param x = 1 +\n"
+        "             ^\n");
+  CHECK(parse_bad("param x = (1 + 2\n") ==
+        "demo.tacet:1:17: error: expected ')' to close the parenthesis\n"
+        "param x = (1 + 2\n"
+        "                ^\n");
+  CHECK(parse_bad("res R1 (a, b) 1k tol=\n") ==
+        "demo.tacet:1:22: error: expected a value after 'res R1 (a, b) 1k tol='\n"
+        "res R1 (a, b) 1k tol=\n"
+        "                     ^\n");
+  CHECK(parse_bad("supply 12\n") ==
+        "demo.tacet:1:10: error: expected a value after 'supply 12'\n"
+        "supply 12\n"
+        "         ^\n");
+}
+
+TEST_CASE("a number glued to a digit after its suffix is malformed", "[parser]") {
+  CHECK(parse_bad("res R1 (a, b) 10k5\n") ==
+        "demo.tacet:1:15: error: malformed number '10k5'\n"
+        "res R1 (a, b) 10k5\n"
+        "              ^~~~\n");
+}
+
+TEST_CASE("a statement in a block is quoted from its own start", "[parser]") {
+  CHECK(parse_bad("block b (p) {\n  res R1 (p, q)\n}\n") ==
+        "demo.tacet:2:16: error: expected a value after 'res R1 (p, q)'\n"
+        "  res R1 (p, q)\n"
+        "               ^\n");
+}
+
+TEST_CASE("a keyword in the wrong case gets the right spelling as a hint", "[parser]") {
+  CHECK(parse_bad("Res R1 (a, b) 1k\n") ==
+        "demo.tacet:1:1: error: unknown statement 'Res'\n"
+        "Res R1 (a, b) 1k\n"
+        "^~~\n"
+        "hint: did you mean 'res'?\n");
+}
+
+TEST_CASE("an unclosed block does not hide errors in the model after it", "[parser]") {
+  CHECK(parse_bad("block b (p) {\n  res R1 (p, q) 1.2.3\n"
+                  "model m opamp { gbw }\n") ==
+        "demo.tacet:2:17: error: malformed number '1.2.3'\n"
+        "  res R1 (p, q) 1.2.3\n"
+        "                ^~~~~\n"
+        "demo.tacet:3:21: error: expected a value after 'model m opamp { gbw'\n"
+        "model m opamp { gbw }\n"
+        "                    ^\n");
+}

@@ -382,8 +382,10 @@ inline auto const connections_def =
     connections_close;
 inline auto const value_def = expression >> !x3::lit('=');
 inline auto const option_def = identifier >> -('=' > expression);
-inline auto const model_name_def = identifier;
-inline auto const block_name_def = identifier;
+// Like a value, a model or block name is not an option key: in
+// `use F1 (a, b) r=1k` the name is missing, it is not `r`.
+inline auto const model_name_def = identifier >> !x3::lit('=');
+inline auto const block_name_def = identifier >> !x3::lit('=');
 
 inline auto const element_def = passive | source | controlled | opamp;
 inline auto const passive_def = keyword_identifier(x3::lit("res") | "cap" | "ind") > identifier >
