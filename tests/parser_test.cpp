@@ -571,3 +571,10 @@ TEST_CASE("an unclosed block does not hide errors in the model after it", "[pars
         "model m opamp { gbw }\n"
         "                    ^\n");
 }
+
+TEST_CASE("the statement quoted in a message leaves out comments and line ends", "[parser]") {
+  CHECK(parse_bad("model m opamp {  # invented archetype\n  gbw\n}\n") ==
+        "demo.tacet:2:6: error: expected a value after 'model m opamp { gbw'\n"
+        "  gbw\n"
+        "     ^\n");
+}

@@ -25,11 +25,19 @@ iterator_type skip_blanks_and_comments(iterator_type at, iterator_type end) {
   return at;
 }
 
-/// The statement so far, on one line with single spaces, for "after '...'".
+/// The statement so far, on one line with single spaces and without
+/// comments, for "after '...'".
 std::string quote_so_far(iterator_type from, iterator_type to) {
   std::string out;
   bool pending_space = false;
+  bool in_string = false;
   for (iterator_type at = from; at < to; ++at) {
+    if (*at == '"' && (at == from || at[-1] != '\\')) in_string = !in_string;
+    if (*at == '#' && !in_string) {
+      while (at + 1 < to && !is_line_end(at[1])) ++at;
+      pending_space = !out.empty();
+      continue;
+    }
     const bool space = is_blank(*at) || is_line_end(*at) || (*at == '\\' && at + 1 < to && is_line_end(at[1]));
     if (space) {
       pending_space = !out.empty();
