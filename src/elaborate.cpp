@@ -66,8 +66,8 @@ void Elaborator::collect(const ast::Netlist& netlist, int file) {
     Elaborator& self;
     int file;
     void operator()(const ast::Title& t) const {
-      if (!self.title_seen_) self.circuit_.title = t.text;
-      self.title_seen_ = true;
+      // The top file's title names the circuit; a library's own title does not.
+      if (self.include_stack_.size() == 1) self.circuit_.title = t.text;
     }
     void operator()(const ast::Include& inc) const {
       const std::string& including = self.sources_.file(file).path;
@@ -169,7 +169,6 @@ std::optional<double> Elaborator::overridden(const std::string& name, const Scop
 
 void Elaborator::report_unused_overrides() {
   std::vector<std::string> names;
-  for (const auto& [n, w] : param_names_) names.push_back(n);
   for (const auto& [n, w] : globals_.params) names.push_back(n);
   for (const auto& [n, w] : element_names_) names.push_back(n);
   for (const auto& [n, w] : model_names_) names.push_back(n);

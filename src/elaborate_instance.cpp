@@ -364,8 +364,9 @@ void Elaborator::expand_block(const ast::Instance& use, int file, const Instance
   }
   for (const auto& p : block.parameters) {
     if (scope.params.count(p.key.text)) continue;
-    std::optional<double> v = overridden(full + "." + p.key.text, globals_, Dimension::any);
-    if (!v && p.value) v = value_of(*p.value, block_file, globals_, Dimension::any);
+    // A default may refer to the parameters before it (g=2*r) and to the file's params.
+    std::optional<double> v = overridden(full + "." + p.key.text, scope, Dimension::any);
+    if (!v && p.value) v = value_of(*p.value, block_file, scope, Dimension::any);
     if (!v && !p.value) {
       error(file, use.name, fmt::format("'{}' needs a value for parameter '{}' of block '{}'",
                                         use.name.text, p.key.text, block.name.text),

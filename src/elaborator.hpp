@@ -91,9 +91,8 @@ class Elaborator {
   std::map<std::string, From<ast::Block>> blocks_;
   std::vector<From<ast::Model>> model_order_;
   std::map<std::string, int> model_index_;  // name -> Circuit::models index, -1 if bad
-  std::map<std::string, SourceLocation> param_names_, model_names_, block_names_, element_names_;
+  std::map<std::string, SourceLocation> model_names_, block_names_, element_names_;
   std::vector<ParsedOverride> overrides_;
-  bool title_seen_ = false;
 };
 
 }  // namespace tacet::detail

@@ -2,6 +2,7 @@
 // failure to its exit status in one place.
 
 #include <iostream>
+#include <string>
 
 #include <CLI/CLI.hpp>
 
@@ -20,7 +21,8 @@ int main(int argc, char** argv) {
     const int code = app.exit(e);
     return code == 0 ? 0 : static_cast<int>(tacet::ExitStatus::bad_input);
   } catch (const tacet::Error& e) {
-    std::cerr << e.what();
+    const std::string message = e.what();
+    std::cerr << message << (message.empty() || message.back() != '\n' ? "\n" : "");
     return static_cast<int>(e.status());
   } catch (const std::exception& e) {
     std::cerr << "internal error: " << e.what() << "\n";

@@ -134,7 +134,7 @@ std::string suffix_hint(std::string_view suffix, Dimension expected) {
   if (suffix == "P") return "write p for pico";
   if (lower == "ohms" || lower == "ohm") return "write ohm (lower case) or \xCE\xA9";
   if (lower.size() >= 2 && lower.substr(lower.size() - 2) == "hz") return "write Hz, as in 10kHz";
-  if (lower == "db") return "write dB";
+  if (lower == "db" && suffix != "dB") return "write dB";
   if (suffix.find("/u") != std::string_view::npos || suffix.find("/s") != std::string_view::npos)
     return "slew rates are written V/s, V/ms, V/us or V/ns";
   if (expected == Dimension::ratio) return "write a fraction (0.01) or a percentage (1%)";

@@ -114,8 +114,8 @@ std::string element_value(const Circuit& c, const Element& e) {
       break;
     }
   }
-  if (e.tolerance > 0) out += fmt::format(" tol={}%", format_si(e.tolerance * 100, 6));
-  if (e.rails) out += fmt::format(" rails={}/{}", format_si(e.rails->high, 6), format_si(e.rails->low, 6));
+  if (e.tolerance > 0) out += fmt::format(" tol={:g}%", e.tolerance * 100);
+  if (e.rails) out += fmt::format(" rails={:+g}/{:+g}", e.rails->high, e.rails->low);
   if (e.noiseless) out += " noiseless";
   return out;
 }
@@ -136,7 +136,7 @@ std::string model_line(const OpAmpModel& m) {
   add("ib", m.ib, "A");
   add("ios", m.ios, "A");
   add("swing", m.swing, "V");
-  add("slew", m.slew, "V/s");
+  if (m.slew != 0) out += fmt::format(" slew {:g}V/us", m.slew * 1e-6);
   if (m.vcm_low) out += fmt::format(" vcm_low {}V", format_si(*m.vcm_low, 6));
   if (m.vcm_high) out += fmt::format(" vcm_high {}V", format_si(*m.vcm_high, 6));
   return out + " }\n";

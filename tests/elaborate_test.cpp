@@ -387,3 +387,17 @@ TEST_CASE("--ambient wins over the netlist", "[elaborate]") {
   REQUIRE(r.circuit);
   CHECK(r.circuit->ambient_celsius == 40);
 }
+
+TEST_CASE("a block default may use the parameters before it", "[elaborate]") {
+  auto r = elaborate_text("block div (a, b) r=1k r2=2*r {\n  res R1 (a, b) r2\n}\nuse D (p, gnd) div r=3k\n");
+  INFO(r.diagnostics);
+  REQUIRE(r.circuit);
+  CHECK(element(*r.circuit, "D.R1").value == Approx(6e3));
+}
+
+TEST_CASE("the top file's title names the circuit, not a library's", "[elaborate][include]") {
+  auto r = elaborate_text("include \"lib.tacet\"\ntitle \"Phono stage\"\nres R (a, gnd) 1k\n",
+                          {{"lib.tacet", "title \"Library\"\nmodel deep opamp { gbw 1M }\n"}});
+  REQUIRE(r.circuit);
+  CHECK(r.circuit->title == "Phono stage");
+}
