@@ -41,28 +41,33 @@ bool vccs_is_conductance(const Element& e) {
 
 // The node pairs through which an element lets a node voltage be fixed
 // relative to gnd. Current sources and op-amp inputs do not conduct.
-std::vector<std::pair<int, int>> conducting_pairs(const Circuit& circuit, const Element& e,
-                                                  AnalysisKind kind) {
+struct NodePairs {
+  std::array<std::pair<int, int>, 2> pair{};
+  int count = 0;
+  void add(int a, int b) { pair[static_cast<std::size_t>(count++)] = {a, b}; }
+};
+
+NodePairs conducting_pairs(const Circuit& circuit, const Element& e, AnalysisKind kind) {
   const auto& n = e.nodes;
+  NodePairs pairs;
   switch (e.kind) {
     case ElementKind::resistor:
     case ElementKind::inductor:
     case ElementKind::vsource:
-    case ElementKind::vcvs: return {{n[0], n[1]}};
+    case ElementKind::vcvs: pairs.add(n[0], n[1]); break;
     case ElementKind::capacitor:
-      if (kind == AnalysisKind::ac) return {{n[0], n[1]}};
-      return {};
-    case ElementKind::isource: return {};
+      if (kind == AnalysisKind::ac) pairs.add(n[0], n[1]);
+      break;
+    case ElementKind::isource: break;
     case ElementKind::vccs:
-      if (vccs_is_conductance(e)) return {{n[0], n[1]}};
-      return {};
-    case ElementKind::opamp: {
-      std::vector<std::pair<int, int>> pairs{{n[2], 0}};
-      if (model_of(circuit, e).rin > 0) pairs.emplace_back(n[0], n[1]);
-      return pairs;
-    }
+      if (vccs_is_conductance(e)) pairs.add(n[0], n[1]);
+      break;
+    case ElementKind::opamp:
+      pairs.add(n[2], 0);
+      if (model_of(circuit, e).rin > 0) pairs.add(n[0], n[1]);
+      break;
   }
-  return {};
+  return pairs;
 }
 
 std::string quoted_list(const std::vector<std::string>& names) {
@@ -74,7 +79,10 @@ std::string quoted_list(const std::vector<std::string>& names) {
 void check_connected_to_gnd(const Circuit& circuit, AnalysisKind kind) {
   DisjointSets sets(circuit.node_count());
   for (const auto& e : circuit.elements)
-    for (auto [a, b] : conducting_pairs(circuit, e, kind)) sets.join(a, b);
+  {
+    const NodePairs pairs = conducting_pairs(circuit, e, kind);
+    for (int k = 0; k < pairs.count; ++k) sets.join(pairs.pair[k].first, pairs.pair[k].second);
+  }
   std::vector<std::string> floating;
   for (std::size_t node = 1; node < circuit.node_count(); ++node)
     if (sets.find(static_cast<int>(node)) != sets.find(0))
@@ -216,6 +224,7 @@ void MnaSystem::number_unknowns() {
 
 std::vector<MnaSystem::Term> MnaSystem::collect_terms() const {
   std::vector<Term> terms;
+  terms.reserve(8 * circuit_->elements.size());
   auto add = [&](int row, int col, Coefficients c) {
     if (row >= 0 && col >= 0) terms.push_back({row, col, c});
   };
@@ -268,29 +277,37 @@ std::vector<MnaSystem::Term> MnaSystem::collect_terms() const {
   return terms;
 }
 
+// Terms are bucketed by column (a counting sort, linear in their number),
+// each column sorted by row, and terms on the same entry summed into one slot.
 void MnaSystem::build_pattern(const std::vector<Term>& terms) {
-  std::vector<std::size_t> order(terms.size());
-  std::iota(order.begin(), order.end(), 0);
-  std::sort(order.begin(), order.end(), [&](std::size_t a, std::size_t b) {
-    return std::pair(terms[a].col, terms[a].row) < std::pair(terms[b].col, terms[b].row);
-  });
-  pattern_.col_ptr.assign(static_cast<std::size_t>(pattern_.n) + 1, 0);
+  const auto n = static_cast<std::size_t>(pattern_.n);
+  std::vector<std::size_t> bucket_start(n + 1, 0);
+  for (const Term& t : terms) ++bucket_start[static_cast<std::size_t>(t.col) + 1];
+  std::partial_sum(bucket_start.begin(), bucket_start.end(), bucket_start.begin());
+  std::vector<std::size_t> by_column(terms.size());
+  std::vector<std::size_t> fill(bucket_start.begin(), bucket_start.end() - 1);
+  for (std::size_t k = 0; k < terms.size(); ++k)
+    by_column[fill[static_cast<std::size_t>(terms[k].col)]++] = k;
+
+  pattern_.col_ptr.assign(n + 1, 0);
   pattern_.row_index.clear();
   coefficients_.clear();
-  for (std::size_t k = 0; k < order.size(); ++k) {
-    const Term& t = terms[order[k]];
-    const bool same_as_last = k > 0 && terms[order[k - 1]].row == t.row &&
-                              terms[order[k - 1]].col == t.col;
-    if (same_as_last) {
-      auto& c = coefficients_.back();
-      c.c0 += t.c.c0, c.c1 += t.c.c1, c.c2 += t.c.c2;
-      continue;
+  for (std::size_t col = 0; col < n; ++col) {
+    const auto first = by_column.begin() + static_cast<std::ptrdiff_t>(bucket_start[col]);
+    const auto last = by_column.begin() + static_cast<std::ptrdiff_t>(bucket_start[col + 1]);
+    std::sort(first, last, [&](std::size_t a, std::size_t b) { return terms[a].row < terms[b].row; });
+    for (auto it = first; it != last; ++it) {
+      const Term& t = terms[*it];
+      if (it != first && terms[*(it - 1)].row == t.row) {
+        auto& c = coefficients_.back();
+        c.c0 += t.c.c0, c.c1 += t.c.c1, c.c2 += t.c.c2;
+        continue;
+      }
+      pattern_.row_index.push_back(t.row);
+      coefficients_.push_back(t.c);
     }
-    pattern_.row_index.push_back(t.row);
-    coefficients_.push_back(t.c);
-    ++pattern_.col_ptr[static_cast<std::size_t>(t.col) + 1];
+    pattern_.col_ptr[col + 1] = static_cast<int>(pattern_.row_index.size());
   }
-  std::partial_sum(pattern_.col_ptr.begin(), pattern_.col_ptr.end(), pattern_.col_ptr.begin());
 }
 
 // --- per-point work ----------------------------------------------------------

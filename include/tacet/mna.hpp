@@ -70,8 +70,9 @@ class MnaSystem {
   int slot(int row, int col) const;
 
  private:
+  // Every stamp is real in powers of s: entry = c0 + c1 s + c2 s^2.
   struct Coefficients {
-    std::complex<double> c0, c1, c2;
+    double c0, c1, c2;
   };
   struct Term {
     int row, col;
