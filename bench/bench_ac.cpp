@@ -45,7 +45,7 @@ using tacet::ElementKind;
 
 constexpr int kPoints = 100;
 constexpr double kMinSeconds = 0.3;  // repeat small cases until the total is measurable
-constexpr int kRepeats = 3;          // report the fastest of these, the least disturbed by other load
+constexpr int kRepeats = 3;  // report the fastest of these, the least disturbed by other load
 
 template <typename Measure>
 double fastest_of_repeats(Measure measure) {
@@ -82,7 +82,6 @@ tacet::Circuit rc_ladder(int sections) {
   }
   return c;
 }
-
 
 std::vector<double> sweep_frequencies() {
   // 100 log-spaced points over eight decades, ends included.
@@ -173,7 +172,8 @@ int main(int argc, char** argv) {
     const auto circuit = rc_ladder(sections);
     const int unknowns = tacet::MnaSystem(circuit).size();
     for (auto kind : {tacet::SolverKind::klu, tacet::SolverKind::eigen}) {
-      const double bare = fastest_of_repeats([&] { return bare_microseconds_per_point(circuit, kind); });
+      const double bare =
+          fastest_of_repeats([&] { return bare_microseconds_per_point(circuit, kind); });
       const double sweep =
           fastest_of_repeats([&] { return sweep_microseconds_per_point(circuit, sections, kind); });
       std::printf("%9d  %-6s  %8d  %12.2f  %12.2f  %6.2f  %12.1f\n", sections,

@@ -4,9 +4,10 @@
 
 #include "tacet/ac.hpp"
 
+#include <fmt/format.h>
+
 #include <algorithm>
 #include <cmath>
-#include <fmt/format.h>
 
 #include "tacet/errors.hpp"
 #include "tacet/mna.hpp"
@@ -41,9 +42,12 @@ std::string validate_range(const Sweep& sweep) {
 
 const char* to_string(SweepKind kind) {
   switch (kind) {
-    case SweepKind::log: return "log";
-    case SweepKind::linear: return "linear";
-    case SweepKind::list: return "list";
+    case SweepKind::log:
+      return "log";
+    case SweepKind::linear:
+      return "linear";
+    case SweepKind::list:
+      return "list";
   }
   return "?";
 }
@@ -86,7 +90,8 @@ std::vector<double> Sweep::frequencies() const {
 AcResult run_ac(const Circuit& circuit, const AcOptions& options) {
   if (auto problem = options.sweep.validate(); !problem.empty()) throw InputError(problem);
   AcResult result;
-  for (const auto& text : options.probes) result.traces.push_back({resolve_probe(text, circuit), {}});
+  for (const auto& text : options.probes)
+    result.traces.push_back({resolve_probe(text, circuit), {}});
   result.frequencies = options.sweep.frequencies();
   for (auto& trace : result.traces) trace.values.resize(result.frequencies.size());
 

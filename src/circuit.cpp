@@ -8,14 +8,22 @@ namespace tacet {
 
 const char* to_keyword(ElementKind kind) {
   switch (kind) {
-    case ElementKind::resistor: return "res";
-    case ElementKind::capacitor: return "cap";
-    case ElementKind::inductor: return "ind";
-    case ElementKind::vsource: return "vsrc";
-    case ElementKind::isource: return "isrc";
-    case ElementKind::vcvs: return "vcvs";
-    case ElementKind::vccs: return "vccs";
-    case ElementKind::opamp: return "opamp";
+    case ElementKind::resistor:
+      return "res";
+    case ElementKind::capacitor:
+      return "cap";
+    case ElementKind::inductor:
+      return "ind";
+    case ElementKind::vsource:
+      return "vsrc";
+    case ElementKind::isource:
+      return "isrc";
+    case ElementKind::vcvs:
+      return "vcvs";
+    case ElementKind::vccs:
+      return "vccs";
+    case ElementKind::opamp:
+      return "opamp";
   }
   return "?";
 }

@@ -3,10 +3,11 @@
 
 #include "tacet/mna.hpp"
 
+#include <fmt/format.h>
+
 #include <algorithm>
 #include <numeric>
 #include <queue>
-#include <fmt/format.h>
 
 #include "tacet/errors.hpp"
 
@@ -19,7 +20,9 @@ constexpr double kTwoPi = 6.283185307179586476925286766559;
 
 class DisjointSets {
  public:
-  explicit DisjointSets(std::size_t n) : parent_(n) { std::iota(parent_.begin(), parent_.end(), 0); }
+  explicit DisjointSets(std::size_t n) : parent_(n) {
+    std::iota(parent_.begin(), parent_.end(), 0);
+  }
   int find(int x) {
     while (parent_[x] != x) x = parent_[x] = parent_[parent_[x]];
     return x;
@@ -54,11 +57,14 @@ NodePairs conducting_pairs(const Circuit& circuit, const Element& e, AnalysisKin
     case ElementKind::resistor:
     case ElementKind::inductor:
     case ElementKind::vsource:
-    case ElementKind::vcvs: pairs.add(n[0], n[1]); break;
+    case ElementKind::vcvs:
+      pairs.add(n[0], n[1]);
+      break;
     case ElementKind::capacitor:
       if (kind == AnalysisKind::ac) pairs.add(n[0], n[1]);
       break;
-    case ElementKind::isource: break;
+    case ElementKind::isource:
+      break;
     case ElementKind::vccs:
       if (vccs_is_conductance(e)) pairs.add(n[0], n[1]);
       break;
@@ -78,8 +84,7 @@ std::string quoted_list(const std::vector<std::string>& names) {
 
 void check_connected_to_gnd(const Circuit& circuit, AnalysisKind kind) {
   DisjointSets sets(circuit.node_count());
-  for (const auto& e : circuit.elements)
-  {
+  for (const auto& e : circuit.elements) {
     const NodePairs pairs = conducting_pairs(circuit, e, kind);
     for (int k = 0; k < pairs.count; ++k) sets.join(pairs.pair[k].first, pairs.pair[k].second);
   }
@@ -147,14 +152,15 @@ std::vector<std::size_t> forest_path(const std::vector<std::vector<VoltageBranch
   return path;
 }
 
-[[noreturn]] void report_loop(const Circuit& circuit, AnalysisKind kind, const VoltageBranch& closing,
-                              const std::vector<std::size_t>& path) {
+[[noreturn]] void report_loop(const Circuit& circuit, AnalysisKind kind,
+                              const VoltageBranch& closing, const std::vector<std::size_t>& path) {
   const std::string where = kind == AnalysisKind::dc ? " at DC" : "";
   const auto& closer = circuit.elements[closing.element].name;
   if (closing.a == closing.b)
-    throw SolveError(fmt::format("circuit cannot be solved{}: '{}' sets a voltage between node "
-                                 "'{}' and itself",
-                                 where, closer, circuit.node_names[closing.a]));
+    throw SolveError(
+        fmt::format("circuit cannot be solved{}: '{}' sets a voltage between node "
+                    "'{}' and itself",
+                    where, closer, circuit.node_names[closing.a]));
   if (path.size() == 1)
     throw SolveError(fmt::format(
         "circuit cannot be solved{}: '{}' and '{}' both set the voltage between nodes '{}' and "
@@ -243,14 +249,21 @@ std::vector<MnaSystem::Term> MnaSystem::collect_terms() const {
     for (std::size_t k = 0; k < e.nodes.size() && k < 4; ++k) u[k] = node_unknown(e.nodes[k]);
     const int br = branch_of_[i];
     switch (e.kind) {
-      case ElementKind::resistor: admittance(u[0], u[1], {1.0 / e.value, 0, 0}); break;
-      case ElementKind::capacitor: admittance(u[0], u[1], {0, e.value, 0}); break;
+      case ElementKind::resistor:
+        admittance(u[0], u[1], {1.0 / e.value, 0, 0});
+        break;
+      case ElementKind::capacitor:
+        admittance(u[0], u[1], {0, e.value, 0});
+        break;
       case ElementKind::inductor:
         incidence(u[0], u[1], br);
         add(br, br, {0, -e.value, 0});
         break;
-      case ElementKind::vsource: incidence(u[0], u[1], br); break;
-      case ElementKind::isource: break;
+      case ElementKind::vsource:
+        incidence(u[0], u[1], br);
+        break;
+      case ElementKind::isource:
+        break;
       case ElementKind::vcvs:
         incidence(u[0], u[1], br);
         add(br, u[2], {-e.value, 0, 0}), add(br, u[3], {e.value, 0, 0});
@@ -295,7 +308,8 @@ void MnaSystem::build_pattern(const std::vector<Term>& terms) {
   for (std::size_t col = 0; col < n; ++col) {
     const auto first = by_column.begin() + static_cast<std::ptrdiff_t>(bucket_start[col]);
     const auto last = by_column.begin() + static_cast<std::ptrdiff_t>(bucket_start[col + 1]);
-    std::sort(first, last, [&](std::size_t a, std::size_t b) { return terms[a].row < terms[b].row; });
+    std::sort(first, last,
+              [&](std::size_t a, std::size_t b) { return terms[a].row < terms[b].row; });
     for (auto it = first; it != last; ++it) {
       const Term& t = terms[*it];
       if (it != first && terms[*(it - 1)].row == t.row) {

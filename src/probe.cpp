@@ -47,7 +47,8 @@ Probe resolve_probe(const std::string& text, const Circuit& circuit) {
   Probe probe;
   probe.text = trimmed(text);
   const std::string& t = probe.text;
-  if (t.empty()) throw InputError("empty probe: name a node ('out'), a pair ('out,ref') or a current ('i(R1)')");
+  if (t.empty())
+    throw InputError("empty probe: name a node ('out'), a pair ('out,ref') or a current ('i(R1)')");
   if (t.size() > 3 && t.rfind("i(", 0) == 0 && t.back() == ')') {
     probe.kind = ProbeKind::current;
     probe.element = resolve_element(trimmed(t.substr(2, t.size() - 3)), t, circuit);
@@ -55,7 +56,8 @@ Probe resolve_probe(const std::string& text, const Circuit& circuit) {
   }
   const auto comma = t.find(',');
   probe.plus = resolve_node(trimmed(t.substr(0, comma)), t, circuit);
-  if (comma != std::string::npos) probe.minus = resolve_node(trimmed(t.substr(comma + 1)), t, circuit);
+  if (comma != std::string::npos)
+    probe.minus = resolve_node(trimmed(t.substr(comma + 1)), t, circuit);
   return probe;
 }
 
@@ -76,17 +78,26 @@ std::complex<double> probe_functional(const Probe& probe, const MnaSystem& mna,
   const Element& e = mna.circuit().elements[probe.element];
   const auto& n = e.nodes;
   switch (e.kind) {
-    case ElementKind::resistor: across(n[0], n[1], 1.0 / e.value); break;
-    case ElementKind::capacitor: across(n[0], n[1], s * e.value); break;
-    case ElementKind::vccs: across(n[2], n[3], e.value); break;
-    case ElementKind::isource: return e.ac_phasor();
+    case ElementKind::resistor:
+      across(n[0], n[1], 1.0 / e.value);
+      break;
+    case ElementKind::capacitor:
+      across(n[0], n[1], s * e.value);
+      break;
+    case ElementKind::vccs:
+      across(n[2], n[3], e.value);
+      break;
+    case ElementKind::isource:
+      return e.ac_phasor();
     case ElementKind::opamp:
       // The branch current flows into the gain source; the pin gets its negative.
       terms.push_back({mna.branch_unknown(probe.element), -1.0});
       break;
     case ElementKind::inductor:
     case ElementKind::vsource:
-    case ElementKind::vcvs: terms.push_back({mna.branch_unknown(probe.element), 1.0}); break;
+    case ElementKind::vcvs:
+      terms.push_back({mna.branch_unknown(probe.element), 1.0});
+      break;
   }
   return 0.0;
 }

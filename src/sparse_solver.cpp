@@ -9,8 +9,10 @@ std::unique_ptr<SparseLu> make_eigen_lu();
 
 const char* to_string(SolverKind kind) {
   switch (kind) {
-    case SolverKind::klu: return "klu";
-    case SolverKind::eigen: return "eigen";
+    case SolverKind::klu:
+      return "klu";
+    case SolverKind::eigen:
+      return "eigen";
   }
   return "?";
 }

@@ -4,7 +4,6 @@
 
 #include <Eigen/SparseCore>
 #include <Eigen/SparseLU>
-
 #include <algorithm>
 #include <string>
 

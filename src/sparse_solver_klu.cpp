@@ -60,8 +60,8 @@ class KluLu final : public SparseLu {
 
  private:
   bool refactor(const std::complex<double>* values) {
-    if (!klu_z_refactor(col_ptr_.data(), row_index_.data(), as_doubles(values), symbolic_,
-                        numeric_, &common_))
+    if (!klu_z_refactor(col_ptr_.data(), row_index_.data(), as_doubles(values), symbolic_, numeric_,
+                        &common_))
       return false;
     klu_z_rcond(symbolic_, numeric_, &common_);
     return common_.rcond >= kRcondDropLimit * rcond_at_factor_ && common_.rcond > 0;
@@ -70,8 +70,8 @@ class KluLu final : public SparseLu {
   FactorStatus factor_fresh(const std::complex<double>* values) {
     if (numeric_ != nullptr) klu_z_free_numeric(&numeric_, &common_);
     ++full_factorizations_;
-    numeric_ = klu_z_factor(col_ptr_.data(), row_index_.data(), as_doubles(values), symbolic_,
-                            &common_);
+    numeric_ =
+        klu_z_factor(col_ptr_.data(), row_index_.data(), as_doubles(values), symbolic_, &common_);
     if (numeric_ == nullptr || common_.status == KLU_SINGULAR) {
       singular_column_ = common_.singular_col < pattern_->n ? common_.singular_col : -1;
       if (numeric_ != nullptr) klu_z_free_numeric(&numeric_, &common_);

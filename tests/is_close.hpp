@@ -4,7 +4,6 @@
 // significant digits). An exact zero is expected to within `rel` absolutely.
 
 #include <catch2/catch.hpp>
-
 #include <cmath>
 #include <complex>
 #include <sstream>
@@ -36,8 +35,6 @@ class IsCloseMatcher : public Catch::MatcherBase<std::complex<double>> {
 };
 
 /// CHECK_THAT(value, IsClose(expected, 1e-9)); works for real values too.
-inline IsCloseMatcher IsClose(std::complex<double> expected, double rel) {
-  return {expected, rel};
-}
+inline IsCloseMatcher IsClose(std::complex<double> expected, double rel) { return {expected, rel}; }
 
 }  // namespace tacet::testing

@@ -1,12 +1,13 @@
 // The MNA system: numbering, the stamp of each element, the fixed pattern and
 // the structural checks that run before any solve.
 
+#include "tacet/mna.hpp"
+
 #include <catch2/catch.hpp>
 
 #include "is_close.hpp"
 #include "reference_circuits.hpp"
 #include "tacet/errors.hpp"
-#include "tacet/mna.hpp"
 
 using namespace tacet;
 using namespace tacet::testing;
@@ -59,7 +60,7 @@ TEST_CASE("a resistor stamps 1/R between its nodes and nothing to gnd", "[mna]")
   CHECK_THAT(entry(mna, kS, 0, 1), IsClose(-0.5e-3, 1e-15));
   CHECK_THAT(entry(mna, kS, 1, 0), IsClose(-0.5e-3, 1e-15));
   CHECK_THAT(entry(mna, kS, 1, 1), IsClose(0.75e-3, 1e-15));  // both resistors summed in one slot
-  CHECK(count_entries(mna) == 4 + 2);                          // plus V1's two incidence entries
+  CHECK(count_entries(mna) == 4 + 2);                         // plus V1's two incidence entries
 }
 
 TEST_CASE("a capacitor stamps sC and an inductor a branch with -sL", "[mna]") {
@@ -120,7 +121,8 @@ TEST_CASE("an op amp's gain row is v_out/A(s) - (v+ - v-) with both poles", "[mn
   CHECK_THAT(entry(mna, s, o, row), IsClose(1.0, 1e-15));
 }
 
-TEST_CASE("an op amp with rout drives its pin from an internal node, rin across its inputs", "[mna]") {
+TEST_CASE("an op amp with rout drives its pin from an internal node, rin across its inputs",
+          "[mna]") {
   CircuitBuilder b;
   b.vsrc("V1", "p", "gnd", 1);
   OpAmpModel model = single_pole(1e6, 1e5);
@@ -139,7 +141,8 @@ TEST_CASE("an op amp with rout drives its pin from an internal node, rin across 
   CHECK(mna.slot(row, x) >= 0);
 }
 
-TEST_CASE("the excitation holds vsrc phasors on branch rows and isrc currents on node rows", "[mna]") {
+TEST_CASE("the excitation holds vsrc phasors on branch rows and isrc currents on node rows",
+          "[mna]") {
   CircuitBuilder b;
   b.vsrc("V1", "a", "gnd", 2.0).ac_phase = 90;
   b.add(ElementKind::resistor, "R1", {"a", "b"}, 1e3);
@@ -205,9 +208,10 @@ TEST_CASE("two voltage sources across the same node pair are named", "[mna]") {
   CircuitBuilder b;
   b.vsrc("V1", "a", "gnd", 1);
   b.vsrc("V2", "gnd", "a", 1);
-  CHECK_THROWS_MATCHES(MnaSystem(b.circuit), SolveError,
-                       Catch::Message("circuit cannot be solved: 'V1' and 'V2' both set the voltage "
-                                      "between nodes 'gnd' and 'a'"));
+  CHECK_THROWS_MATCHES(
+      MnaSystem(b.circuit), SolveError,
+      Catch::Message("circuit cannot be solved: 'V1' and 'V2' both set the voltage "
+                     "between nodes 'gnd' and 'a'"));
 }
 
 TEST_CASE("a loop of voltage-defining elements names every element on it", "[mna]") {

@@ -1,12 +1,12 @@
 // Both sparse LU backends against a dense LU of the same matrix (Eigen's
 // FullPivLU, a reference implementation outside this project).
 
-#include <catch2/catch.hpp>
+#include "tacet/sparse_solver.hpp"
 
 #include <Eigen/Dense>
+#include <catch2/catch.hpp>
 
 #include "is_close.hpp"
-#include "tacet/sparse_solver.hpp"
 
 using namespace tacet;
 using namespace tacet::testing;
@@ -40,10 +40,12 @@ SmallSystem from_dense(const Eigen::MatrixXcd& dense, const Eigen::MatrixXi& mas
 
 SmallSystem complex_four_by_four() {
   Eigen::MatrixXi mask(4, 4);
+  // clang-format off
   mask << 1, 1, 0, 1,
           1, 1, 1, 0,
           0, 1, 1, 1,
           1, 0, 1, 0;  // zero diagonal in the last row, as a source branch row has
+  // clang-format on
   Eigen::MatrixXcd dense = Eigen::MatrixXcd::Zero(4, 4);
   for (int r = 0; r < 4; ++r)
     for (int c = 0; c < 4; ++c)
@@ -58,36 +60,34 @@ void check_against_dense(const Eigen::VectorXcd& expected, const std::vector<cpl
     CHECK_THAT(actual[static_cast<std::size_t>(k)], IsClose(expected(k), 1e-12));
 }
 
+// b solved through `solve` by the sparse backend and by a dense LU of `dense`.
+template <typename Solve>
+void check_solve(const SmallSystem& system, SolverKind kind, const Eigen::MatrixXcd& dense,
+                 Solve solve) {
+  auto lu = make_sparse_lu(kind);
+  lu->analyse(system.pattern);
+  REQUIRE(lu->factor(system.values.data()) == FactorStatus::ok);
+  const auto b = right_hand_side();
+  auto x = b;
+  solve(*lu, x.data());
+  check_against_dense(dense.fullPivLu().solve(Eigen::Map<const Eigen::VectorXcd>(b.data(), 4)), x);
+}
+
 }  // namespace
 
 TEST_CASE("both backends solve a small complex system like a dense LU", "[solver]") {
   const auto kind = GENERATE(SolverKind::klu, SolverKind::eigen);
   INFO(to_string(kind));
   const SmallSystem system = complex_four_by_four();
-  auto lu = make_sparse_lu(kind);
-  lu->analyse(system.pattern);
-  REQUIRE(lu->factor(system.values.data()) == FactorStatus::ok);
-  const auto b = right_hand_side();
-  auto x = b;
-  const Eigen::VectorXcd expected =
-      system.dense.fullPivLu().solve(Eigen::Map<const Eigen::VectorXcd>(b.data(), 4));
-  lu->solve(x.data());
-  check_against_dense(expected, x);
+  check_solve(system, kind, system.dense, [](SparseLu& lu, cplx* x) { lu.solve(x); });
 }
 
 TEST_CASE("the transposed solve uses A^T, not the conjugate transpose", "[solver]") {
   const auto kind = GENERATE(SolverKind::klu, SolverKind::eigen);
   INFO(to_string(kind));
   const SmallSystem system = complex_four_by_four();
-  auto lu = make_sparse_lu(kind);
-  lu->analyse(system.pattern);
-  REQUIRE(lu->factor(system.values.data()) == FactorStatus::ok);
-  const auto b = right_hand_side();
-  auto x = b;
-  lu->solve_transposed(x.data());
-  const Eigen::VectorXcd expected =
-      system.dense.transpose().fullPivLu().solve(Eigen::Map<const Eigen::VectorXcd>(b.data(), 4));
-  check_against_dense(expected, x);
+  check_solve(system, kind, system.dense.transpose(),
+              [](SparseLu& lu, cplx* x) { lu.solve_transposed(x); });
 }
 
 TEST_CASE("KLU refactors new values with the old pivots while they stay good", "[solver]") {
@@ -102,7 +102,8 @@ TEST_CASE("KLU refactors new values with the old pivots while they stay good", "
   auto x = right_hand_side();
   lu->solve(x.data());
   const auto b = right_hand_side();
-  check_against_dense(system.dense.fullPivLu().solve(Eigen::Map<const Eigen::VectorXcd>(b.data(), 4)), x);
+  check_against_dense(
+      system.dense.fullPivLu().solve(Eigen::Map<const Eigen::VectorXcd>(b.data(), 4)), x);
 }
 
 TEST_CASE("KLU picks new pivots when a reused pivot collapses", "[solver]") {
@@ -129,9 +130,11 @@ TEST_CASE("a singular matrix is reported with its column", "[solver]") {
   INFO(to_string(kind));
   Eigen::MatrixXi mask = Eigen::MatrixXi::Ones(3, 3);
   Eigen::MatrixXcd dense(3, 3);
+  // clang-format off
   dense << 2.0, 1.0, 0.0,
            1.0, 3.0, 0.0,
            0.0, 1.0, 0.0;  // column 2 holds only zeros: no pivot can be found for it
+  // clang-format on
   const SmallSystem system = from_dense(dense, mask);
   auto lu = make_sparse_lu(kind);
   lu->analyse(system.pattern);
