@@ -27,11 +27,13 @@ class EigenLu final : public SparseLu {
     matrix_.resize(n_, n_);
     matrix_.setFromTriplets(entries.begin(), entries.end());
     matrix_.makeCompressed();
-    lu_.analyzePattern(matrix_);
     work_.resize(n_);
+    if (n_ == 0) return;  // nothing to factor: every call below is a no-op
+    lu_.analyzePattern(matrix_);
   }
 
   FactorStatus factor(const std::complex<double>* values) override {
+    if (n_ == 0) return FactorStatus::ok;
     ++factorizations_;
     std::copy(values, values + matrix_.nonZeros(), matrix_.valuePtr());
     lu_.factorize(matrix_);
@@ -46,12 +48,14 @@ class EigenLu final : public SparseLu {
   int singular_column() const override { return singular_column_; }
 
   void solve(std::complex<double>* rhs) override {
+    if (n_ == 0) return;
     Vector b(rhs, n_);
     work_ = lu_.solve(b);
     b = work_;
   }
 
   void solve_transposed(std::complex<double>* rhs) override {
+    if (n_ == 0) return;
     Vector b(rhs, n_);
     work_ = lu_.transpose().solve(b);
     b = work_;

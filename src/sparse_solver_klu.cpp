@@ -37,11 +37,13 @@ class KluLu final : public SparseLu {
     pattern_ = &pattern;
     col_ptr_ = pattern.col_ptr;
     row_index_ = pattern.row_index;
+    if (pattern.n == 0) return;  // nothing to factor: every call below is a no-op
     symbolic_ = klu_analyze(pattern.n, col_ptr_.data(), row_index_.data(), &common_);
     if (symbolic_ == nullptr) throw std::runtime_error("klu_analyze failed");
   }
 
   FactorStatus factor(const std::complex<double>* values) override {
+    if (pattern_->n == 0) return FactorStatus::ok;
     if (numeric_ != nullptr && refactor(values)) return FactorStatus::ok;
     return factor_fresh(values);
   }
@@ -49,10 +51,12 @@ class KluLu final : public SparseLu {
   int singular_column() const override { return singular_column_; }
 
   void solve(std::complex<double>* rhs) override {
+    if (pattern_->n == 0) return;
     klu_z_solve(symbolic_, numeric_, pattern_->n, 1, as_doubles(rhs), &common_);
   }
 
   void solve_transposed(std::complex<double>* rhs) override {
+    if (pattern_->n == 0) return;
     klu_z_tsolve(symbolic_, numeric_, pattern_->n, 1, as_doubles(rhs), 0, &common_);
   }
 

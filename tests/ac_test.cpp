@@ -201,6 +201,13 @@ TEST_CASE("the Eigen backend gives the same sweep as KLU", "[ac]") {
     CHECK_THAT(eigen.traces[0].values[k], IsClose(klu.traces[0].values[k], 1e-12));
 }
 
+TEST_CASE("a circuit with no node but gnd solves to zero on both backends", "[ac]") {
+  auto options = at_frequencies({1.0, 2.0}, {"gnd"});
+  options.solver = GENERATE(SolverKind::klu, SolverKind::eigen);
+  const auto result = run_ac(Circuit{}, options);
+  CHECK(result.traces[0].values == std::vector<cplx>{0.0, 0.0});
+}
+
 TEST_CASE("a log sweep lands on every decade and ends exactly at --to", "[ac]") {
   Sweep sweep{SweepKind::log, 1, 1e3, 10, 0, {}};
   const auto f = sweep.frequencies();
