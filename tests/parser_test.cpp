@@ -578,3 +578,53 @@ TEST_CASE("the statement quoted in a message leaves out comments and line ends",
         "  gbw\n"
         "     ^\n");
 }
+
+// ---- a lone expression (--set values) -----------------------------------------
+
+namespace {
+
+struct ExpressionOutcome {
+  std::optional<ast::Expr> expression;
+  std::string diagnostics;
+};
+
+ExpressionOutcome parse_expression_text(const std::string& text) {
+  tacet::SourceManager sources;
+  const int id = sources.add("--set R1", text);
+  tacet::Diagnostics diagnostics(sources);
+  auto expression = tacet::parse_expression(sources.file(id).text, id, diagnostics);
+  return {std::move(expression), diagnostics.render_all()};
+}
+
+}  // namespace
+
+TEST_CASE("a lone expression parses like a value in a netlist", "[parser]") {
+  const auto outcome = parse_expression_text(" 2 * rg + 1k\xCE\xA9 ");
+  INFO(outcome.diagnostics);
+  REQUIRE(outcome.expression.has_value());
+  const auto& sum = as<ast::Chain>(*outcome.expression);
+  CHECK(sum.offset == 1);
+  CHECK(sum.rest.at(0).op == '+');
+  CHECK(as<ast::Quantity>(sum.rest[0].operand).suffix == "k\xCE\xA9");
+  CHECK(as<ast::Quantity>(*parse_expression_text("12k").expression).digits == "12");
+}
+
+TEST_CASE("a lone expression must be the whole text", "[parser]") {
+  CHECK(parse_expression_text("12k 5").diagnostics ==
+        "--set R1:1:5: error: unexpected '5' after '12k'\n"
+        "12k 5\n"
+        "    ^\n");
+  CHECK(parse_expression_text("").diagnostics ==
+        "--set R1:1:1: error: expected a value\n"
+        "\n"
+        "^\n");
+  CHECK(parse_expression_text("=3").diagnostics ==
+        "--set R1:1:1: error: expected a value\n"
+        "=3\n"
+        "^\n");
+  CHECK(parse_expression_text("1.2.3").diagnostics ==
+        "--set R1:1:1: error: malformed number '1.2.3'\n"
+        "1.2.3\n"
+        "^~~~~\n");
+  CHECK_FALSE(parse_expression_text("(1 +").expression.has_value());
+}

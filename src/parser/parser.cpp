@@ -1,6 +1,7 @@
 // parse_netlist: runs the X3 grammar of parser_def.hpp one statement at a time,
 // turns its failures into diagnostics, and resumes at the next statement so one
-// run reports several errors. The only translation unit that instantiates X3.
+// run reports several errors. parse_expression: the same for a lone expression
+// (a --set value). The only translation unit that instantiates X3.
 #include "tacet/parser.hpp"
 
 #include <algorithm>
@@ -65,9 +66,9 @@ std::uint32_t token_length(iterator_type at, iterator_type end) {
   return static_cast<std::uint32_t>(stop - at);
 }
 
-class StatementParser {
+class TextParser {
  public:
-  StatementParser(std::string_view text, int file_id, Diagnostics& diagnostics)
+  TextParser(std::string_view text, int file_id, Diagnostics& diagnostics)
       : file_id_(file_id), diagnostics_(diagnostics) {
     state_.begin = text.data();
     state_.end = text.data() + text.size();
@@ -93,6 +94,25 @@ class StatementParser {
     }
     if (errors_ > 0) return std::nullopt;
     return netlist;
+  }
+
+  /// The whole text as one expression, nothing before or after it.
+  std::optional<ast::Expr> run_expression() {
+    iterator_type at = state_.begin;
+    state_.statement_start = at;
+    ast::Expr expression;
+    auto const grammar = x3::with<parser::state_tag>(
+        state_)[x3::skip(parser::skipper)[parser::lone_expression]];
+    try {
+      if (x3::parse(at, state_.end, grammar, expression)) return expression;
+      const iterator_type found = skip_blanks_and_comments(at, state_.end);
+      report(found, token_length(found, state_.end), Severity::error, "expected a value", {});
+    } catch (const parser::expectation_failure& failure) {
+      report_expectation(failure);
+    } catch (const parser::syntax_error& error) {
+      report(error.where, error.length, Severity::error, error.message, error.hint);
+    }
+    return std::nullopt;
   }
 
  private:
@@ -203,7 +223,12 @@ class StatementParser {
 
 std::optional<ast::Netlist> parse_netlist(std::string_view text, int file_id,
                                           Diagnostics& diagnostics) {
-  return StatementParser(text, file_id, diagnostics).run();
+  return TextParser(text, file_id, diagnostics).run();
+}
+
+std::optional<ast::Expr> parse_expression(std::string_view text, int file_id,
+                                          Diagnostics& diagnostics) {
+  return TextParser(text, file_id, diagnostics).run_expression();
 }
 
 const std::vector<std::string>& statement_keywords() {

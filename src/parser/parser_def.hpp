@@ -426,6 +426,9 @@ BOOST_SPIRIT_DEFINE(identifier, string, node, numeral, digits, suffix, word, qua
 
 /// One statement and the end of its line: what parse_netlist runs per statement.
 inline auto const statement_line = statement > end_of_statement;
+/// A value given on its own (a --set value): an expression and nothing after it.
+inline auto const lone_expression =
+    expression > (x3::rule<token_id>{"end_of_statement"} = x3::eoi);
 
 // ---- error handling -----------------------------------------------------------------
 
