@@ -203,7 +203,7 @@ void check_solvable(const Circuit& circuit, AnalysisKind kind) {
 MnaSystem::MnaSystem(const Circuit& circuit) : circuit_(&circuit) {
   check_solvable(circuit, AnalysisKind::ac);
   number_unknowns();
-  build_pattern(collect_terms());
+  build_pattern();
 }
 
 void MnaSystem::number_unknowns() {
@@ -228,11 +228,14 @@ void MnaSystem::number_unknowns() {
   pattern_.n = next;
 }
 
-std::vector<MnaSystem::Term> MnaSystem::collect_terms() const {
-  std::vector<Term> terms;
-  terms.reserve(8 * circuit_->elements.size());
+// Calls visit(row, col, coefficients) for every stamp entry off gnd, in
+// element order. Run twice by build_pattern (count, then fill), so no list of
+// all terms is ever held: on a large circuit that list costs more in page
+// faults than the stamps cost to compute.
+template <typename Visit>
+void MnaSystem::for_each_term(Visit&& visit) const {
   auto add = [&](int row, int col, Coefficients c) {
-    if (row >= 0 && col >= 0) terms.push_back({row, col, c});
+    if (row >= 0 && col >= 0) visit(row, col, c);
   };
   auto admittance = [&](int a, int b, Coefficients y) {
     const Coefficients minus{-y.c0, -y.c1, -y.c2};
@@ -287,41 +290,52 @@ std::vector<MnaSystem::Term> MnaSystem::collect_terms() const {
       }
     }
   }
-  return terms;
 }
 
 // Terms are bucketed by column (a counting sort, linear in their number),
-// each column sorted by row, and terms on the same entry summed into one slot.
-void MnaSystem::build_pattern(const std::vector<Term>& terms) {
+// each column sorted by row, and terms on the same entry summed into one slot,
+// compacting the buckets in place into the final CSC arrays.
+void MnaSystem::build_pattern() {
   const auto n = static_cast<std::size_t>(pattern_.n);
-  std::vector<std::size_t> bucket_start(n + 1, 0);
-  for (const Term& t : terms) ++bucket_start[static_cast<std::size_t>(t.col) + 1];
-  std::partial_sum(bucket_start.begin(), bucket_start.end(), bucket_start.begin());
-  std::vector<std::size_t> by_column(terms.size());
-  std::vector<std::size_t> fill(bucket_start.begin(), bucket_start.end() - 1);
-  for (std::size_t k = 0; k < terms.size(); ++k)
-    by_column[fill[static_cast<std::size_t>(terms[k].col)]++] = k;
-
-  pattern_.col_ptr.assign(n + 1, 0);
-  pattern_.row_index.clear();
-  coefficients_.clear();
+  auto& col_ptr = pattern_.col_ptr;
+  col_ptr.assign(n + 1, 0);
+  for_each_term([&](int, int col, const Coefficients&) { ++col_ptr[col + 1]; });
+  std::partial_sum(col_ptr.begin(), col_ptr.end(), col_ptr.begin());
+  std::vector<int> rows(static_cast<std::size_t>(col_ptr[n]));
+  std::vector<Coefficients> coefficients(rows.size());
+  {
+    std::vector<int> fill(col_ptr.begin(), col_ptr.end() - 1);
+    for_each_term([&](int row, int col, const Coefficients& c) {
+      const auto k = static_cast<std::size_t>(fill[col]++);
+      rows[k] = row;
+      coefficients[k] = c;
+    });
+  }
+  std::vector<std::pair<int, Coefficients>> column;  // one bucket, sorted by row
+  std::size_t out = 0, begin = 0;
   for (std::size_t col = 0; col < n; ++col) {
-    const auto first = by_column.begin() + static_cast<std::ptrdiff_t>(bucket_start[col]);
-    const auto last = by_column.begin() + static_cast<std::ptrdiff_t>(bucket_start[col + 1]);
-    std::sort(first, last,
-              [&](std::size_t a, std::size_t b) { return terms[a].row < terms[b].row; });
-    for (auto it = first; it != last; ++it) {
-      const Term& t = terms[*it];
-      if (it != first && terms[*(it - 1)].row == t.row) {
-        auto& c = coefficients_.back();
-        c.c0 += t.c.c0, c.c1 += t.c.c1, c.c2 += t.c.c2;
+    const auto end = static_cast<std::size_t>(col_ptr[col + 1]);
+    column.clear();
+    for (std::size_t k = begin; k < end; ++k) column.emplace_back(rows[k], coefficients[k]);
+    std::sort(column.begin(), column.end(),
+              [](const auto& a, const auto& b) { return a.first < b.first; });
+    col_ptr[col] = static_cast<int>(out);
+    for (std::size_t k = 0; k < column.size(); ++k) {
+      if (k > 0 && column[k].first == column[k - 1].first) {
+        auto& c = coefficients[out - 1];
+        c.c0 += column[k].second.c0, c.c1 += column[k].second.c1, c.c2 += column[k].second.c2;
         continue;
       }
-      pattern_.row_index.push_back(t.row);
-      coefficients_.push_back(t.c);
+      rows[out] = column[k].first;
+      coefficients[out++] = column[k].second;
     }
-    pattern_.col_ptr[col + 1] = static_cast<int>(pattern_.row_index.size());
+    begin = end;
   }
+  col_ptr[n] = static_cast<int>(out);
+  rows.resize(out);
+  coefficients.resize(out);
+  pattern_.row_index = std::move(rows);
+  coefficients_ = std::move(coefficients);
 }
 
 // --- per-point work ----------------------------------------------------------

@@ -74,13 +74,10 @@ class MnaSystem {
   struct Coefficients {
     double c0, c1, c2;
   };
-  struct Term {
-    int row, col;
-    Coefficients c;
-  };
   void number_unknowns();
-  std::vector<Term> collect_terms() const;
-  void build_pattern(const std::vector<Term>& terms);
+  template <typename Visit>
+  void for_each_term(Visit&& visit) const;
+  void build_pattern();
 
   const Circuit* circuit_;
   CscPattern pattern_;
