@@ -4,6 +4,8 @@
 #include <algorithm>
 #include <cctype>
 #include <numeric>
+#include <string>
+#include <vector>
 
 namespace tacet {
 
@@ -96,22 +98,35 @@ std::string Diagnostics::render_all() const {
                          [this](std::string all, const Diagnostic& d) { return all + render(d); });
 }
 
-int edit_distance(std::string_view a, std::string_view b) {
-  // One row of the Levenshtein table at a time: row[j] is the distance between
-  // the first i characters of a and the first j of b.
+namespace {
+
+// Rows i-2, i-1 and i of the edit table: row[j] is the distance between the
+// first i characters of a and the first j of b. With `swaps`, exchanging two
+// neighbouring characters is one edit (the optimal-string-alignment form of
+// the Damerau-Levenshtein distance).
+int edit_table(std::string_view a, std::string_view b, bool swaps) {
+  std::vector<int> before(b.size() + 1);
+  std::vector<int> previous(b.size() + 1);
   std::vector<int> row(b.size() + 1);
   std::iota(row.begin(), row.end(), 0);
   for (std::size_t i = 1; i <= a.size(); ++i) {
-    int diagonal = row[0];
+    before.swap(previous);
+    previous.swap(row);
     row[0] = static_cast<int>(i);
     for (std::size_t j = 1; j <= b.size(); ++j) {
-      const int substitution = diagonal + (a[i - 1] == b[j - 1] ? 0 : 1);
-      diagonal = row[j];
-      row[j] = std::min({row[j] + 1, row[j - 1] + 1, substitution});
+      const int substitution = previous[j - 1] + (a[i - 1] == b[j - 1] ? 0 : 1);
+      row[j] = std::min({previous[j] + 1, row[j - 1] + 1, substitution});
+      if (swaps && i > 1 && j > 1 && a[i - 1] == b[j - 2] && a[i - 2] == b[j - 1]) {
+        row[j] = std::min(row[j], before[j - 2] + 1);
+      }
     }
   }
   return row[b.size()];
 }
+
+}  // namespace
+
+int edit_distance(std::string_view a, std::string_view b) { return edit_table(a, b, false); }
 
 std::string nearest_word(std::string_view word, const std::vector<std::string>& candidates) {
   const std::string folded = lower(word);
@@ -122,7 +137,8 @@ std::string nearest_word(std::string_view word, const std::vector<std::string>& 
   std::string best;
   int best_distance = limit + 1;
   for (const auto& candidate : candidates) {
-    const int distance = edit_distance(word, candidate);
+    // A swap of neighbouring letters ('rse' for 'res') is one slip, not two.
+    const int distance = edit_table(word, candidate, true);
     if (distance < best_distance) {
       best = candidate;
       best_distance = distance;

@@ -123,3 +123,13 @@ TEST_CASE("a difference of case only is the nearest of all", "[diagnostics]") {
   CHECK(tacet::nearest_word("RES", {"rex", "res"}) == "res");
   CHECK(tacet::nearest_word("Opamp", {"opamp", "opam"}) == "opamp");
 }
+
+TEST_CASE("a hint counts a swap of neighbouring letters as one edit", "[diagnostics]") {
+  // Transposition of two adjacent letters is one of the four commonest single
+  // typing errors (F. J. Damerau, 1964, CACM 7(3); from memory), so 'rse'
+  // finds 'res' although their Levenshtein distance is 2.
+  CHECK(tacet::edit_distance("rse", "res") == 2);
+  CHECK(tacet::nearest_word("rse", {"res", "cap"}) == "res");
+  CHECK(tacet::nearest_word("rgian", {"rgain", "rf"}) == "rgain");
+  CHECK(tacet::nearest_word("sre", {"res"}).empty());  // two swaps away
+}
