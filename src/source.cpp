@@ -19,9 +19,15 @@ std::size_t clamp_offset(const std::string& text, std::uint32_t offset) {
   return std::min<std::size_t>(offset, text.size());
 }
 
+bool starts_with_byte_order_mark(const std::string& text) {
+  return text.compare(0, 3, "\xEF\xBB\xBF") == 0;
+}
+
+// A byte order mark is invisible in an editor, so the first line starts after it.
 std::size_t line_start(const std::string& text, std::size_t offset) {
   const auto newline = offset == 0 ? std::string::npos : text.rfind('\n', offset - 1);
-  return newline == std::string::npos ? 0 : newline + 1;
+  if (newline != std::string::npos) return newline + 1;
+  return starts_with_byte_order_mark(text) && offset >= 3 ? 3 : 0;
 }
 
 }  // namespace

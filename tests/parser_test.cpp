@@ -336,6 +336,13 @@ TEST_CASE("CRLF line ends are tolerated", "[parser]") {
   CHECK(instance(n, 1).offset == 13);
 }
 
+TEST_CASE("a UTF-8 byte order mark before the first statement is ignored", "[parser]") {
+  // EF BB BF is U+FEFF encoded in UTF-8 (RFC 3629, section 6).
+  const auto n = parse_good("\xEF\xBB\xBFtitle \"x\"\n");
+  REQUIRE(n.statements.size() == 1);
+  CHECK(as<ast::Title>(n.statements[0]).offset == 3);
+}
+
 TEST_CASE("an empty text is an empty netlist", "[parser]") {
   CHECK(parse_good("").statements.empty());
   CHECK(parse_good("\n# only a comment\n\n").statements.empty());

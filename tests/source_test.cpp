@@ -94,3 +94,14 @@ TEST_CASE("the disk reader reads a file byte for byte and reports a missing one"
   CHECK_FALSE(reader.read((folder / "absent.tacet").string()).has_value());
   std::filesystem::remove_all(folder);
 }
+
+TEST_CASE("a byte order mark is not part of the first line", "[source]") {
+  // EF BB BF is U+FEFF, the byte order mark, in UTF-8 (RFC 3629, section 6);
+  // editors do not show it, so columns start after it.
+  SourceManager sources;
+  const int id = sources.add("a.tacet", "\xEF\xBB\xBFres R1\nx\n");
+  CHECK(sources.line_column({id, 3}).column == 1);
+  CHECK(sources.line_column({id, 7}).column == 5);
+  CHECK(sources.line_text({id, 7}) == "res R1");
+  CHECK(sources.line_column({id, 10}).line == 2);
+}

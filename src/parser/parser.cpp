@@ -66,6 +66,16 @@ std::uint32_t token_length(iterator_type at, iterator_type end) {
   return static_cast<std::uint32_t>(stop - at);
 }
 
+/// Some editors start a UTF-8 file with the byte order mark EF BB BF; it is
+/// not part of the first statement.
+iterator_type after_byte_order_mark(iterator_type begin, iterator_type end) {
+  constexpr std::string_view mark = "\xEF\xBB\xBF";
+  if (std::string_view(begin, static_cast<std::size_t>(end - begin)).substr(0, 3) == mark) {
+    return begin + 3;
+  }
+  return begin;
+}
+
 class TextParser {
  public:
   TextParser(std::string_view text, int file_id, Diagnostics& diagnostics)
@@ -76,7 +86,7 @@ class TextParser {
 
   std::optional<ast::Netlist> run() {
     ast::Netlist netlist;
-    iterator_type at = state_.begin;
+    iterator_type at = after_byte_order_mark(state_.begin, state_.end);
     while (skip_blank_lines(at)) {
       if (errors_ == max_errors) {
         report(at, 1, Severity::note, "too many errors; stopping here", {});
