@@ -192,6 +192,18 @@ TEST_CASE("an island of several nodes fed by a current source names them all", "
                                       "to gnd (only through op-amp inputs or current sources)"));
 }
 
+TEST_CASE("a vccs output conducts only when it is wired across its own control pair", "[mna]") {
+  CircuitBuilder b;
+  b.vsrc("V1", "in", "gnd", 1);
+  b.add(ElementKind::resistor, "R1", {"in", "gnd"}, 1e3);
+  b.add(ElementKind::vccs, "G1", {"o", "gnd", "in", "gnd"}, 1e-3);  // a current source into o
+  CHECK_THROWS_MATCHES(MnaSystem(b.circuit), SolveError,
+                       Catch::Message("circuit cannot be solved: node 'o' has no connection to gnd "
+                                      "(only through op-amp inputs or current sources)"));
+  b.add(ElementKind::vccs, "G2", {"o", "gnd", "o", "gnd"}, 1e-3);  // a 1 mS conductance
+  CHECK_NOTHROW(MnaSystem(b.circuit));
+}
+
 TEST_CASE("at DC a node reached only through a capacitor has no path to gnd", "[mna]") {
   CircuitBuilder b;
   b.vsrc("V1", "in", "gnd", 1);

@@ -37,7 +37,9 @@ enum class AnalysisKind { ac, dc };
 
 /// Throws SolveError when the circuit has no unique solution by its topology:
 /// (a) nodes with no path to gnd through conducting elements (the message names
-/// them), (b) a loop of voltage-defining branches (vsource, vcvs output, op-amp
+/// them; R, C (not at DC), L, vsource, vcvs output, op-amp output to gnd, rin;
+/// a vccs output only when wired across its own control pair, since a
+/// current source fixes no voltage), (b) a loop of voltage-defining branches (vsource, vcvs output, op-amp
 /// output with rout = 0; at DC also inductors), naming the elements of the loop.
 void check_solvable(const Circuit& circuit, AnalysisKind kind);
 
