@@ -88,7 +88,8 @@ std::vector<double> Sweep::frequencies() const {
 }
 
 AcResult run_ac(const Circuit& circuit, const AcOptions& options) {
-  if (auto problem = options.sweep.validate(); !problem.empty()) throw InputError(problem);
+  if (auto problem = options.sweep.validate(); !problem.empty())
+    throw InputError("error: " + problem);
   AcResult result;
   for (const auto& text : options.probes)
     result.traces.push_back({resolve_probe(text, circuit), {}});
@@ -112,7 +113,7 @@ AcResult run_ac(const Circuit& circuit, const AcOptions& options) {
     if (lu->factor(values.data()) == FactorStatus::singular) {
       const int column = lu->singular_column();
       throw SolveError(fmt::format(
-          "circuit cannot be solved at {}Hz: {}", si(f),
+          "error: circuit cannot be solved at {}Hz: {}", si(f),
           column >= 0 ? fmt::format("the equations do not determine {} (singular matrix)",
                                     mna.unknown_name(column))
                       : std::string("the matrix is singular")));
@@ -122,8 +123,9 @@ AcResult run_ac(const Circuit& circuit, const AcOptions& options) {
     for (auto& trace : result.traces) {
       const auto value = probe_value(trace.probe, mna, s, x.data(), scratch);
       if (!std::isfinite(value.real()) || !std::isfinite(value.imag()))
-        throw SolveError(fmt::format("circuit cannot be solved at {}Hz: probe '{}' is not finite",
-                                     si(f), trace.probe.text));
+        throw SolveError(
+            fmt::format("error: circuit cannot be solved at {}Hz: probe '{}' is not finite", si(f),
+                        trace.probe.text));
       trace.values[point] = value;
     }
   }

@@ -96,14 +96,16 @@ void check_connected_to_gnd(const Circuit& circuit, AnalysisKind kind) {
   const bool one = floating.size() == 1;
   const std::string who = fmt::format("{} {}", one ? "node" : "nodes", quoted_list(floating));
   if (kind == AnalysisKind::ac)
-    throw SolveError(fmt::format(
-        "circuit cannot be solved: {} {} no connection to gnd (only through op-amp inputs or "
-        "current sources)",
-        who, one ? "has" : "have"));
-  throw SolveError(fmt::format(
-      "circuit cannot be solved at DC: {} {} no DC path to gnd (only through capacitors, op-amp "
-      "inputs or current sources)",
-      who, one ? "has" : "have"));
+    throw SolveError(
+        fmt::format("error: circuit cannot be solved: {} {} no connection to gnd (only through "
+                    "op-amp inputs or "
+                    "current sources)",
+                    who, one ? "has" : "have"));
+  throw SolveError(
+      fmt::format("error: circuit cannot be solved at DC: {} {} no DC path to gnd (only through "
+                  "capacitors, op-amp "
+                  "inputs or current sources)",
+                  who, one ? "has" : "have"));
 }
 
 struct VoltageBranch {
@@ -158,23 +160,24 @@ std::vector<std::size_t> forest_path(const std::vector<std::vector<VoltageBranch
   const auto& closer = circuit.elements[closing.element].name;
   if (closing.a == closing.b)
     throw SolveError(
-        fmt::format("circuit cannot be solved{}: '{}' sets a voltage between node "
+        fmt::format("error: circuit cannot be solved{}: '{}' sets a voltage between node "
                     "'{}' and itself",
                     where, closer, circuit.node_names[closing.a]));
   if (path.size() == 1)
-    throw SolveError(fmt::format(
-        "circuit cannot be solved{}: '{}' and '{}' both set the voltage between nodes '{}' and "
-        "'{}'",
-        where, circuit.elements[path[0]].name, closer, circuit.node_names[closing.a],
-        circuit.node_names[closing.b]));
+    throw SolveError(
+        fmt::format("error: circuit cannot be solved{}: '{}' and '{}' both set the voltage between "
+                    "nodes '{}' and "
+                    "'{}'",
+                    where, circuit.elements[path[0]].name, closer, circuit.node_names[closing.a],
+                    circuit.node_names[closing.b]));
   std::vector<std::string> names;
   // The path runs from the closing branch's second node back to its first, so
   // path then closer reads once around the loop.
   for (const std::size_t element : path) names.push_back(circuit.elements[element].name);
   names.push_back(closer);
   throw SolveError(fmt::format(
-      "circuit cannot be solved{}: {} form a loop of elements that each set a voltage{}", where,
-      quoted_list(names), kind == AnalysisKind::dc ? " (inductors are shorts at DC)" : ""));
+      "error: circuit cannot be solved{}: {} form a loop of elements that each set a voltage{}",
+      where, quoted_list(names), kind == AnalysisKind::dc ? " (inductors are shorts at DC)" : ""));
 }
 
 void check_no_voltage_loop(const Circuit& circuit, AnalysisKind kind) {

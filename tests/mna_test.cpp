@@ -177,9 +177,10 @@ TEST_CASE("a node reached only through op-amp inputs is reported as floating", "
   b.vsrc("V1", "in", "gnd", 1);
   b.opamp("U1", "x", "out", "out", single_pole(1e6, 1e5));
   b.add(ElementKind::resistor, "R1", {"in", "out"}, 1e3);
-  CHECK_THROWS_MATCHES(MnaSystem(b.circuit), SolveError,
-                       Catch::Message("circuit cannot be solved: node 'x' has no connection to gnd "
-                                      "(only through op-amp inputs or current sources)"));
+  CHECK_THROWS_MATCHES(
+      MnaSystem(b.circuit), SolveError,
+      Catch::Message("error: circuit cannot be solved: node 'x' has no connection to gnd "
+                     "(only through op-amp inputs or current sources)"));
 }
 
 TEST_CASE("an island of several nodes fed by a current source names them all", "[mna]") {
@@ -187,9 +188,10 @@ TEST_CASE("an island of several nodes fed by a current source names them all", "
   b.isrc("I1", "gnd", "p", 1e-3);
   b.add(ElementKind::resistor, "R1", {"p", "q"}, 1e3);
   b.add(ElementKind::capacitor, "C1", {"q", "p"}, 1e-9);
-  CHECK_THROWS_MATCHES(MnaSystem(b.circuit), SolveError,
-                       Catch::Message("circuit cannot be solved: nodes 'p', 'q' have no connection "
-                                      "to gnd (only through op-amp inputs or current sources)"));
+  CHECK_THROWS_MATCHES(
+      MnaSystem(b.circuit), SolveError,
+      Catch::Message("error: circuit cannot be solved: nodes 'p', 'q' have no connection "
+                     "to gnd (only through op-amp inputs or current sources)"));
 }
 
 TEST_CASE("a vccs output conducts only when it is wired across its own control pair", "[mna]") {
@@ -197,9 +199,10 @@ TEST_CASE("a vccs output conducts only when it is wired across its own control p
   b.vsrc("V1", "in", "gnd", 1);
   b.add(ElementKind::resistor, "R1", {"in", "gnd"}, 1e3);
   b.add(ElementKind::vccs, "G1", {"o", "gnd", "in", "gnd"}, 1e-3);  // a current source into o
-  CHECK_THROWS_MATCHES(MnaSystem(b.circuit), SolveError,
-                       Catch::Message("circuit cannot be solved: node 'o' has no connection to gnd "
-                                      "(only through op-amp inputs or current sources)"));
+  CHECK_THROWS_MATCHES(
+      MnaSystem(b.circuit), SolveError,
+      Catch::Message("error: circuit cannot be solved: node 'o' has no connection to gnd "
+                     "(only through op-amp inputs or current sources)"));
   b.add(ElementKind::vccs, "G2", {"o", "gnd", "o", "gnd"}, 1e-3);  // a 1 mS conductance
   CHECK_NOTHROW(MnaSystem(b.circuit));
 }
@@ -210,10 +213,11 @@ TEST_CASE("at DC a node reached only through a capacitor has no path to gnd", "[
   b.add(ElementKind::capacitor, "C1", {"in", "x"}, 1e-9);
   b.add(ElementKind::capacitor, "C2", {"x", "gnd"}, 1e-9);
   CHECK_NOTHROW(check_solvable(b.circuit, AnalysisKind::ac));
-  CHECK_THROWS_MATCHES(check_solvable(b.circuit, AnalysisKind::dc), SolveError,
-                       Catch::Message("circuit cannot be solved at DC: node 'x' has no DC path to "
-                                      "gnd (only through capacitors, op-amp inputs or current "
-                                      "sources)"));
+  CHECK_THROWS_MATCHES(
+      check_solvable(b.circuit, AnalysisKind::dc), SolveError,
+      Catch::Message("error: circuit cannot be solved at DC: node 'x' has no DC path to "
+                     "gnd (only through capacitors, op-amp inputs or current "
+                     "sources)"));
 }
 
 TEST_CASE("two voltage sources across the same node pair are named", "[mna]") {
@@ -222,7 +226,7 @@ TEST_CASE("two voltage sources across the same node pair are named", "[mna]") {
   b.vsrc("V2", "gnd", "a", 1);
   CHECK_THROWS_MATCHES(
       MnaSystem(b.circuit), SolveError,
-      Catch::Message("circuit cannot be solved: 'V1' and 'V2' both set the voltage "
+      Catch::Message("error: circuit cannot be solved: 'V1' and 'V2' both set the voltage "
                      "between nodes 'gnd' and 'a'"));
 }
 
@@ -232,9 +236,10 @@ TEST_CASE("a loop of voltage-defining elements names every element on it", "[mna
   b.add(ElementKind::resistor, "R0", {"a", "b"}, 1e3);  // not part of the loop
   b.add(ElementKind::vcvs, "E1", {"c", "a", "b", "gnd"}, 2.0);
   b.opamp("U1", "b", "c", "c", single_pole(1e6, 1e5));  // output c to gnd closes the loop
-  CHECK_THROWS_MATCHES(MnaSystem(b.circuit), SolveError,
-                       Catch::Message("circuit cannot be solved: 'V1', 'E1', 'U1' form a loop of "
-                                      "elements that each set a voltage"));
+  CHECK_THROWS_MATCHES(
+      MnaSystem(b.circuit), SolveError,
+      Catch::Message("error: circuit cannot be solved: 'V1', 'E1', 'U1' form a loop of "
+                     "elements that each set a voltage"));
 }
 
 TEST_CASE("an op amp with rout does not close a voltage loop", "[mna]") {
@@ -251,16 +256,18 @@ TEST_CASE("inductors close voltage loops at DC only", "[mna]") {
   b.vsrc("V1", "a", "gnd", 1);
   b.add(ElementKind::inductor, "L1", {"a", "gnd"}, 1e-3);
   CHECK_NOTHROW(check_solvable(b.circuit, AnalysisKind::ac));
-  CHECK_THROWS_MATCHES(check_solvable(b.circuit, AnalysisKind::dc), SolveError,
-                       Catch::Message("circuit cannot be solved at DC: 'V1' and 'L1' both set the "
-                                      "voltage between nodes 'a' and 'gnd'"));
+  CHECK_THROWS_MATCHES(
+      check_solvable(b.circuit, AnalysisKind::dc), SolveError,
+      Catch::Message("error: circuit cannot be solved at DC: 'V1' and 'L1' both set the "
+                     "voltage between nodes 'a' and 'gnd'"));
 }
 
 TEST_CASE("a source with both terminals on one node is reported", "[mna]") {
   CircuitBuilder b;
   b.vsrc("V1", "a", "a", 1);
   b.add(ElementKind::resistor, "R1", {"a", "gnd"}, 1e3);
-  CHECK_THROWS_MATCHES(MnaSystem(b.circuit), SolveError,
-                       Catch::Message("circuit cannot be solved: 'V1' sets a voltage between node "
-                                      "'a' and itself"));
+  CHECK_THROWS_MATCHES(
+      MnaSystem(b.circuit), SolveError,
+      Catch::Message("error: circuit cannot be solved: 'V1' sets a voltage between node "
+                     "'a' and itself"));
 }
