@@ -9,6 +9,7 @@
 #include "is_close.hpp"
 #include "reference_circuits.hpp"
 #include "tacet/errors.hpp"
+#include "tacet/mna.hpp"
 
 using namespace tacet;
 using namespace tacet::testing;
@@ -274,4 +275,46 @@ TEST_CASE("a numerically singular circuit names the unknown and the frequency", 
       run_ac(b.circuit, at_frequencies({1e3}, {"a"})), SolveError,
       Catch::Message("error: circuit cannot be solved at 1kHz: the equations do not "
                      "determine node a (singular matrix)"));
+}
+
+TEST_CASE("hierarchical node and element names are probed as plain names", "[ac]") {
+  CircuitBuilder b;
+  b.vsrc("Vin", "in", "gnd", 1.0);
+  b.add(ElementKind::resistor, "F1.R1", {"in", "F1.x"}, 1e3);
+  b.add(ElementKind::resistor, "F1.R2", {"F1.x", "gnd"}, 3e3);
+  const auto result = run_ac(b.circuit, at_frequencies({1.0}, {"F1.x", "i(F1.R1)"}));
+  CHECK_THAT(result.traces[0].values[0], IsClose(0.75, 1e-12));  // divider 3k/(1k + 3k)
+  CHECK_THAT(result.traces[1].values[0], IsClose(0.25e-3, 1e-12));
+}
+
+TEST_CASE("a probe's functional, solved transposed, gives the probe's value", "[ac]") {
+  // value = c^T x with A x = b equals (A^-T c)^T b: the adjoint identity the
+  // noise analysis rests on (any linear algebra text).
+  const SallenKey filter{10e3, 22e3, 47e-9, 4.7e-9};
+  const Circuit circuit = filter.circuit();
+  const MnaSystem mna(circuit);
+  const cplx s = jw(700);
+  std::vector<cplx> values(static_cast<std::size_t>(mna.pattern().nonzeros()));
+  std::vector<cplx> b(static_cast<std::size_t>(mna.size())), adjoint(b.size());
+  mna.assemble(s, values.data());
+  mna.excitation(b.data());
+  auto lu = make_sparse_lu();
+  lu->analyse(mna.pattern());
+  REQUIRE(lu->factor(values.data()) == FactorStatus::ok);
+  for (const char* text : {"out", "i(C1)", "a,b"}) {
+    INFO(text);
+    const Probe probe = resolve_probe(text, circuit);
+    std::vector<ProbeTerm> terms;
+    const cplx constant = probe_functional(probe, mna, s, terms);
+    std::fill(adjoint.begin(), adjoint.end(), cplx{});
+    for (const auto& t : terms) adjoint[static_cast<std::size_t>(t.unknown)] += t.coefficient;
+    lu->solve_transposed(adjoint.data());
+    cplx through_adjoint = constant;
+    for (std::size_t k = 0; k < b.size(); ++k) through_adjoint += adjoint[k] * b[k];
+    std::vector<cplx> x = b;
+    lu->solve(x.data());
+    CHECK_THAT(through_adjoint, IsClose(probe_value(probe, mna, s, x.data(), terms), 1e-12));
+  }
+  CHECK_THAT(run_ac(circuit, at_frequencies({700.0}, {"out"})).traces[0].values[0],
+             IsClose(filter.h(700), 1e-9));
 }
