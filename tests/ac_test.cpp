@@ -259,6 +259,9 @@ TEST_CASE("run_ac rejects an unknown probe with a hint, before any solve", "[ac]
       run_ac(rc_lowpass(1, 1), at_frequencies({1.0}, {"oit"})), InputError,
       Catch::Message("error: unknown node 'oit' in probe 'oit'\nhint: did you mean 'out'?"));
   CHECK_THROWS_MATCHES(
+      run_ac(rc_lowpass(1, 1), at_frequencies({1.0}, {"otu"})), InputError,
+      Catch::Message("error: unknown node 'otu' in probe 'otu'\nhint: did you mean 'out'?"));
+  CHECK_THROWS_MATCHES(
       run_ac(rc_lowpass(1, 1), at_frequencies({1.0}, {"i(R2)"})), InputError,
       Catch::Message("error: unknown element 'R2' in probe 'i(R2)'\nhint: did you mean 'R1'?"));
   CHECK_THROWS_MATCHES(run_ac(rc_lowpass(1, 1), at_frequencies({1.0}, {"out,zzzzzz"})), InputError,
