@@ -144,6 +144,12 @@ std::string nearest_word(std::string_view word, const std::vector<std::string>& 
       best_distance = distance;
     }
   }
+  if (!best.empty()) return best;
+  // A long spelling of a short keyword ('resistor' for 'res', 'capacitor' for 'cap').
+  for (const auto& candidate : candidates)
+    if (candidate.size() >= 3 && folded.size() > candidate.size() &&
+        folded.compare(0, candidate.size(), lower(candidate)) == 0)
+      return candidate;
   return best;
 }
 

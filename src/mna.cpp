@@ -77,8 +77,11 @@ NodePairs conducting_pairs(const Circuit& circuit, const Element& e, AnalysisKin
 }
 
 std::string quoted_list(const std::vector<std::string>& names) {
+  constexpr std::size_t kShown = 12;
   std::string out;
-  for (const auto& name : names) out += (out.empty() ? "'" : ", '") + name + "'";
+  for (std::size_t i = 0; i < names.size() && i < kShown; ++i)
+    out += (out.empty() ? "'" : ", '") + names[i] + "'";
+  if (names.size() > kShown) out += fmt::format(" and {} more", names.size() - kShown);
   return out;
 }
 
@@ -96,16 +99,15 @@ void check_connected_to_gnd(const Circuit& circuit, AnalysisKind kind) {
   const bool one = floating.size() == 1;
   const std::string who = fmt::format("{} {}", one ? "node" : "nodes", quoted_list(floating));
   if (kind == AnalysisKind::ac)
-    throw SolveError(
-        fmt::format("error: circuit cannot be solved: {} {} no connection to gnd (only through "
-                    "op-amp inputs or "
-                    "current sources)",
-                    who, one ? "has" : "have"));
-  throw SolveError(
-      fmt::format("error: circuit cannot be solved at DC: {} {} no DC path to gnd (only through "
-                  "capacitors, op-amp "
-                  "inputs or current sources)",
-                  who, one ? "has" : "have"));
+    throw SolveError(fmt::format(
+        "error: circuit cannot be solved: {} {} no connection to gnd\n"
+        "hint: every node needs a path to gnd through resistors, capacitors, inductors or "
+        "voltage sources; op-amp inputs and current sources are no such path\n",
+        who, one ? "has" : "have"));
+  throw SolveError(fmt::format(
+      "error: circuit cannot be solved at DC: {} {} no DC path to gnd\n"
+      "hint: at DC capacitors are open; give the node a resistor to a biased node or to gnd\n",
+      who, one ? "has" : "have"));
 }
 
 struct VoltageBranch {

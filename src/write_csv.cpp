@@ -22,13 +22,19 @@ std::string number(double v) { return std::isfinite(v) ? format_exact(v) : std::
 std::string ac_csv(const AcResult& result) {
   std::string out = "f_Hz";
   for (const auto& trace : result.traces)
-    for (const char* part : {"_re", "_im", "_dB", "_deg"}) out += "," + quoted(trace.probe.text + part);
+    for (const char* part : {"_re", "_im", "_dB", "_deg"}) {
+      out += ',';
+      out += quoted(trace.probe.text + part);
+    }
   out += "\n";
   for (std::size_t i = 0; i < result.frequencies.size(); ++i) {
     out += number(result.frequencies[i]);
     for (const auto& trace : result.traces) {
       const auto z = trace.values[i];
-      for (double v : {z.real(), z.imag(), to_db(z), to_degrees(z)}) out += "," + number(v);
+      for (double v : {z.real(), z.imag(), to_db(z), to_degrees(z)}) {
+        out += ',';
+        out += number(v);
+      }
     }
     out += "\n";
   }

@@ -10,7 +10,8 @@ namespace tacet {
 
 namespace {
 
-using nlohmann::json;
+// Ordered, so keys appear as documented (f, re, im, db, deg), not alphabetically.
+using json = nlohmann::ordered_json;
 
 json number(double v) { return std::isfinite(v) ? json(v) : json(nullptr); }
 

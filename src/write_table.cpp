@@ -57,9 +57,11 @@ std::string title_lines(const ReportContext& context) {
 std::string sweep_line(const AcResult& result) {
   const auto& f = result.frequencies;
   if (f.empty()) return "no frequencies\n";
-  return fmt::format("AC response, {} point{} from {}Hz to {}Hz; dB re 1 {} (a gain when the source has ac=1)\n",
+  bool currents = std::any_of(result.traces.begin(), result.traces.end(),
+                              [](const AcTrace& t) { return t.probe.kind == ProbeKind::current; });
+  return fmt::format("AC response, {} point{} from {}Hz to {}Hz; dB re 1 V{} (a gain when the source has ac=1)\n",
                      f.size(), f.size() == 1 ? "" : "s", format_si(f.front()), format_si(f.back()),
-                     result.traces.empty() ? "V" : probe_unit(result.traces.front().probe));
+                     currents ? " or 1 A" : "");
 }
 
 }  // namespace
@@ -121,7 +123,8 @@ std::string element_value(const Circuit& c, const Element& e) {
 }
 
 std::string model_line(const OpAmpModel& m) {
-  std::string out = fmt::format("model {} opamp {{ gbw {}Hz aol {}", m.name, format_si(m.gbw, 6), format_si(m.aol, 6));
+  std::string out = fmt::format("model {} opamp {{ gbw {}Hz aol {:.6g}dB", m.name, format_si(m.gbw, 6),
+                                20 * std::log10(m.aol));
   auto add = [&](const char* key, double v, const char* unit) {
     if (v != 0) out += fmt::format(" {} {}{}", key, format_si(v, 6), unit);
   };

@@ -133,3 +133,11 @@ TEST_CASE("a hint counts a swap of neighbouring letters as one edit", "[diagnost
   CHECK(tacet::nearest_word("rgian", {"rgain", "rf"}) == "rgain");
   CHECK(tacet::nearest_word("sre", {"res"}).empty());  // two swaps away
 }
+
+TEST_CASE("a long spelling of a short keyword suggests the keyword", "[diagnostics]") {
+  const std::vector<std::string> keywords{"res", "cap", "ind", "vsrc"};
+  CHECK(tacet::nearest_word("resistor", keywords) == "res");
+  CHECK(tacet::nearest_word("capacitor", keywords) == "cap");
+  CHECK(tacet::nearest_word("inductor", keywords) == "ind");
+  CHECK(tacet::nearest_word("zzzz", keywords).empty());
+}

@@ -163,9 +163,9 @@ TEST_CASE("op amps resolve their model and inputs by polarity", "[elaborate]") {
 TEST_CASE("a missing model names the nearest one", "[elaborate]") {
   auto r = elaborate_text(std::string(kOpAmp) + "opamp U1 (+a, -b, c) amq\n");
   CHECK(r.diagnostics ==
-        "main.tacet:2:23: error: no model named 'amq'\n"
+        "main.tacet:2:22: error: no model named 'amq'\n"
         "opamp U1 (+a, -b, c) amq\n"
-        "                      ^~~\n"
+        "                     ^~~\n"
         "hint: did you mean 'amp'?\n");
 }
 
@@ -339,7 +339,7 @@ TEST_CASE("a library included twice is read once", "[elaborate][include]") {
   CHECK(r.circuit);
 }
 
-TEST_CASE("--set overrides params, element values, options and model parameters", "[elaborate][set]") {
+TEST_CASE("command-line overrides reach params, element values, options and model parameters", "[elaborate][set]") {
   ElaborateOptions options;
   options.overrides = {{"rg", "2k"}, {"R2", "12k"}, {"V1.ac", "2"}, {"amp.gbw", "1MHz"}, {"F1.r", "22k"},
                        {"F1.R1.tol", "5%"}};
@@ -359,7 +359,7 @@ TEST_CASE("--set overrides params, element values, options and model parameters"
   CHECK(element(*r.circuit, "F1.R1").tolerance == Approx(0.05));
 }
 
-TEST_CASE("--set of a name that does not exist is an error with a hint", "[elaborate][set]") {
+TEST_CASE("an override of a name that does not exist is an error with a hint", "[elaborate][set]") {
   ElaborateOptions options;
   options.overrides = {{"R3", "1k"}};
   auto r = elaborate_text("res R1 (a, gnd) 1k\nres R2 (a, gnd) 1k\n", {}, options);
@@ -369,7 +369,7 @@ TEST_CASE("--set of a name that does not exist is an error with a hint", "[elabo
         "hint: did you mean 'R1'?\n");
 }
 
-TEST_CASE("--set values are checked like netlist values", "[elaborate][set]") {
+TEST_CASE("override values are checked like netlist values", "[elaborate][set]") {
   ElaborateOptions options;
   options.overrides = {{"R1", "10nF"}};
   auto r = elaborate_text("res R1 (a, gnd) 1k\n", {}, options);
@@ -380,7 +380,7 @@ TEST_CASE("--set values are checked like netlist values", "[elaborate][set]") {
         "^~~~\n");
 }
 
-TEST_CASE("--ambient wins over the netlist", "[elaborate]") {
+TEST_CASE("the command-line ambient wins over the netlist", "[elaborate]") {
   ElaborateOptions options;
   options.ambient_celsius = 40;
   auto r = elaborate_text("ambient 25C\nres R (a, gnd) 1k\n", {}, options);

@@ -179,8 +179,9 @@ TEST_CASE("a node reached only through op-amp inputs is reported as floating", "
   b.add(ElementKind::resistor, "R1", {"in", "out"}, 1e3);
   CHECK_THROWS_MATCHES(
       MnaSystem(b.circuit), SolveError,
-      Catch::Message("error: circuit cannot be solved: node 'x' has no connection to gnd "
-                     "(only through op-amp inputs or current sources)"));
+      Catch::Message("error: circuit cannot be solved: node 'x' has no connection to gnd\n"
+                     "hint: every node needs a path to gnd through resistors, capacitors, inductors or "
+                     "voltage sources; op-amp inputs and current sources are no such path\n"));
 }
 
 TEST_CASE("an island of several nodes fed by a current source names them all", "[mna]") {
@@ -191,7 +192,9 @@ TEST_CASE("an island of several nodes fed by a current source names them all", "
   CHECK_THROWS_MATCHES(
       MnaSystem(b.circuit), SolveError,
       Catch::Message("error: circuit cannot be solved: nodes 'p', 'q' have no connection "
-                     "to gnd (only through op-amp inputs or current sources)"));
+                     "to gnd\n"
+                     "hint: every node needs a path to gnd through resistors, capacitors, inductors or "
+                     "voltage sources; op-amp inputs and current sources are no such path\n"));
 }
 
 TEST_CASE("a vccs output conducts only when it is wired across its own control pair", "[mna]") {
@@ -201,8 +204,9 @@ TEST_CASE("a vccs output conducts only when it is wired across its own control p
   b.add(ElementKind::vccs, "G1", {"o", "gnd", "in", "gnd"}, 1e-3);  // a current source into o
   CHECK_THROWS_MATCHES(
       MnaSystem(b.circuit), SolveError,
-      Catch::Message("error: circuit cannot be solved: node 'o' has no connection to gnd "
-                     "(only through op-amp inputs or current sources)"));
+      Catch::Message("error: circuit cannot be solved: node 'o' has no connection to gnd\n"
+                     "hint: every node needs a path to gnd through resistors, capacitors, inductors or "
+                     "voltage sources; op-amp inputs and current sources are no such path\n"));
   b.add(ElementKind::vccs, "G2", {"o", "gnd", "o", "gnd"}, 1e-3);  // a 1 mS conductance
   CHECK_NOTHROW(MnaSystem(b.circuit));
 }
@@ -215,9 +219,9 @@ TEST_CASE("at DC a node reached only through a capacitor has no path to gnd", "[
   CHECK_NOTHROW(check_solvable(b.circuit, AnalysisKind::ac));
   CHECK_THROWS_MATCHES(
       check_solvable(b.circuit, AnalysisKind::dc), SolveError,
-      Catch::Message("error: circuit cannot be solved at DC: node 'x' has no DC path to "
-                     "gnd (only through capacitors, op-amp inputs or current "
-                     "sources)"));
+      Catch::Message("error: circuit cannot be solved at DC: node 'x' has no DC path to gnd\n"
+                     "hint: at DC capacitors are open; give the node a resistor to a biased "
+                     "node or to gnd\n"));
 }
 
 TEST_CASE("two voltage sources across the same node pair are named", "[mna]") {

@@ -352,7 +352,8 @@ TEST_CASE("keywords match whole words only", "[parser]") {
   CHECK(parse_bad("resistor R1 (a, b) 1k\n") ==
         "demo.tacet:1:1: error: unknown statement 'resistor'\n"
         "resistor R1 (a, b) 1k\n"
-        "^~~~~~~~\n");
+        "^~~~~~~~\n"
+        "hint: did you mean 'res'?\n");
 }
 
 // ---- bad input ----------------------------------------------------------------

@@ -1,0 +1,12 @@
+ac
+@/rc_lowpass.tacet
+--probe
+out
+--from
+1k
+--to
+10k
+--per-decade
+2
+--format
+csv

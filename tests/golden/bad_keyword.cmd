@@ -1,0 +1,4 @@
+ac
+@/bad_keyword.tacet
+--probe
+out

@@ -1,0 +1,8 @@
+ac
+@/rc_lowpass.tacet
+--probe
+out
+--from
+20k
+--to
+10k

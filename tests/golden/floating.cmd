@@ -1,0 +1,4 @@
+ac
+@/floating.tacet
+--probe
+out

@@ -1,0 +1,4 @@
+ac
+@/source_loop.tacet
+--probe
+a

@@ -1,0 +1,4 @@
+ac
+@/rc_lowpass.tacet
+--probe
+otu
