@@ -14,6 +14,7 @@ int main(int argc, char** argv) {
   app.set_version_flag("--version", std::string("tacet ") + TACET_VERSION);
   app.require_subcommand(1);
   tacet::cli::setup_ac(app);
+  tacet::cli::setup_noise(app);
   tacet::cli::setup_show(app);
   try {
     app.parse(argc, argv);

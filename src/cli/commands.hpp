@@ -7,6 +7,7 @@
 namespace tacet::cli {
 
 void setup_ac(CLI::App& app);
+void setup_noise(CLI::App& app);
 void setup_show(CLI::App& app);
 
 }  // namespace tacet::cli

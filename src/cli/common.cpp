@@ -60,6 +60,37 @@ OutputFormat output_format(const CommonOptions& options) {
   return *format;
 }
 
+void add_sweep_options(CLI::App& command, SweepFlags& flags) {
+  command.add_option("--from", flags.from, "First frequency (1, 20Hz, 1k)")->capture_default_str();
+  command.add_option("--to", flags.to, "Last frequency")->capture_default_str();
+  auto* per_decade = command.add_option("--per-decade", flags.per_decade,
+                                        "Log sweep: points per decade (default 20)");
+  auto* points = command.add_option("--points", flags.points, "Linear sweep: number of points");
+  auto* at = command.add_option("--at", flags.at, "Only these frequencies: 100,1k,10k");
+  per_decade->excludes(points);
+  at->excludes(per_decade)->excludes(points);
+}
+
+Sweep parse_sweep(const SweepFlags& flags) {
+  Sweep sweep;
+  if (!flags.at.empty()) {
+    sweep.kind = SweepKind::list;
+    sweep.at = parse_quantity_list("--at", flags.at, Dimension::frequency);
+  } else {
+    sweep.from = parse_quantity("--from", flags.from, Dimension::frequency);
+    sweep.to = parse_quantity("--to", flags.to, Dimension::frequency);
+    if (flags.points != 0) {
+      sweep.kind = SweepKind::linear;
+      sweep.points = flags.points;
+    } else if (flags.per_decade != 0) {
+      sweep.per_decade = flags.per_decade;
+    }
+  }
+  if (std::string problem = sweep.validate(); !problem.empty())
+    throw InputError(fmt::format("error: {}\n", problem));
+  return sweep;
+}
+
 Circuit load(const CommonOptions& options, ReportContext& context) {
   ElaborateOptions elaborate;
   for (const auto& assignment : options.set) {

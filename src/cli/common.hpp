@@ -7,6 +7,7 @@
 
 #include <CLI/CLI.hpp>
 
+#include "tacet/ac.hpp"
 #include "tacet/circuit.hpp"
 #include "tacet/output.hpp"
 #include "tacet/units.hpp"
@@ -28,6 +29,21 @@ void add_common_options(CLI::App& command, CommonOptions& options);
 Circuit load(const CommonOptions& options, ReportContext& context);
 
 OutputFormat output_format(const CommonOptions& options);
+
+/// The sweep flags of the analyses that sweep frequency, as typed.
+struct SweepFlags {
+  std::string from = "10";
+  std::string to = "100k";
+  int per_decade = 0;  ///< 0: the default of Sweep
+  int points = 0;      ///< non-zero: a linear sweep
+  std::string at;      ///< non-empty: a list
+};
+
+/// --from --to --per-decade --points --at, with their exclusions.
+void add_sweep_options(CLI::App& command, SweepFlags& flags);
+
+/// The sweep the flags describe; throws InputError naming the flag at fault.
+Sweep parse_sweep(const SweepFlags& flags);
 
 /// A number from the command line with an optional SI prefix and unit that
 /// must fit `dimension` ("1k", "20kHz"); throws InputError naming `option`.

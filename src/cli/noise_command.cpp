@@ -1,0 +1,87 @@
+// tacet noise: parse, elaborate, assemble, sweep with one adjoint solve per
+// point, integrate over the band, write.
+
+#include <memory>
+
+#include <fmt/format.h>
+
+#include "commands.hpp"
+#include "common.hpp"
+#include "tacet/errors.hpp"
+#include "tacet/noise.hpp"
+#include "tacet/write_noise.hpp"
+
+namespace tacet::cli {
+
+namespace {
+
+struct NoiseCommandOptions {
+  CommonOptions common;
+  SweepFlags sweep;
+  std::string probe;
+  std::string input;
+  std::string band;   // F1..F2
+  std::string level;  // rms at the input source
+  std::string ref;    // Hz
+};
+
+Band parse_band(const std::string& text) {
+  const auto dots = text.find("..");
+  if (dots == std::string::npos || dots == 0 || dots + 2 == text.size())
+    throw InputError(fmt::format("error: --band '{}' is not F1..F2\nhint: write --band 20..20k\n",
+                                 text));
+  const Band band{parse_quantity("--band", text.substr(0, dots), Dimension::frequency),
+                  parse_quantity("--band", text.substr(dots + 2), Dimension::frequency)};
+  if (auto problem = band.validate(); !problem.empty())
+    throw InputError(fmt::format("error: {}\n", problem));
+  return band;
+}
+
+NoiseOptions options_from(const NoiseCommandOptions& o) {
+  NoiseOptions options;
+  options.sweep = parse_sweep(o.sweep);
+  options.probe = o.probe;
+  options.input = o.input;
+  if (!o.band.empty()) options.band = parse_band(o.band);
+  if (!o.level.empty()) options.level = parse_quantity("--level", o.level, Dimension::any);
+  if (!o.ref.empty()) options.reference = parse_quantity("--ref", o.ref, Dimension::frequency);
+  return options;
+}
+
+void run(const NoiseCommandOptions& o) {
+  const OutputFormat format = output_format(o.common);
+  const NoiseOptions options = options_from(o);
+  ReportContext context;
+  const Circuit circuit = load(o.common, context);
+  const NoiseResult result = run_noise(circuit, options);
+  std::string text;
+  switch (format) {
+    case OutputFormat::table: text = noise_table(result, context); break;
+    case OutputFormat::csv: text = noise_csv(result); break;
+    case OutputFormat::json: text = noise_json(result, context); break;
+  }
+  write_output(o.common.output, text);
+}
+
+}  // namespace
+
+void setup_noise(CLI::App& app) {
+  auto options = std::make_shared<NoiseCommandOptions>();
+  CLI::App* noise = app.add_subcommand(
+      "noise", "Noise at a probe: density, band total, contributors, input-referred");
+  add_common_options(*noise, options->common);
+  noise->add_option("--probe", options->probe, "A node (out), a node pair (out,ref) or i(R1)")
+      ->required();
+  noise->add_option("--input", options->input,
+                    "The source the signal comes from: gain and input-referred noise");
+  noise->add_option("--band", options->band,
+                    "Integration band F1..F2 (20..20k); default: the sweep's --from..--to");
+  noise->add_option("--level", options->level,
+                    "Signal rms at the --input source (1m, 200mV): signal-to-noise ratio");
+  noise->add_option("--ref", options->ref,
+                    "Where the signal gain is taken (default: sqrt(F1 F2), the band's centre)");
+  add_sweep_options(*noise, options->sweep);
+  noise->callback([options] { run(*options); });
+}
+
+}  // namespace tacet::cli

@@ -1,0 +1,10 @@
+noise
+@/rc_lowpass.tacet
+--probe
+out
+--input
+Vin
+--at
+100,10k
+--format
+csv

@@ -1,0 +1,12 @@
+noise
+@/rc_lowpass.tacet
+--probe
+out
+--input
+Vin
+--band
+20..20k
+--at
+100,10k
+--format
+json

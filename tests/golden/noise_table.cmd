@@ -1,0 +1,12 @@
+noise
+@/rc_lowpass.tacet
+--probe
+out
+--input
+Vin
+--band
+20..20k
+--at
+20,1591.5494309189535,20k
+--level
+1m

@@ -1,0 +1,4 @@
+noise
+@/rc_lowpass.tacet
+--probe
+otu

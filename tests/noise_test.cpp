@@ -1,0 +1,306 @@
+// Noise analysis against closed forms from the literature; each check names its source.
+
+#include "tacet/noise.hpp"
+
+#include <catch2/catch.hpp>
+#include <cmath>
+#include <numeric>
+
+#include "is_close.hpp"
+#include "reference_circuits.hpp"
+#include "tacet/errors.hpp"
+
+using namespace tacet;
+using namespace tacet::testing;
+
+namespace {
+
+constexpr double kT25 = kBoltzmann * (25 + 273.15);  // J, at the default ambient
+
+NoiseOptions noise_at(std::vector<double> f, const std::string& probe, double f1, double f2) {
+  NoiseOptions options;
+  options.sweep.kind = SweepKind::list;
+  options.sweep.at = std::move(f);
+  options.probe = probe;
+  options.band = Band{f1, f2};
+  return options;
+}
+
+const NoiseContributor& contributor(const NoiseResult& r, const std::string& source,
+                                    NoiseMechanism mechanism) {
+  for (const auto& c : r.contributors)
+    if (c.source == source && c.mechanism == mechanism) return c;
+  FAIL("no contributor " << source << " " << to_string(mechanism));
+  return r.contributors.front();
+}
+
+// Non-inverting amplifier: Vin -> Rs -> +, Rf from out to -, Rg from - to gnd.
+Circuit noninverting(double rs, double rf, double rg, const OpAmpModel& model) {
+  CircuitBuilder b;
+  b.vsrc("Vin", "src", "gnd", 1.0);
+  b.add(ElementKind::resistor, "Rs", {"src", "p"}, rs);
+  b.opamp("U1", "p", "fb", "out", model);
+  b.add(ElementKind::resistor, "Rf", {"out", "fb"}, rf);
+  b.add(ElementKind::resistor, "Rg", {"fb", "gnd"}, rg);
+  return b.circuit;
+}
+
+}  // namespace
+
+TEST_CASE("a resistor to gnd shows the thermal noise density sqrt(4kTR)", "[noise]") {
+  // Johnson 1928, Nyquist 1928: open-circuit noise voltage density sqrt(4kTR).
+  CircuitBuilder b;
+  b.add(ElementKind::resistor, "R1", {"out", "gnd"}, 10e3);
+  const auto r = run_noise(b.circuit, noise_at({10, 1e3, 1e5}, "out", 10, 1e5));
+  for (double density : r.density) CHECK_THAT(density, IsClose(std::sqrt(4 * kT25 * 10e3), 1e-12));
+  // The band total of a white density is density x sqrt(bandwidth).
+  CHECK_THAT(r.total_rms, IsClose(std::sqrt(4 * kT25 * 10e3 * (1e5 - 10)), 1e-9));
+  REQUIRE(r.contributors.size() == 1);
+  CHECK(r.contributors[0].mechanism == NoiseMechanism::thermal);
+  CHECK_THAT(r.contributors[0].share, IsClose(1.0, 1e-12));
+}
+
+TEST_CASE("thermal noise follows the ambient temperature in kelvin", "[noise]") {
+  // Nyquist 1928: the density is proportional to sqrt(T), T absolute.
+  CircuitBuilder b;
+  b.add(ElementKind::resistor, "R1", {"out", "gnd"}, 1e3);
+  b.circuit.ambient_celsius = 85;
+  const auto r = run_noise(b.circuit, noise_at({1e3}, "out", 10, 1e3));
+  CHECK_THAT(r.temperature_kelvin, IsClose(358.15, 1e-15));
+  CHECK_THAT(r.density[0], IsClose(std::sqrt(4 * kBoltzmann * 358.15 * 1e3), 1e-12));
+}
+
+TEST_CASE("a resistor divider shows the thermal noise of its two resistors in parallel",
+          "[noise]") {
+  // Nyquist 1928 applied to the Thevenin resistance R1 R2/(R1 + R2) seen at the
+  // tap (the source is an ideal, noiseless voltage source).
+  const double r1 = 10e3, r2 = 2.2e3, parallel = r1 * r2 / (r1 + r2);
+  CircuitBuilder b;
+  b.vsrc("Vin", "in", "gnd", 1.0);
+  b.add(ElementKind::resistor, "R1", {"in", "out"}, r1);
+  b.add(ElementKind::resistor, "R2", {"out", "gnd"}, r2);
+  auto options = noise_at({100, 1e4}, "out", 20, 20e3);
+  options.input = "Vin";
+  const auto r = run_noise(b.circuit, options);
+  CHECK_THAT(r.density[0], IsClose(std::sqrt(4 * kT25 * parallel), 1e-12));
+  // Shares: each resistor's current noise 4kT/R sees the same |Z|^2, so its
+  // share is (1/R) / (1/R1 + 1/R2) (Nyquist 1928 with superposition of power).
+  CHECK_THAT(contributor(r, "R2", NoiseMechanism::thermal).share, IsClose(r1 / (r1 + r2), 1e-9));
+  CHECK(r.contributors[0].source == "R2");
+  // Input-referred through the divider ratio G = R2/(R1 + R2) (voltage divider).
+  CHECK_THAT(std::abs(r.gain[0]), IsClose(r2 / (r1 + r2), 1e-12));
+  CHECK_THAT(*r.input_referred_rms, IsClose(r.total_rms * (r1 + r2) / r2, 1e-9));
+}
+
+TEST_CASE("a probe across a node pair adds the noise of both sides", "[noise]") {
+  // Nyquist 1928: two independent resistors in series across the pair, 4kT(R1 + R2).
+  CircuitBuilder b;
+  b.add(ElementKind::resistor, "R1", {"a", "gnd"}, 1e3);
+  b.add(ElementKind::resistor, "R2", {"b", "gnd"}, 3e3);
+  const auto r = run_noise(b.circuit, noise_at({1e3}, "a,b", 10, 1e3));
+  CHECK_THAT(r.density[0], IsClose(std::sqrt(4 * kT25 * 4e3), 1e-12));
+}
+
+TEST_CASE("R parallel C has the single-pole density, its atan band total and kT/C", "[noise]") {
+  // Density sqrt(4kTR)/|1 + j 2 pi f R C| (Nyquist 1928 through the RC impedance);
+  // band power (4kTR/(2 pi R C)) (atan(2 pi f2 R C) - atan(2 pi f1 R C)) (its integral);
+  // over all frequencies kT/C (textbook result, e.g. the kT/C noise of a sampling capacitor).
+  const double r = 10e3, c = 10e-9, tau = 2 * kPi * r * c;
+  CircuitBuilder b;
+  b.add(ElementKind::resistor, "R1", {"out", "gnd"}, r);
+  b.add(ElementKind::capacitor, "C1", {"out", "gnd"}, c);
+  const std::vector<double> f{20, 1591.5494309189535, 20e3};
+  auto result = run_noise(b.circuit, noise_at(f, "out", 20, 20e3));
+  for (std::size_t k = 0; k < f.size(); ++k)
+    CHECK_THAT(result.density[k], IsClose(std::sqrt(4 * kT25 * r) / std::abs(1.0 + jw(f[k]) * r * c), 1e-12));
+  const double band = 4 * kT25 * r / tau * (std::atan(tau * 20e3) - std::atan(tau * 20));
+  CHECK_THAT(result.total_rms * result.total_rms, IsClose(band, 1e-9));  // the brief asks 1e-3
+  // Wide band 1e-6 fc .. 1e6 fc: the atan form is within 1.3e-6 of kT/C.
+  result = run_noise(b.circuit, noise_at(f, "out", 1591.5494309189535e-6, 1591.5494309189535e6));
+  CHECK_THAT(result.total_rms * result.total_rms, IsClose(kT25 / c, 2e-6));
+}
+
+TEST_CASE("a non-inverting amplifier's output noise is the root-sum-square through the noise gain",
+          "[noise]") {
+  // The op-amp noise model (en at +, in at each input, resistor thermal noise),
+  // e.g. Motchenbacher and Connelly, Low-Noise Electronic System Design (1993)
+  // (form from memory):
+  //   e_out^2 = |NG|^2 [en^2 + (in Rs)^2 + 4kTRs + (in Rp)^2 + 4kTRp], Rp = Rf || Rg,
+  // with the exact closed-loop noise gain of the single-pole model
+  //   NG = (1/beta)/(1 + 1/(A beta)), beta = Rg/(Rf + Rg), A = aol/(1 + s/wp), wp = 2 pi gbw/aol.
+  OpAmpModel m = single_pole(10e6, 1e5);
+  m.en = 4e-9;
+  m.in = 1e-12;
+  const double rs = 2.2e3, rf = 9e3, rg = 1e3, beta = rg / (rf + rg), rp = rf * rg / (rf + rg);
+  const std::vector<double> f{10, 1e3, 1e5, 1e6, 5e6};
+  const auto r = run_noise(noninverting(rs, rf, rg, m), noise_at(f, "out", 10, 1e5));
+  for (std::size_t k = 0; k < f.size(); ++k) {
+    const cplx a = m.aol / (1.0 + jw(f[k]) / (2 * kPi * m.gbw / m.aol));
+    const double ng = std::abs((1 / beta) / (1.0 + 1.0 / (a * beta)));
+    const double sum = m.en * m.en + std::pow(m.in * rs, 2) + 4 * kT25 * rs +
+                       std::pow(m.in * rp, 2) + 4 * kT25 * rp;
+    INFO("f = " << f[k]);
+    CHECK_THAT(r.density[k], IsClose(ng * std::sqrt(sum), 1e-9));
+  }
+  CHECK(r.contributors.size() == 6);  // Rs, Rf, Rg thermal; U1 en, in+, in-
+}
+
+TEST_CASE("an op amp's 1/f voltage noise integrates to en^2 (fce ln(f2/f1) + f2 - f1)", "[noise]") {
+  // Closed form of the integral of en^2 (1 + fce/f) df. A follower of very
+  // high gain and bandwidth passes en with a gain within 1e-9 of 1.
+  OpAmpModel m = single_pole(1e15, 1e9);
+  m.en = 5e-9;
+  m.fce = 150;
+  m.in = 2e-12;
+  m.fci = 1e3;
+  CircuitBuilder b;
+  b.add(ElementKind::resistor, "Rb", {"p", "gnd"}, 10e3).noiseless = true;
+  b.opamp("U1", "p", "out", "out", m);
+  const double f1 = 2, f2 = 4e3;
+  const auto r = run_noise(b.circuit, noise_at({10, 100, 1e3}, "out", f1, f2));
+  CHECK_THAT(contributor(r, "U1", NoiseMechanism::en).rms,
+             IsClose(m.en * std::sqrt(m.fce * std::log(f2 / f1) + f2 - f1), 1e-7));
+  // The same closed form for in through the (noiseless) 10 kohm bias resistor.
+  CHECK_THAT(contributor(r, "U1", NoiseMechanism::in_plus).rms,
+             IsClose(10e3 * m.in * std::sqrt(m.fci * std::log(f2 / f1) + f2 - f1), 1e-7));
+  // The spot density at 10 Hz: en sqrt(1 + fce/f) and in R sqrt(1 + fci/f), in quadrature.
+  CHECK_THAT(r.density[0], IsClose(std::sqrt(m.en * m.en * (1 + m.fce / 10) +
+                                             std::pow(10e3 * m.in, 2) * (1 + m.fci / 10)), 1e-7));
+  // Rb is noiseless; in- flows into the ideal output, which it cannot move.
+  CHECK(r.contributors.size() == 3);
+  CHECK(contributor(r, "U1", NoiseMechanism::in_minus).share < 1e-15);
+}
+
+TEST_CASE("a noiseless op amp contributes no noise", "[noise]") {
+  OpAmpModel m = single_pole(10e6, 1e5);
+  m.en = 4e-9;
+  m.in = 1e-12;
+  auto circuit = noninverting(1e3, 9e3, 1e3, m);
+  circuit.elements[2].noiseless = true;
+  const auto r = run_noise(circuit, noise_at({1e3}, "out", 10, 1e3));
+  for (const auto& c : r.contributors) CHECK(c.source != "U1");
+  CHECK(r.contributors.size() == 3);
+}
+
+TEST_CASE("the input-referred density is the output density divided by |gain| at every point",
+          "[noise]") {
+  // Definition of input referral; the gain itself is checked against the
+  // forward AC solve of the same circuit (an independent solve, A x = b).
+  OpAmpModel m = single_pole(1e6, 1e5);
+  m.en = 10e-9;
+  m.fce = 50;
+  m.in = 0.5e-12;
+  const auto circuit = noninverting(1e3, 99e3, 1e3, m);
+  const std::vector<double> f{1, 30, 1e3, 1e4, 1e5, 1e6};
+  auto options = noise_at(f, "out", 1, 1e6);
+  options.input = "Vin";
+  const auto r = run_noise(circuit, options);
+  AcOptions ac;
+  ac.sweep.kind = SweepKind::list;
+  ac.sweep.at = f;
+  ac.probes = {"out"};
+  const auto forward = run_ac(circuit, ac);
+  for (std::size_t k = 0; k < f.size(); ++k) {
+    INFO("f = " << f[k]);
+    CHECK_THAT(r.gain[k], IsClose(forward.traces[0].values[k], 1e-9));
+    CHECK_THAT(r.input_density[k], IsClose(r.density[k] / std::abs(forward.traces[0].values[k]), 1e-9));
+  }
+}
+
+TEST_CASE("a current input refers the noise to a current", "[noise]") {
+  // An isrc into R: G = R (Ohm's law), so the input-referred density of R's
+  // own noise is sqrt(4kTR)/R = sqrt(4kT/R) (Nyquist 1928, Norton form).
+  CircuitBuilder b;
+  b.isrc("Iin", "gnd", "out", 1e-6);
+  b.add(ElementKind::resistor, "R1", {"out", "gnd"}, 50e3);
+  auto options = noise_at({1e3}, "out", 10, 1e3);
+  options.input = "Iin";
+  const auto r = run_noise(b.circuit, options);
+  CHECK_THAT(r.gain[0], IsClose(50e3, 1e-12));
+  CHECK_THAT(r.input_density[0], IsClose(std::sqrt(4 * kT25 / 50e3), 1e-12));
+}
+
+TEST_CASE("contributor shares sum to 1 and come largest first", "[noise]") {
+  // Uncorrelated sources add in power (superposition of independent noise).
+  OpAmpModel m = single_pole(10e6, 1e6);
+  m.en = 3e-9;
+  m.fce = 5;
+  m.in = 1e-12;
+  m.fci = 200;
+  const auto r = run_noise(noninverting(5e3, 9e3, 1e3, m), noise_at({1e3}, "out", 20, 20e3));
+  double shares = 0, power = 0;
+  for (std::size_t k = 0; k < r.contributors.size(); ++k) {
+    shares += r.contributors[k].share;
+    power += r.contributors[k].rms * r.contributors[k].rms;
+    if (k > 0) CHECK(r.contributors[k - 1].share >= r.contributors[k].share);
+  }
+  CHECK_THAT(shares, IsClose(1.0, 1e-12));
+  CHECK_THAT(power, IsClose(r.total_rms * r.total_rms, 1e-12));
+}
+
+TEST_CASE("the signal-to-noise ratio takes the gain at the geometric centre of the band",
+          "[noise]") {
+  // SNR = 20 log10(level |G(f_ref)| / total_rms), f_ref = sqrt(f1 f2) (our definition).
+  const double r1 = 10e3, r2 = 2.2e3;
+  CircuitBuilder b;
+  b.vsrc("Vin", "in", "gnd", 1.0);
+  b.add(ElementKind::resistor, "R1", {"in", "out"}, r1);
+  b.add(ElementKind::resistor, "R2", {"out", "gnd"}, r2);
+  auto options = noise_at({1e3}, "out", 20, 20e3);
+  options.input = "Vin";
+  options.level = 1e-3;
+  const auto r = run_noise(b.circuit, options);
+  REQUIRE(r.signal);
+  CHECK_THAT(r.signal->reference, IsClose(std::sqrt(20 * 20e3), 1e-12));
+  CHECK_THAT(r.signal->signal_rms, IsClose(1e-3 * r2 / (r1 + r2), 1e-12));
+  CHECK_THAT(r.signal->ratio_db, IsClose(20 * std::log10(r.signal->signal_rms / r.total_rms), 1e-12));
+}
+
+TEST_CASE("rejects a probe at an unknown node", "[noise][errors]") {
+  const auto circuit = rc_lowpass(1e3, 1e-9);
+  CHECK_THROWS_WITH(run_noise(circuit, noise_at({1e3}, "otu", 10, 1e3)),
+                    "error: unknown node 'otu' in probe 'otu'\nhint: did you mean 'out'?");
+}
+
+TEST_CASE("rejects a band whose F1 is not below F2 or not above 0", "[noise][errors]") {
+  const auto circuit = rc_lowpass(1e3, 1e-9);
+  CHECK_THROWS_WITH(run_noise(circuit, noise_at({1e3}, "out", 20e3, 20)),
+                    "error: --band 20k..20: F1 must be below F2");
+  CHECK_THROWS_WITH(run_noise(circuit, noise_at({1e3}, "out", 0, 20)),
+                    "error: --band 0..20: F1 must be a finite frequency above 0 Hz");
+  CHECK_THROWS_AS(run_noise(circuit, noise_at({1e3}, "out", 5, 5)), InputError);
+}
+
+TEST_CASE("rejects an input that is not a source", "[noise][errors]") {
+  const auto circuit = rc_lowpass(1e3, 1e-9);
+  auto options = noise_at({1e3}, "out", 10, 1e3);
+  options.input = "R1";
+  CHECK_THROWS_WITH(run_noise(circuit, options),
+                    "error: --input 'R1' is a res, not a source\n"
+                    "hint: name a vsrc or isrc; the sources are Vin");
+  options.input = "Vni";
+  CHECK_THROWS_WITH(run_noise(circuit, options),
+                    "error: --input 'Vni' is not an element of the circuit\n"
+                    "hint: did you mean 'Vin'?");
+}
+
+TEST_CASE("rejects a signal level without an input source", "[noise][errors]") {
+  auto options = noise_at({1e3}, "out", 10, 1e3);
+  options.level = 1e-3;
+  CHECK_THROWS_WITH(run_noise(rc_lowpass(1e3, 1e-9), options),
+                    "error: --level needs --input: the source that carries the signal");
+}
+
+TEST_CASE("without --band the band is the sweep's first to last point", "[noise]") {
+  // White density over the sweep range (Nyquist 1928): rms = sqrt(4kTR (to - from)).
+  CircuitBuilder b;
+  b.add(ElementKind::resistor, "R1", {"out", "gnd"}, 1e3);
+  NoiseOptions options;
+  options.sweep.from = 20;
+  options.sweep.to = 20e3;
+  options.probe = "out";
+  const auto r = run_noise(b.circuit, options);
+  CHECK(r.band.from == 20);
+  CHECK(r.band.to == 20e3);
+  CHECK_THAT(r.total_rms, IsClose(std::sqrt(4 * kT25 * 1e3 * (20e3 - 20)), 1e-9));
+}
