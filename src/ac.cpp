@@ -10,21 +10,13 @@
 #include <cmath>
 
 #include "tacet/errors.hpp"
-#include "tacet/mna.hpp"
+#include "tacet/format.hpp"
+#include "tacet/response.hpp"
 
 namespace tacet {
 namespace {
 
-constexpr double kTwoPi = 6.283185307179586476925286766559;
-
-// 20000 -> "20k": frequencies in messages read as the user typed them.
-std::string si(double value) {
-  static const char* const prefixes[] = {"f", "p", "n", "u", "m", "", "k", "M", "G", "T"};
-  if (!std::isfinite(value) || value == 0) return fmt::format("{:g}", value);
-  int exponent = static_cast<int>(std::floor(std::log10(std::abs(value)) / 3.0));
-  exponent = std::clamp(exponent, -5, 4);
-  return fmt::format("{:g}{}", value / std::pow(1000.0, exponent), prefixes[exponent + 5]);
-}
+std::string si(double value) { return format_si(value); }
 
 bool positive_frequency(double f) { return std::isfinite(f) && f > 0; }
 
@@ -96,38 +88,10 @@ AcResult run_ac(const Circuit& circuit, const AcOptions& options) {
   result.frequencies = options.sweep.frequencies();
   for (auto& trace : result.traces) trace.values.resize(result.frequencies.size());
 
-  const MnaSystem mna(circuit);
-  const auto lu = make_sparse_lu(options.solver);
-  lu->analyse(mna.pattern());
-  std::vector<std::complex<double>> values(static_cast<std::size_t>(mna.pattern().nonzeros()));
-  std::vector<std::complex<double>> excitation(static_cast<std::size_t>(mna.size()));
-  std::vector<std::complex<double>> x(excitation.size());
-  std::vector<ProbeTerm> scratch;
-  scratch.reserve(8);
-  mna.excitation(excitation.data());
-
+  FrequencyResponse response(circuit, options.solver);
   for (std::size_t point = 0; point < result.frequencies.size(); ++point) {
-    const double f = result.frequencies[point];
-    const std::complex<double> s(0, kTwoPi * f);
-    mna.assemble(s, values.data());
-    if (lu->factor(values.data()) == FactorStatus::singular) {
-      const int column = lu->singular_column();
-      throw SolveError(fmt::format(
-          "error: circuit cannot be solved at {}Hz: {}", si(f),
-          column >= 0 ? fmt::format("the equations do not determine {} (singular matrix)",
-                                    mna.unknown_name(column))
-                      : std::string("the matrix is singular")));
-    }
-    x = excitation;
-    lu->solve(x.data());
-    for (auto& trace : result.traces) {
-      const auto value = probe_value(trace.probe, mna, s, x.data(), scratch);
-      if (!std::isfinite(value.real()) || !std::isfinite(value.imag()))
-        throw SolveError(
-            fmt::format("error: circuit cannot be solved at {}Hz: probe '{}' is not finite", si(f),
-                        trace.probe.text));
-      trace.values[point] = value;
-    }
+    response.solve_at(result.frequencies[point]);
+    for (auto& trace : result.traces) trace.values[point] = response.value(trace.probe);
   }
   return result;
 }

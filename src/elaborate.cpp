@@ -27,6 +27,8 @@ std::optional<Circuit> Elaborator::run(const std::string& path) {
   InstanceContext top;
   top.scope = &globals_;
   for (const auto& [instance, file] : top_instances_) instantiate(*instance, file, top);
+  for (const auto& [spec, file] : specs_) elaborate_spec(*spec, file);
+  for (const auto& [name, value] : globals_.params) circuit_.params[name] = value.value;
   report_unused_overrides();
   if (diagnostics_.has_errors()) return std::nullopt;
   return std::move(circuit_);
@@ -81,6 +83,7 @@ void Elaborator::collect(const ast::Netlist& netlist, int file) {
       if (self.check_unique(self.model_names_, "model", m.name, file, m.name.text))
         self.model_order_.push_back({&m, file});
     }
+    void operator()(const ast::Spec& s) const { self.specs_.push_back({&s, file}); }
     void operator()(const ast::Block& b) const {
       if (self.check_unique(self.block_names_, "block", b.name, file, b.name.text))
         self.blocks_[b.name.text] = {&b, file};

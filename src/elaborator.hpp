@@ -60,6 +60,11 @@ class Elaborator {
   bool check_unique(std::map<std::string, SourceLocation>& seen, const std::string& what,
                     const ast::Identifier& name, int file, const std::string& full_name);
 
+  // elaborate_spec.cpp: the budget
+  void elaborate_spec(const ast::Spec& spec, int file);
+  std::optional<std::string> spec_probe(const ast::Spec& spec, int file,
+                                        const ast::Option* current);
+
   // elaborate_instance.cpp: elements and blocks
   void instantiate(const ast::Instance& instance, int file, const InstanceContext& context);
   void build_element(const ast::Instance& instance, int file, const InstanceContext& context,
@@ -74,6 +79,8 @@ class Elaborator {
   std::optional<double> overridden(const std::string& name, const Scope& scope,
                                    Dimension dimension);
   std::optional<Rails> rails_of(const ast::Expr& expr, int file, const Scope& scope);
+  std::optional<SignalLevel> level_of(const ast::Expr& expr, int file, const Scope& scope);
+  bool check_level(const Element& e, const ast::Instance& instance, int file);
 
   void error(int file, const ast::Located& where, std::string message, std::string hint = {});
 
@@ -90,6 +97,8 @@ class Elaborator {
   std::vector<From<ast::Instance>> top_instances_;
   std::map<std::string, From<ast::Block>> blocks_;
   std::vector<From<ast::Model>> model_order_;
+  std::vector<From<ast::Spec>> specs_;
+  std::map<std::string, SourceLocation> spec_names_;
   std::map<std::string, int> model_index_;  // name -> Circuit::models index, -1 if bad
   std::map<std::string, SourceLocation> model_names_, block_names_, element_names_;
   std::vector<ParsedOverride> overrides_;

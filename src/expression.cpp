@@ -90,6 +90,12 @@ class Evaluator {
   }
 
   std::optional<double> operator()(const ast::Unary& u) const {
+    // -6dB is the ratio 0.5: the sign belongs to the decibels, not to the ratio.
+    if (const auto* q = boost::get<ast::Quantity>(&unwrap(u.operand)); q && q->suffix == "dB") {
+      ast::Quantity negated = *q;
+      if (u.op == '-') negated.digits = "-" + negated.digits;
+      return (*this)(negated);
+    }
     auto v = eval(u.operand);
     if (!v) return std::nullopt;
     return u.op == '-' ? -*v : *v;

@@ -16,6 +16,7 @@ int main(int argc, char** argv) {
   tacet::cli::setup_ac(app);
   tacet::cli::setup_noise(app);
   tacet::cli::setup_show(app);
+  tacet::cli::setup_check(app);
   try {
     app.parse(argc, argv);
   } catch (const CLI::ParseError& e) {
@@ -23,7 +24,7 @@ int main(int argc, char** argv) {
     return code == 0 ? 0 : static_cast<int>(tacet::ExitStatus::bad_input);
   } catch (const tacet::Error& e) {
     const std::string message = e.what();
-    std::cerr << message << (message.empty() || message.back() != '\n' ? "\n" : "");
+    if (!message.empty()) std::cerr << message << (message.back() != '\n' ? "\n" : "");
     return static_cast<int>(e.status());
   } catch (const std::exception& e) {
     std::cerr << "internal error: " << e.what() << "\n";

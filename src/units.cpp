@@ -84,6 +84,7 @@ const char* describe(Dimension dimension) {
     case Dimension::current_density: return "a current noise density";
     case Dimension::power: return "a power";
     case Dimension::angle: return "an angle";
+    case Dimension::decibel: return "a level in dB";
     case Dimension::any: return "a value";
   }
   return "a value";
@@ -109,12 +110,14 @@ bool unit_fits(Dimension unit, Dimension expected) {
   if (unit == Dimension::none || expected == Dimension::any || unit == expected) return true;
   if (expected == Dimension::voltage_density) return unit == Dimension::voltage;
   if (expected == Dimension::current_density) return unit == Dimension::current;
+  if (expected == Dimension::decibel) return unit == Dimension::gain;
   return false;
 }
 
 double apply_unit(double number, const Unit& unit, Dimension expected) {
   switch (unit.transform) {
-    case Transform::decibel: return std::pow(10.0, number / 20.0);
+    case Transform::decibel:
+      return expected == Dimension::decibel ? number : std::pow(10.0, number / 20.0);
     case Transform::kelvin:
       return expected == Dimension::temperature || expected == Dimension::any ? number - 273.15
                                                                               : number;

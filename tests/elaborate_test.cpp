@@ -6,28 +6,12 @@
 #include <vector>
 
 #include "tacet/elaborate.hpp"
+#include "text_circuit.hpp"
 
 using namespace tacet;
+using tacet::testing::elaborate_text;
 
 namespace {
-
-struct Elaborated {
-  std::optional<Circuit> circuit;
-  std::string diagnostics;
-};
-
-/// Elaborates `text` as main.tacet with `files` beside it, all in memory.
-Elaborated elaborate_text(const std::string& text,
-                          const std::vector<std::pair<std::string, std::string>>& files = {},
-                          const ElaborateOptions& options = {}) {
-  MemoryFileReader reader;
-  reader.add("main.tacet", text);
-  for (const auto& [path, body] : files) reader.add(path, body);
-  SourceManager sources;
-  Diagnostics diagnostics(sources);
-  auto circuit = elaborate_file("main.tacet", reader, sources, diagnostics, options);
-  return {std::move(circuit), diagnostics.render_all()};
-}
 
 const Element& element(const Circuit& c, const std::string& name) {
   auto index = c.find_element(name);
@@ -400,4 +384,12 @@ TEST_CASE("the top file's title names the circuit, not a library's", "[elaborate
                           {{"lib.tacet", "title \"Library\"\nmodel deep opamp { gbw 1M }\n"}});
   REQUIRE(r.circuit);
   CHECK(r.circuit->title == "Phono stage");
+}
+
+TEST_CASE("a negative decibel value is a ratio below one", "[elaborate]") {
+  // -6.0206 dB is a voltage ratio of 1/2 (20 log10 0.5).
+  auto r = elaborate_text("vcvs E1 (o, gnd; p, gnd) gain=-6.020599913279624dB\nres R (p, gnd) 1k\nres R2 (o, gnd) 1k\n");
+  INFO(r.diagnostics);
+  REQUIRE(r.circuit);
+  CHECK(element(*r.circuit, "E1").value == Approx(0.5).epsilon(1e-12));
 }

@@ -430,11 +430,30 @@ TEST_CASE("something left after a complete statement is reported", "[parser]") {
         "                  ^\n");
 }
 
-TEST_CASE("spec statements are reserved", "[parser]") {
+TEST_CASE("a spec has a name, a kind, an optional probe and options", "[parser][spec]") {
+  auto netlist = parse_good("spec flat_band flatness (adc_p, adc_n) from=2Hz to=4kHz max=0.1dB\n"
+                            "spec rails_ok rails margin=1V\n");
+  REQUIRE(netlist.statements.size() == 2);
+  const auto& flat = boost::get<tacet::ast::Spec>(netlist.statements[0]);
+  CHECK(flat.name.text == "flat_band");
+  CHECK(flat.kind.text == "flatness");
+  REQUIRE(flat.probe.has_value());
+  CHECK(flat.probe->first.size() == 2);
+  CHECK(flat.probe->first[1].node == "adc_n");
+  REQUIRE(flat.options.size() == 3);
+  CHECK(flat.options[2].key.text == "max");
+  CHECK(flat.name.offset == 5);
+  const auto& rails = boost::get<tacet::ast::Spec>(netlist.statements[1]);
+  CHECK_FALSE(rails.probe.has_value());
+  CHECK(rails.options.size() == 1);
+}
+
+TEST_CASE("a spec without its kind is an error after its name", "[parser][spec]") {
   CHECK(parse_bad("spec gain\n") ==
-        "demo.tacet:1:1: error: 'spec' statements are not supported yet\n"
+        "demo.tacet:1:10: error: expected the kind of spec (gain, flatness, phase, upper_corner, ...) "
+        "after 'spec gain'\n"
         "spec gain\n"
-        "^~~~\n");
+        "         ^\n");
 }
 
 TEST_CASE("a block body takes only params, elements and uses", "[parser]") {

@@ -144,7 +144,16 @@ struct Block : Located {
   std::vector<BlockStatement> body;
 };
 
-struct Statement : x3::variant<Title, Include, Ambient, Supply, Param, Instance, Model, Block> {
+/// `spec NAME KIND (probe) key=value ...`: one requirement of the budget.
+/// The probe connections are optional (a rails spec has none).
+struct Spec : Located {
+  Identifier name;
+  Identifier kind;
+  boost::optional<Connections> probe;
+  std::vector<Option> options;
+};
+
+struct Statement : x3::variant<Title, Include, Ambient, Supply, Param, Instance, Model, Block, Spec> {
   using base_type::base_type;
   using base_type::operator=;
 };

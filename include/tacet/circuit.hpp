@@ -6,12 +6,14 @@
 #include <complex>
 #include <cstddef>
 #include <limits>
+#include <map>
 #include <optional>
 #include <string>
 #include <unordered_map>
 #include <vector>
 
 #include "tacet/source.hpp"
+#include "tacet/spec.hpp"
 
 namespace tacet {
 
@@ -80,6 +82,8 @@ struct Circuit {
   std::vector<Element> elements;
   std::vector<OpAmpModel> models;
   std::vector<SourceLocation> node_where;  ///< where each node first appeared
+  std::vector<Spec> specs;                 ///< the budget, in the order written
+  std::map<std::string, double> params;    ///< the file's top-level params, for diffs
 
   /// Node id by name, adding it when new.
   int node(const std::string& name, SourceLocation where = {});

@@ -36,4 +36,10 @@ class SolveError : public Error {
   explicit SolveError(const std::string& message) : Error(message, ExitStatus::unsolvable) {}
 };
 
+/// At least one spec failed; the verdict has already been written.
+class SpecFailed : public Error {
+ public:
+  SpecFailed() : Error("", ExitStatus::spec_failed) {}
+};
+
 }  // namespace tacet

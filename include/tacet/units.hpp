@@ -27,6 +27,7 @@ enum class Dimension {
   current_density,  ///< A/rtHz (a bare A is accepted too)
   power,        ///< W
   angle,        ///< degrees: deg
+  decibel,      ///< a level in dB, kept in dB: plain or with dB (spec limits)
   any,          ///< params and block arguments: every unit accepted
 };
 

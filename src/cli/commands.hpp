@@ -9,5 +9,6 @@ namespace tacet::cli {
 void setup_ac(CLI::App& app);
 void setup_noise(CLI::App& app);
 void setup_show(CLI::App& app);
+void setup_check(CLI::App& app);
 
 }  // namespace tacet::cli

@@ -22,3 +22,4 @@ BOOST_FUSION_ADAPT_STRUCT(tacet::ast::Instance, keyword, name, connections, valu
 BOOST_FUSION_ADAPT_STRUCT(tacet::ast::ModelEntry, key, value)
 BOOST_FUSION_ADAPT_STRUCT(tacet::ast::Model, name, kind, entries)
 BOOST_FUSION_ADAPT_STRUCT(tacet::ast::Block, name, ports, parameters, body)
+BOOST_FUSION_ADAPT_STRUCT(tacet::ast::Spec, name, kind, probe, options)

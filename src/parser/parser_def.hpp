@@ -121,6 +121,7 @@ struct block_name_id;
 struct model_id : annotate_location {};
 struct model_entry_id : annotate_location {};
 struct block_id : annotate_location {};
+struct spec_id : annotate_location {};
 struct block_ports_id;
 struct block_body_id;
 struct block_statement_id;
@@ -179,6 +180,7 @@ x3::rule<block_name_id, ast::Expr> const block_name = "block_name";
 x3::rule<model_id, ast::Model> const model = "model";
 x3::rule<model_entry_id, ast::ModelEntry> const model_entry = "model_entry";
 x3::rule<block_id, ast::Block> const block = "block";
+x3::rule<spec_id, ast::Spec> const spec = "spec";
 x3::rule<block_ports_id, std::vector<ast::Terminal>> const block_ports = "block_ports";
 x3::rule<block_body_id, std::vector<ast::BlockStatement>> const block_body = "block_body";
 x3::rule<block_statement_id, ast::BlockStatement> const block_statement = "block_statement";
@@ -295,7 +297,7 @@ inline statement_start_parser const statement_start{};
 
 /// The words that may only appear at the top level of a file.
 inline bool is_top_level_only(std::string_view text) {
-  for (const char* k : {"title", "include", "ambient", "supply", "model", "block"}) {
+  for (const char* k : {"title", "include", "ambient", "supply", "model", "block", "spec"}) {
     if (text == k) return true;
   }
   return false;
@@ -327,9 +329,6 @@ struct unknown_statement_parser : x3::parser<unknown_statement_parser<InsideBloc
     if (end == at) ++end;
     const std::string found(at, end);
     const auto length = static_cast<std::uint32_t>(end - at);
-    if (found == "spec") {
-      throw syntax_error{at, length, "'spec' statements are not supported yet", {}};
-    }
     if (InsideBlock && is_top_level_only(found)) {
       throw syntax_error{at, length, "'" + found + "' is not allowed inside a block", {}};
     }
@@ -403,6 +402,9 @@ inline auto const model_def = keyword_of(x3::lit("model")) > identifier > identi
                               x3::skip(model_skipper)[*model_entry > model_close];
 inline auto const model_entry_def = identifier > term;
 
+inline auto const spec_kind = x3::rule<struct spec_kind_id, ast::Identifier>{"spec_kind"} =
+    identifier;
+
 inline auto const block_def = keyword_of(x3::lit("block")) > identifier > block_ports > *option >
                               block_open > block_body > block_close;
 inline auto const port_list =
@@ -413,8 +415,11 @@ inline auto const block_body_def =
 inline auto const block_statement_def =
     statement_start >> (param | element | use | unknown_block_statement);
 
+inline auto const spec_def = keyword_of(x3::lit("spec")) > identifier > spec_kind > -connections >
+                             *option;
+
 inline auto const statement_def = title | include | ambient | supply | param | element | use |
-                                  model | block | unknown_statement;
+                                  model | block | spec | unknown_statement;
 
 BOOST_SPIRIT_DEFINE(identifier, string, node, numeral, digits, suffix, word, quantity, term,
                     signed_term, expression, sum, sum_operation, product, product_value,
@@ -422,7 +427,7 @@ BOOST_SPIRIT_DEFINE(identifier, string, node, numeral, digits, suffix, word, qua
                     primary, call, value, terminal, port, connections, option, title, title_text,
                     include, include_text, ambient, ambient_text, supply, param, element, passive,
                     source, controlled, opamp, use, model_name, block_name, model, model_entry,
-                    block, block_ports, block_body, block_statement, statement, newline)
+                    block, block_ports, block_body, block_statement, spec, statement, newline)
 
 /// One statement and the end of its line: what parse_netlist runs per statement.
 inline auto const statement_line = statement > end_of_statement;
@@ -465,6 +470,7 @@ inline std::string reader_message(const std::string& which) {
       {"ports_close", "expected ')' to close the block's ports"},
       {"block_open", "expected '{' to open the block"},
       {"block_close", "expected '}' to close the block"},
+      {"spec_kind", "expected the kind of spec (gain, flatness, phase, upper_corner, ...) after '{so_far}'"},
       {"end_of_statement", "unexpected '{found}' after '{so_far}'"},
   };
   for (const Entry& entry : table) {

@@ -1,0 +1,156 @@
+#include "tacet/check.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <limits>
+#include <memory>
+
+#include <fmt/format.h>
+
+#include "tacet/errors.hpp"
+#include "tacet/format.hpp"
+#include "tacet/probe.hpp"
+#include "tacet/response.hpp"
+
+namespace tacet {
+
+int CheckResult::failed() const {
+  return static_cast<int>(std::count_if(specs.begin(), specs.end(), [](const SpecResult& r) { return !r.pass; }));
+}
+
+double window_margin(double value, std::optional<double> min, std::optional<double> max) {
+  double margin = std::numeric_limits<double>::infinity();
+  if (min) margin = std::min(margin, value - *min);
+  if (max) margin = std::min(margin, *max - value);
+  return margin;
+}
+
+namespace {
+
+/// Points per decade of the grid a band is searched on before refinement.
+constexpr int kGridPerDecade = 100;
+
+std::vector<double> log_grid(double from, double to) {
+  const int n = std::max(2, static_cast<int>(std::ceil(std::log10(to / from) * kGridPerDecade)) + 1);
+  std::vector<double> f(static_cast<std::size_t>(n));
+  for (int k = 0; k < n; ++k) f[static_cast<std::size_t>(k)] = from * std::pow(to / from, static_cast<double>(k) / (n - 1));
+  f.back() = to;
+  return f;
+}
+
+class SpecMeter {
+ public:
+  explicit SpecMeter(const Circuit& circuit) : circuit_(circuit) {}
+
+  SpecResult measure(const Spec& spec) {
+    SpecResult r{spec, std::nullopt, 0, false, 0, {}};
+    if (!spec.probe.empty()) probe_ = resolve_probe(spec.probe, circuit_);
+    switch (spec.kind) {
+      case SpecKind::gain: gain(r); break;
+      case SpecKind::phase: phase(r); break;
+      case SpecKind::flatness: flatness(r); break;
+      case SpecKind::upper_corner:
+      case SpecKind::lower_corner: corner(r); break;
+      case SpecKind::noise:
+      case SpecKind::snr:
+      case SpecKind::offset:
+      case SpecKind::rails:
+        throw InputError(fmt::format("error: spec '{}': the {} analysis is not available in this build\n",
+                                     spec.name, to_string(spec.kind)));
+    }
+    if (r.value) {
+      r.margin = window_margin(*r.value, spec.min, spec.max);
+      r.pass = r.margin >= 0;
+    }
+    return r;
+  }
+
+ private:
+  FrequencyResponse& response() {
+    if (!response_) response_ = std::make_unique<FrequencyResponse>(circuit_);
+    return *response_;
+  }
+  std::complex<double> h(const Spec&, double f) { return response().at(probe_, f); }
+  double db_at(const Spec& spec, double f) { return to_db(h(spec, f)); }
+
+  void gain(SpecResult& r) {
+    const auto z = h(r.spec, r.spec.at);
+    r.value = r.spec.unit == SpecUnit::db ? to_db(z) : std::abs(z);
+    r.where = r.spec.at;
+  }
+
+  void phase(SpecResult& r) {
+    r.value = to_degrees(h(r.spec, r.spec.at));
+    r.where = r.spec.at;
+  }
+
+  /// Largest |dB(H(f)) - dB(H(ref))| over the band: grid, then a golden-section
+  /// refinement around the worst grid point.
+  void flatness(SpecResult& r) {
+    const Spec& s = r.spec;
+    const double reference = db_at(s, s.ref);
+    auto deviation = [&](double f) { return std::abs(db_at(s, f) - reference); };
+    const auto grid = log_grid(s.from, s.to);
+    std::size_t worst = 0;
+    double worst_value = -1;
+    for (std::size_t i = 0; i < grid.size(); ++i) {
+      const double d = deviation(grid[i]);
+      if (d > worst_value) worst = i, worst_value = d;
+    }
+    double where = grid[worst];
+    if (worst > 0 && worst + 1 < grid.size()) {
+      double a = std::log(grid[worst - 1]), b = std::log(grid[worst + 1]);
+      const double g = (std::sqrt(5.0) - 1) / 2;
+      for (int it = 0; it < 60 && b - a > 1e-12; ++it) {
+        const double c = b - g * (b - a), d = a + g * (b - a);
+        if (deviation(std::exp(c)) > deviation(std::exp(d))) b = d; else a = c;
+      }
+      const double f = std::exp((a + b) / 2);
+      if (deviation(f) > worst_value) worst_value = deviation(f), where = f;
+    }
+    r.value = worst_value;
+    r.where = where;
+  }
+
+  /// The first frequency, going away from ref, where the response has fallen
+  /// `drop` dB below its value at ref; bisection in log f to 1e-12.
+  void corner(SpecResult& r) {
+    const Spec& s = r.spec;
+    const double target = db_at(s, s.ref) - s.drop;
+    const bool upward = s.kind == SpecKind::upper_corner;
+    const auto grid = upward ? log_grid(s.ref, s.to) : log_grid(s.from, s.ref);
+    auto below = [&](double f) { return db_at(s, f) < target; };
+    const std::size_t n = grid.size();
+    for (std::size_t k = 1; k < n; ++k) {
+      const double inside = upward ? grid[k - 1] : grid[n - k];
+      const double outside = upward ? grid[k] : grid[n - 1 - k];
+      if (!below(outside)) continue;
+      double a = std::log(inside), b = std::log(outside);
+      for (int it = 0; it < 100 && std::abs(b - a) > 1e-13; ++it) {
+        const double m = (a + b) / 2;
+        (below(std::exp(m)) ? b : a) = m;
+      }
+      r.value = std::exp((a + b) / 2);
+      r.where = *r.value;
+      return;
+    }
+    r.note = fmt::format("the response stays within {:.4g} dB of its value at {}Hz from {}Hz to {}Hz",
+                         s.drop, format_si(s.ref), format_si(upward ? s.ref : s.from),
+                         format_si(upward ? s.to : s.ref));
+  }
+
+  const Circuit& circuit_;
+  std::unique_ptr<FrequencyResponse> response_;
+  Probe probe_;  ///< the probe of the spec being measured
+};
+
+}  // namespace
+
+CheckResult run_check(const Circuit& circuit) {
+  CheckResult result;
+  SpecMeter meter(circuit);
+  for (const auto& spec : circuit.specs) result.specs.push_back(meter.measure(spec));
+  return result;
+}
+
+}  // namespace tacet

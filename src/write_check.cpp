@@ -1,0 +1,115 @@
+#include "tacet/write_check.hpp"
+
+#include <cmath>
+
+#include <fmt/format.h>
+#include <nlohmann/json.hpp>
+
+#include "tacet/format.hpp"
+
+namespace tacet {
+
+std::string format_spec_value(double value, SpecUnit unit) {
+  switch (unit) {
+    case SpecUnit::db: return fmt::format("{:.4f} dB", value);
+    case SpecUnit::ratio: return fmt::format("{:.6g} V/V", value);
+    case SpecUnit::degrees: return fmt::format("{:.2f} deg", value);
+    case SpecUnit::hertz: return format_si(value, 5) + "Hz";
+    case SpecUnit::volts: return format_si(value, 4) + "V";
+  }
+  return fmt::format("{}", value);
+}
+
+namespace {
+
+std::string bare(double value, SpecUnit unit) {
+  std::string text = format_spec_value(value, unit);
+  auto space = text.find(' ');
+  return space == std::string::npos ? text : text.substr(0, space);
+}
+
+std::string unit_suffix(SpecUnit unit) {
+  std::string text = format_spec_value(1, unit);
+  auto space = text.find(' ');
+  return space == std::string::npos ? "" : text.substr(space);
+}
+
+}  // namespace
+
+std::string format_spec_limit(const Spec& spec) {
+  if (spec.kind == SpecKind::rails) return fmt::format("{}V inside", format_si(spec.margin));
+  if (spec.min && spec.max)
+    return fmt::format("{} .. {}{}", bare(*spec.min, spec.unit), bare(*spec.max, spec.unit), unit_suffix(spec.unit));
+  if (spec.min) return ">= " + format_spec_value(*spec.min, spec.unit);
+  if (spec.max) return "<= " + format_spec_value(*spec.max, spec.unit);
+  return "";
+}
+
+namespace {
+
+std::string where_text(const SpecResult& r) {
+  if (!r.note.empty()) return r.note;
+  switch (r.spec.kind) {
+    case SpecKind::flatness: return fmt::format("worst at {}Hz, ref {}Hz", format_si(r.where), format_si(r.spec.ref));
+    case SpecKind::gain:
+    case SpecKind::phase: return fmt::format("at {}Hz", format_si(r.where));
+    default: return "";
+  }
+}
+
+}  // namespace
+
+std::string check_table(const CheckResult& result, const ReportContext& context) {
+  std::vector<std::vector<std::string>> rows{{"spec", "kind", "measured", "limit", "margin", "result", ""}};
+  for (const auto& r : result.specs) {
+    rows.push_back({r.spec.name, to_string(r.spec.kind),
+                    r.value ? format_spec_value(*r.value, r.spec.unit) : "-", format_spec_limit(r.spec),
+                    r.value ? format_spec_value(r.margin, r.spec.unit) : "-", r.pass ? "PASS" : "FAIL",
+                    where_text(r)});
+  }
+  std::vector<std::size_t> width(rows.front().size(), 0);
+  for (const auto& row : rows)
+    for (std::size_t c = 0; c < row.size(); ++c) width[c] = std::max(width[c], row[c].size());
+  std::string out = context.title.empty() ? "" : context.title + "\n";
+  out += context.file + "\n\n";
+  for (const auto& row : rows) {
+    std::string line;
+    for (std::size_t c = 0; c < row.size(); ++c) {
+      // Names and words to the left, numbers to the right, the note last.
+      const bool right = c == 2 || c == 4;
+      std::string pad(width[c] - row[c].size(), ' ');
+      if (c) line += "  ";
+      line += right ? pad + row[c] : row[c] + (c + 1 < row.size() ? pad : "");
+    }
+    while (!line.empty() && line.back() == ' ') line.pop_back();
+    out += line + "\n";
+  }
+  const int failed = result.failed();
+  const int total = static_cast<int>(result.specs.size());
+  out += fmt::format("\n{} spec{}: {} pass, {} fail{}\n", total, total == 1 ? "" : "s", total - failed, failed,
+                     failed == 1 ? "s" : "");
+  return out;
+}
+
+std::string check_json(const CheckResult& result, const ReportContext& context) {
+  using json = nlohmann::ordered_json;
+  auto number = [](std::optional<double> v) { return v && std::isfinite(*v) ? json(*v) : json(nullptr); };
+  json specs = json::array();
+  for (const auto& r : result.specs) {
+    json limit = {{"min", number(r.spec.min)}, {"max", number(r.spec.max)}};
+    if (r.spec.kind == SpecKind::rails) limit = {{"margin", r.spec.margin}};
+    specs.push_back({{"name", r.spec.name},
+                     {"kind", to_string(r.spec.kind)},
+                     {"pass", r.pass},
+                     {"value", number(r.value)},
+                     {"limit", limit},
+                     {"margin", r.value ? number(r.margin) : json(nullptr)},
+                     {"unit", to_string(r.spec.unit)},
+                     {"note", r.note}});
+  }
+  json document = {{"analysis", "check"}, {"file", context.file}, {"title", context.title},
+                   {"specs", specs}, {"failed", result.failed()}};
+  return document.dump(1, ' ', false, json::error_handler_t::strict) + "\n";
+}
+
+}  // namespace tacet

@@ -1,0 +1,191 @@
+#include <catch2/catch.hpp>
+
+#include <cmath>
+#include <numbers>
+#include <string>
+
+#include "tacet/check.hpp"
+#include "tacet/errors.hpp"
+#include "text_circuit.hpp"
+
+using namespace tacet;
+using tacet::testing::elaborate_text;
+
+namespace {
+
+// RC low-pass: H = 1 / (1 + j f/fc), fc = 1/(2 pi R C) (closed form, first-order RC).
+const std::string kRc =
+    "vsrc Vin (in, gnd) ac=1\n"
+    "res R1 (in, out) 10k\n"
+    "cap C1 (out, gnd) 10n\n";
+const double kRcCorner = 1 / (2 * std::numbers::pi * 10e3 * 10e-9);
+
+// Unity-gain Sallen-Key low-pass with an ideal buffer (Sallen and Key, 1955):
+// R1 = R2 = R, feedback C1 = 2C, C2 = C gives Q = 1/sqrt 2 (Butterworth, 1930)
+// and w0 = 1/(R C sqrt 2): |H|^2 = 1 / (1 + (f/f0)^4).
+const std::string kButterworth =
+    "param r = 10k\nparam c = 10n\n"
+    "vsrc Vin (in, gnd) ac=1\n"
+    "res R1 (in, a) r\nres R2 (a, p) r\n"
+    "cap C1 (a, out) 2 * c\ncap C2 (p, gnd) c\n"
+    "vcvs E1 (out, gnd; p, gnd) gain=1\n";
+const double kButterworthF0 = 1 / (2 * std::numbers::pi * 10e3 * 10e-9 * std::sqrt(2.0));
+
+double butterworth_db(double f) { return -10 * std::log10(1 + std::pow(f / kButterworthF0, 4)); }
+
+SpecResult check_one(const std::string& circuit, const std::string& spec) {
+  auto r = elaborate_text(circuit + spec + "\n");
+  INFO(r.diagnostics);
+  REQUIRE(r.circuit);
+  REQUIRE(r.circuit->specs.size() == 1);
+  auto result = run_check(*r.circuit);
+  REQUIRE(result.specs.size() == 1);
+  return result.specs[0];
+}
+
+}  // namespace
+
+TEST_CASE("a gain spec passes inside its window and fails outside", "[check]") {
+  // At fc the RC gives 1/sqrt 2: -3.0103 dB.
+  auto pass = check_one(kRc, "spec g gain (out) at=1591.5494309189535 min=-3.02dB max=-3.0dB");
+  REQUIRE(pass.value);
+  CHECK(*pass.value == Approx(-10 * std::log10(2.0)).epsilon(1e-9));
+  CHECK(pass.pass);
+  CHECK(pass.margin == Approx(*pass.value + 3.02));  // -3.0103 is nearer the lower limit
+  auto fail = check_one(kRc, "spec g gain (out) at=1591.5494309189535 min=-1dB");
+  CHECK_FALSE(fail.pass);
+  CHECK(fail.margin == Approx(*fail.value + 1));
+  CHECK(fail.margin < 0);
+}
+
+TEST_CASE("a gain spec written as a ratio compares the magnitude", "[check]") {
+  auto r = check_one(kRc, "spec g gain (out) at=1591.5494309189535 min=0.7 max=0.72");
+  REQUIRE(r.value);
+  CHECK(r.spec.unit == SpecUnit::ratio);
+  CHECK(*r.value == Approx(1 / std::sqrt(2.0)).epsilon(1e-9));
+  CHECK(r.pass);
+}
+
+TEST_CASE("a phase spec measures the angle at its frequency", "[check]") {
+  // arg H(j fc) = -45 degrees for the first-order low-pass.
+  auto pass = check_one(kRc, "spec p phase (out) at=1591.5494309189535 min=-46deg max=-44deg");
+  REQUIRE(pass.value);
+  CHECK(*pass.value == Approx(-45).epsilon(1e-9));
+  CHECK(pass.pass);
+  CHECK(pass.margin == Approx(1).epsilon(1e-6));
+  auto fail = check_one(kRc, "spec p phase (out) at=1591.5494309189535 min=-30");
+  CHECK_FALSE(fail.pass);
+  CHECK(fail.margin == Approx(-15).epsilon(1e-6));
+}
+
+TEST_CASE("the upper corner of an RC low-pass is 1/(2 pi R C)", "[check]") {
+  auto r = check_one(kRc, "spec fc upper_corner (out) ref=1Hz min=1.5kHz max=1.7kHz");
+  REQUIRE(r.value);
+  // The -3.0103 dB point relative to 1 Hz, where |H| is 1 - 2e-7 dB below DC.
+  const double ref_db = -10 * std::log10(1 + std::pow(1 / kRcCorner, 2));
+  const double expected = kRcCorner * std::sqrt(std::pow(10, -(ref_db - 10 * std::log10(2.0)) / 10) - 1);
+  CHECK(*r.value == Approx(expected).epsilon(1e-9));
+  CHECK(r.pass);
+  auto fail = check_one(kRc, "spec fc upper_corner (out) ref=1Hz min=2kHz");
+  CHECK_FALSE(fail.pass);
+  CHECK(fail.margin == Approx(*fail.value - 2000));
+}
+
+TEST_CASE("the lower corner of an RC high-pass is 1/(2 pi R C)", "[check]") {
+  // High-pass: H = j(f/fc) / (1 + j f/fc); at 1 MHz it is within 1e-6 dB of 0 dB.
+  const std::string hp = "vsrc Vin (in, gnd) ac=1\ncap C1 (in, out) 10n\nres R1 (out, gnd) 10k\n";
+  auto r = check_one(hp, "spec fl lower_corner (out) ref=10MHz max=1.6kHz");
+  REQUIRE(r.value);
+  CHECK(*r.value == Approx(kRcCorner).epsilon(1e-7));
+  CHECK(r.pass);
+}
+
+TEST_CASE("a corner that is never reached fails with a note", "[check]") {
+  auto r = check_one(kRc, "spec fc upper_corner (out) ref=1Hz to=1kHz min=1Hz");
+  CHECK_FALSE(r.value);
+  CHECK_FALSE(r.pass);
+  CHECK(r.note.find("stays within") != std::string::npos);
+}
+
+TEST_CASE("flatness of a Butterworth low-pass matches its closed form", "[check]") {
+  // |H|^2 = 1/(1 + (f/f0)^4) is monotonic, so the largest deviation from the
+  // 100 Hz reference over 100 Hz .. 500 Hz is at 500 Hz (Butterworth, 1930).
+  auto r = check_one(kButterworth, "spec flat flatness (out) from=100Hz to=500Hz ref=100Hz max=0.1dB");
+  REQUIRE(r.value);
+  const double expected = butterworth_db(100) - butterworth_db(500);
+  CHECK(*r.value == Approx(expected).epsilon(1e-9));
+  CHECK(r.where == Approx(500));
+  CHECK(r.pass == (expected <= 0.1));
+  auto tight = check_one(kButterworth, "spec flat flatness (out) from=100Hz to=1kHz ref=100Hz max=0.01dB");
+  CHECK_FALSE(tight.pass);
+  CHECK(tight.margin == Approx(0.01 - (butterworth_db(100) - butterworth_db(1000))).epsilon(1e-9));
+}
+
+TEST_CASE("flatness finds a peak inside the band", "[check]") {
+  // A series RLC band-pass: the current peaks at 1/(2 pi sqrt(LC)) (closed form);
+  // measured from the band edge at 100 Hz the worst deviation is at resonance.
+  const std::string rlc = "vsrc V1 (a, gnd) ac=1\nres R (a, b) 100\nind L (b, c) 10m\ncap C (c, gnd) 1u\n";
+  auto r = check_one(rlc, "spec f flatness (b) from=100Hz to=10kHz max=1dB current=R");
+  const double f0 = 1 / (2 * std::numbers::pi * std::sqrt(10e-3 * 1e-6));
+  REQUIRE(r.value);
+  CHECK(r.where == Approx(f0).epsilon(1e-5));
+}
+
+TEST_CASE("specs are measured in the order written", "[check]") {
+  auto r = elaborate_text(kRc + "spec b gain (out) at=10 min=-1dB\nspec a phase (out) at=10 max=0\n");
+  REQUIRE(r.circuit);
+  auto result = run_check(*r.circuit);
+  REQUIRE(result.specs.size() == 2);
+  CHECK(result.specs[0].spec.name == "b");
+  CHECK(result.specs[1].spec.name == "a");
+  CHECK(result.failed() == 0);
+}
+
+TEST_CASE("window margins are positive inside and negative outside", "[check]") {
+  CHECK(window_margin(5, 4, 7) == 1);
+  CHECK(window_margin(6.5, 4, 7) == 0.5);
+  CHECK(window_margin(8, 4, 7) == -1);
+  CHECK(window_margin(3, 4, std::nullopt) == -1);
+  CHECK(window_margin(3, std::nullopt, 4) == 1);
+}
+
+TEST_CASE("a spec on an unknown node is rejected at its position", "[check][elaborate]") {
+  auto r = elaborate_text(kRc + "spec g gain (otu) at=1k min=0dB\n");
+  CHECK_FALSE(r.circuit);
+  CHECK(r.diagnostics ==
+        "main.tacet:4:14: error: no node named 'otu'\n"
+        "spec g gain (otu) at=1k min=0dB\n"
+        "             ^~~\n"
+        "hint: did you mean 'out'?\n");
+}
+
+TEST_CASE("a spec band must run from low to high", "[check][elaborate]") {
+  auto r = elaborate_text(kRc + "spec f flatness (out) from=20k to=20 max=0.1dB\n");
+  CHECK_FALSE(r.circuit);
+  CHECK(r.diagnostics ==
+        "main.tacet:4:28: error: from=20000Hz must be below to=20Hz\n"
+        "spec f flatness (out) from=20k to=20 max=0.1dB\n"
+        "                           ^~~\n"
+        "hint: a band is written from=low to=high\n");
+}
+
+TEST_CASE("an unknown spec kind suggests the nearest", "[check][elaborate]") {
+  auto r = elaborate_text(kRc + "spec f flatnes (out) from=20 to=20k max=0.1dB\n");
+  CHECK(r.diagnostics.find("main.tacet:4:8: error: unknown kind of spec 'flatnes'") == 0);
+  CHECK(r.diagnostics.find("hint: did you mean 'flatness'?") != std::string::npos);
+}
+
+TEST_CASE("a spec missing a required option names it", "[check][elaborate]") {
+  auto r = elaborate_text(kRc + "spec g gain (out) min=0dB\n");
+  CHECK(r.diagnostics.find("main.tacet:4:6: error: spec 'g' needs at=") == 0);
+}
+
+TEST_CASE("a spec limit in the wrong unit is rejected", "[check][elaborate]") {
+  auto r = elaborate_text(kRc + "spec g gain (out) at=1k min=3kHz\n");
+  CHECK(r.diagnostics.find("error: unit 'kHz' is a frequency; a gain is wanted here") != std::string::npos);
+}
+
+TEST_CASE("duplicate spec names are rejected", "[check][elaborate]") {
+  auto r = elaborate_text(kRc + "spec g gain (out) at=1k min=0dB\nspec g phase (out) at=1k max=0\n");
+  CHECK(r.diagnostics.find("main.tacet:5:6: error: spec 'g' is already defined") == 0);
+}
