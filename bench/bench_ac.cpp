@@ -11,6 +11,12 @@
 // calls (replaced below) plus SuiteSparse's mallocs (through its
 // SuiteSparse_config hooks). Eigen's own aligned mallocs are not counted.
 //
+// Noise section: the whole run_noise on the same ladder, points and probe
+// (every resistor is a contributor, so contributors = sections), against
+// run_ac: the ratio of the two sweeps, and the ratio per solved frequency
+// (run_noise also solves at the band integral's points, over the same
+// 1 Hz .. 100 MHz; their number is printed).
+//
 // Usage: tacet_bench [SIZE...]     (default 10 1000 100000; 100 log points 1 Hz..100 MHz)
 
 #include <SuiteSparse_config.h>
@@ -27,6 +33,7 @@
 
 #include "tacet/ac.hpp"
 #include "tacet/mna.hpp"
+#include "tacet/noise.hpp"
 
 namespace {
 
@@ -203,7 +210,51 @@ double allocations_per_point(const tacet::Circuit& circuit, int sections, tacet:
   return (count(2 * kPoints) - count(kPoints)) / kPoints;
 }
 
+// Microseconds per call of `run` (repeated until kMinSeconds have passed).
+template <typename Run>
+double microseconds_per_call(Run run) {
+  long runs = 0;
+  const auto start = Clock::now();
+  while (std::chrono::duration<double>(Clock::now() - start).count() < kMinSeconds || runs == 0) {
+    run();
+    ++runs;
+  }
+  return std::chrono::duration<double, std::micro>(Clock::now() - start).count() /
+         static_cast<double>(runs);
+}
+
+tacet::NoiseOptions noise_options_for(int sections) {
+  tacet::NoiseOptions options;
+  options.sweep.kind = tacet::SweepKind::list;
+  options.sweep.at = sweep_frequencies();
+  options.probe = numbered("n", sections);
+  return options;
+}
+
+void noise_section(const std::vector<int>& sizes) {
+  std::printf("\nNoise on the same ladder and points (KLU), against the AC sweep\n");
+  std::printf("%9s  %12s  %10s  %10s  %6s  %8s  %11s\n", "sections", "contributors", "ac ms",
+              "noise ms", "ratio", "band pts", "ratio/solve");
+  for (int sections : sizes) {
+    const auto circuit = rc_ladder(sections);
+    const auto ac = options_for(sections, tacet::SolverKind::klu, kPoints);
+    const auto noise = noise_options_for(sections);
+    const auto probe = tacet::run_noise(circuit, noise);
+    const double ac_us =
+        fastest_of_repeats([&] { return microseconds_per_call([&] { tacet::run_ac(circuit, ac); }); });
+    const double noise_us = fastest_of_repeats(
+        [&] { return microseconds_per_call([&] { tacet::run_noise(circuit, noise); }); });
+    const double solves = kPoints + probe.band_evaluations;
+    std::printf("%9d  %12zu  %10.3f  %10.3f  %6.2f  %8d  %11.2f\n", sections,
+                probe.contributors.size(), ac_us / 1e3, noise_us / 1e3, noise_us / ac_us,
+                probe.band_evaluations,
+                (noise_us / solves) / (ac_us / kPoints));
+    std::fflush(stdout);
+  }
+}
+
 }  // namespace
+
 
 int main(int argc, char** argv) {
   std::vector<int> sizes;
@@ -228,5 +279,9 @@ int main(int argc, char** argv) {
       std::fflush(stdout);
     }
   }
+  std::vector<int> noise_sizes;
+  for (int sections : sizes)
+    if (sections <= 10000) noise_sizes.push_back(sections);
+  noise_section(noise_sizes);
   return 0;
 }
