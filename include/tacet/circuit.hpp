@@ -46,6 +46,17 @@ struct OpAmpModel {
   SourceLocation where;
 };
 
+/// How a source's largest level was written: `level=40Vrms`, `level=56.6Vpk`
+/// or `level=200W load=8ohm` (power into a load, P = V_rms^2 / R).
+enum class LevelUnit { rms, peak, power };
+
+/// vsource: the largest signal the input must accept, for the headroom check.
+struct SignalLevel {
+  LevelUnit unit = LevelUnit::peak;
+  double value = 0;  ///< V rms, V peak or W, by `unit`
+  double load = 0;   ///< ohm; only with LevelUnit::power
+};
+
 struct Rails {
   double high = 0;  ///< V
   double low = 0;   ///< V
@@ -69,6 +80,9 @@ struct Element {
   bool noiseless = false;
   int model = -1;         ///< opamp: index into Circuit::models
   std::optional<Rails> rails;  ///< opamp: rails= on the instance
+  std::optional<SignalLevel> level;  ///< vsource: level= (and load=)
+  double band_low = 0;    ///< vsource: headroom band start, Hz; 0: not given
+  double band_high = 0;   ///< vsource: headroom band end, Hz; 0: not given
   SourceLocation where;
 
   std::complex<double> ac_phasor() const;
