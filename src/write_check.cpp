@@ -22,10 +22,13 @@ std::string format_spec_value(double value, SpecUnit unit) {
 
 namespace {
 
+/// A limit as it was written: no padding digits ("26.1", not "26.1000").
 std::string bare(double value, SpecUnit unit) {
-  std::string text = format_spec_value(value, unit);
-  auto space = text.find(' ');
-  return space == std::string::npos ? text : text.substr(0, space);
+  switch (unit) {
+    case SpecUnit::hertz: return format_si(value, 6) + "Hz";
+    case SpecUnit::volts: return format_si(value, 6) + "V";
+    default: return fmt::format("{:g}", value);
+  }
 }
 
 std::string unit_suffix(SpecUnit unit) {
@@ -40,8 +43,8 @@ std::string format_spec_limit(const Spec& spec) {
   if (spec.kind == SpecKind::rails) return fmt::format("{}V inside", format_si(spec.margin));
   if (spec.min && spec.max)
     return fmt::format("{} .. {}{}", bare(*spec.min, spec.unit), bare(*spec.max, spec.unit), unit_suffix(spec.unit));
-  if (spec.min) return ">= " + format_spec_value(*spec.min, spec.unit);
-  if (spec.max) return "<= " + format_spec_value(*spec.max, spec.unit);
+  if (spec.min) return ">= " + bare(*spec.min, spec.unit) + unit_suffix(spec.unit);
+  if (spec.max) return "<= " + bare(*spec.max, spec.unit) + unit_suffix(spec.unit);
   return "";
 }
 

@@ -1,0 +1,4 @@
+check
+@/check_rc_fail.tacet
+--format
+json

@@ -1,0 +1,2 @@
+check
+@/rc_lowpass.tacet

@@ -1,0 +1,4 @@
+check
+@/check_rc.tacet
+--set
+C1=22n
