@@ -1,0 +1,44 @@
+#pragma once
+// The aligned plain-text table every table writer uses: columns sized to their
+// widest cell (counted in UTF-8 code points), two spaces apart.
+
+#include <algorithm>
+#include <string>
+#include <vector>
+
+namespace tacet {
+
+/// Right-aligned columns sized to their widest cell, two spaces apart.
+class Table {
+ public:
+  enum class Align { right, left };
+  explicit Table(std::vector<std::string> header, Align align = Align::right)
+      : rows_{std::move(header)}, align_(align) {}
+  void add(std::vector<std::string> row) { rows_.push_back(std::move(row)); }
+  std::string render() const {
+    std::vector<std::size_t> width(rows_.front().size(), 0);
+    for (const auto& row : rows_)
+      for (std::size_t c = 0; c < row.size(); ++c) width[c] = std::max(width[c], display_width(row[c]));
+    std::string out;
+    for (const auto& row : rows_) {
+      std::string line;
+      for (std::size_t c = 0; c < row.size(); ++c) {
+        std::string pad(width[c] - display_width(row[c]), ' ');
+        if (c) line += "  ";
+        line += align_ == Align::right ? pad + row[c] : row[c] + (c + 1 < row.size() ? pad : "");
+      }
+      out += line + "\n";
+    }
+    return out;
+  }
+
+ private:
+  static std::size_t display_width(const std::string& s) {
+    return static_cast<std::size_t>(
+        std::count_if(s.begin(), s.end(), [](char ch) { return (static_cast<unsigned char>(ch) & 0xC0) != 0x80; }));
+  }
+  std::vector<std::vector<std::string>> rows_;
+  Align align_;
+};
+
+}  // namespace tacet
