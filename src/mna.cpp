@@ -205,8 +205,10 @@ void check_solvable(const Circuit& circuit, AnalysisKind kind) {
 
 // --- numbering and pattern ---------------------------------------------------
 
-MnaSystem::MnaSystem(const Circuit& circuit) : circuit_(&circuit) {
-  check_solvable(circuit, AnalysisKind::ac);
+MnaSystem::MnaSystem(const Circuit& circuit) : MnaSystem(circuit, AnalysisKind::ac) {}
+
+MnaSystem::MnaSystem(const Circuit& circuit, AnalysisKind kind) : circuit_(&circuit) {
+  check_solvable(circuit, kind);
   number_unknowns();
   build_pattern();
 }

@@ -48,6 +48,9 @@ class MnaSystem {
   /// Runs check_solvable(circuit, AnalysisKind::ac), then builds the pattern.
   /// The circuit must outlive the system.
   explicit MnaSystem(const Circuit& circuit);
+  /// The same, with the structural checks of `kind` (dc: capacitors open,
+  /// inductors short), for analyses that solve only at s = 0.
+  MnaSystem(const Circuit& circuit, AnalysisKind kind);
 
   int size() const { return pattern_.n; }
   const CscPattern& pattern() const { return pattern_; }
