@@ -2,6 +2,8 @@
 
 #include <fmt/format.h>
 
+#include <string_view>
+
 #include "elaborator.hpp"
 
 namespace tacet::detail {
@@ -33,8 +35,10 @@ std::vector<OptionSpec> options_for(ElementKind kind) {
     case ElementKind::capacitor:
     case ElementKind::inductor: return {{"tol", Dimension::ratio, false}};
     case ElementKind::vsource:
-      return {{"dc", Dimension::voltage, false}, {"ac", Dimension::voltage, false},
-              {"phase", Dimension::angle, false}};
+      return {{"dc", Dimension::voltage, false},        {"ac", Dimension::voltage, false},
+              {"phase", Dimension::angle, false},       {"level", Dimension::any, false},
+              {"load", Dimension::resistance, false},   {"band_low", Dimension::frequency, false},
+              {"band_high", Dimension::frequency, false}};
     case ElementKind::isource:
       return {{"dc", Dimension::current, false}, {"ac", Dimension::current, false},
               {"phase", Dimension::angle, false}};
@@ -157,6 +161,70 @@ std::optional<Rails> Elaborator::rails_of(const ast::Expr& expr, int file, const
   return Rails{*high, *low};
 }
 
+std::optional<SignalLevel> Elaborator::level_of(const ast::Expr& expr, int file,
+                                                const Scope& scope) {
+  // The unit says what the number means (rms, peak or power), so the level is
+  // a number written with its unit, optionally negated (to be refused below).
+  const ast::Expr* inner = &unwrap(expr);
+  double sign = 1;
+  if (const auto* unary = boost::get<ast::x3::forward_ast<ast::Unary>>(inner)) {
+    if (unary->get().op == '-') sign = -1;
+    inner = &unwrap(unary->get().operand);
+  }
+  struct Tail {
+    std::string_view text;
+    LevelUnit unit;
+    const char* si_unit;
+    Dimension dimension;
+  };
+  static const Tail kTails[] = {{"Vrms", LevelUnit::rms, "V", Dimension::voltage},
+                                {"Vpk", LevelUnit::peak, "V", Dimension::voltage},
+                                {"W", LevelUnit::power, "W", Dimension::power}};
+  const auto* quantity = boost::get<ast::Quantity>(inner);
+  for (const auto& tail : kTails) {
+    if (!quantity || !std::string_view(quantity->suffix).ends_with(tail.text)) continue;
+    ast::Quantity plain = *quantity;
+    plain.suffix.resize(plain.suffix.size() - tail.text.size());
+    plain.suffix += tail.si_unit;
+    auto v = value_of(ast::Expr(plain), file, scope, tail.dimension);
+    if (!v) return std::nullopt;
+    if (sign * *v <= 0) {
+      error(file, extent(expr), fmt::format("level= must be above zero, not {:g} {}", sign * *v,
+                                            tail.unit == LevelUnit::power ? "W" : tail.text));
+      return std::nullopt;
+    }
+    return SignalLevel{tail.unit, sign * *v, 0};
+  }
+  error(file, extent(expr), "level= needs its unit: Vrms, Vpk or W",
+        "write level=2Vrms, level=2.83Vpk or level=200W load=8ohm");
+  return std::nullopt;
+}
+
+bool Elaborator::check_level(const Element& e, const ast::Instance& instance, int file) {
+  const bool power = e.level && e.level->unit == LevelUnit::power;
+  if (power && e.level->load <= 0) {
+    error(file, instance.name, fmt::format("'{}' gives its level in W and needs load=", e.name),
+          "name the resistance the power is delivered into: load=8ohm");
+    return false;
+  }
+  if (!power && e.level && e.level->load > 0) {
+    error(file, instance.name, fmt::format("'{}': load= goes only with a level in W", e.name));
+    return false;
+  }
+  if ((e.band_low > 0) != (e.band_high > 0)) {
+    error(file, instance.name, fmt::format("'{}' needs both band_low= and band_high=", e.name),
+          "write band_low=20Hz band_high=20kHz");
+    return false;
+  }
+  if (e.band_low > 0 && !(e.band_low < e.band_high)) {
+    error(file, instance.name,
+          fmt::format("'{}': band_low= {:g} Hz must be below band_high= {:g} Hz", e.name,
+                      e.band_low, e.band_high));
+    return false;
+  }
+  return true;
+}
+
 void Elaborator::build_element(const ast::Instance& instance, int file,
                                const InstanceContext& context, ElementKind kind) {
   Element e;
@@ -210,6 +278,7 @@ void Elaborator::build_element(const ast::Instance& instance, int file,
   // Options: known keys once each, values with their dimension, then --set NAME.key.
   const auto specs = options_for(kind);
   std::set<std::string> given;
+  double load = 0;  // load= may come before level=
   auto apply = [&](const OptionSpec& spec, std::optional<double> v, const ast::Located& at, int at_file) {
     if (!v) return void(ok = false);
     const std::string key = spec.key;
@@ -224,6 +293,13 @@ void Elaborator::build_element(const ast::Instance& instance, int file,
       e.ac_magnitude = *v;
     } else if (key == "phase") {
       e.ac_phase = *v;
+    } else if (key == "load" && *v <= 0) {
+      error(at_file, at, fmt::format("load of '{}' must be greater than zero", e.name));
+      ok = false;
+    } else if (key == "load") {
+      load = *v;
+    } else if (key == "band_low" || key == "band_high") {
+      (key == "band_low" ? e.band_low : e.band_high) = *v;
     } else {  // gain, gm
       e.value = *v;
     }
@@ -258,6 +334,9 @@ void Elaborator::build_element(const ast::Instance& instance, int file,
     } else if (key == "rails") {
       auto rails = rails_of(*option.value, file, scope);
       if (rails) e.rails = rails; else ok = false;
+    } else if (key == "level") {
+      e.level = level_of(*option.value, file, scope);
+      if (!e.level) ok = false;
     } else {
       auto v = overridden(e.name + "." + key, scope, spec->dimension);
       if (!v) v = value_of(*option.value, file, scope, spec->dimension);
@@ -272,11 +351,16 @@ void Elaborator::build_element(const ast::Instance& instance, int file,
     if (std::string(spec.key) == "rails") {
       auto rails = rails_of(o->value, o->file, scope);
       if (rails) e.rails = rails; else ok = false;
+    } else if (std::string(spec.key) == "level") {
+      e.level = level_of(o->value, o->file, scope);
+      if (!e.level) ok = false;
     } else {
       apply(spec, evaluate(o->value, o->file, scope, spec.dimension, diagnostics_), extent(o->value), o->file);
       given.insert(spec.key);
     }
   }
+  if (e.level) e.level->load = load;
+  if (kind == ElementKind::vsource && ok && !check_level(e, instance, file)) ok = false;
   if ((kind == ElementKind::vcvs || kind == ElementKind::vccs) && ok) {
     const char* key = kind == ElementKind::vcvs ? "gain" : "gm";
     if (!given.count(key)) {
