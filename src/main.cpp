@@ -15,6 +15,7 @@ int main(int argc, char** argv) {
   app.require_subcommand(1);
   tacet::cli::setup_ac(app);
   tacet::cli::setup_noise(app);
+  tacet::cli::setup_bias(app);
   tacet::cli::setup_show(app);
   tacet::cli::setup_check(app);
   try {

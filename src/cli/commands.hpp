@@ -8,6 +8,7 @@ namespace tacet::cli {
 
 void setup_ac(CLI::App& app);
 void setup_noise(CLI::App& app);
+void setup_bias(CLI::App& app);
 void setup_show(CLI::App& app);
 void setup_check(CLI::App& app);
 

@@ -1,0 +1,71 @@
+// tacet bias: parse, elaborate, assemble at DC, solve the operating point and
+// the offset sensitivities, then the headroom at the declared level; write.
+
+#include <memory>
+
+#include <fmt/format.h>
+
+#include "commands.hpp"
+#include "common.hpp"
+#include "tacet/bias.hpp"
+#include "tacet/errors.hpp"
+#include "tacet/headroom.hpp"
+#include "tacet/write_bias.hpp"
+
+namespace tacet::cli {
+
+namespace {
+
+struct BiasCommandOptions {
+  CommonOptions common;
+  std::string band;  ///< "20..20k"; empty: the sources' band_low= / band_high=
+  int per_decade = 50;
+};
+
+HeadroomOptions headroom_options(const BiasCommandOptions& o) {
+  HeadroomOptions options;
+  options.per_decade = o.per_decade;
+  if (!o.band.empty()) {
+    const auto dots = o.band.find("..");
+    if (dots == std::string::npos)
+      throw InputError(fmt::format("error: --band '{}' is not FROM..TO\nhint: write --band 20..20k\n",
+                                   o.band));
+    options.band_low = parse_quantity("--band", o.band.substr(0, dots), Dimension::frequency);
+    options.band_high = parse_quantity("--band", o.band.substr(dots + 2), Dimension::frequency);
+  }
+  if (std::string problem = options.validate(); !problem.empty())
+    throw InputError(fmt::format("error: {}\n", problem));
+  return options;
+}
+
+void run(const BiasCommandOptions& o) {
+  const OutputFormat format = output_format(o.common);
+  const HeadroomOptions headroom_opts = headroom_options(o);
+  ReportContext context;
+  const Circuit circuit = load(o.common, context);
+  const BiasResult bias = run_bias(circuit);
+  const HeadroomResult headroom = run_headroom(circuit, bias, headroom_opts);
+  std::string text;
+  switch (format) {
+    case OutputFormat::table: text = bias_table(bias, headroom, context); break;
+    case OutputFormat::csv: text = bias_csv(bias); break;
+    case OutputFormat::json: text = bias_json(bias, headroom, context); break;
+  }
+  write_output(o.common.output, text);
+}
+
+}  // namespace
+
+void setup_bias(CLI::App& app) {
+  auto options = std::make_shared<BiasCommandOptions>();
+  CLI::App* bias = app.add_subcommand(
+      "bias", "DC operating point, worst-case offsets against the rails, headroom at the level");
+  add_common_options(*bias, options->common);
+  bias->add_option("--band", options->band,
+                   "Headroom band FROM..TO (20..20k); default: band_low=/band_high= on the source");
+  bias->add_option("--per-decade", options->per_decade, "Headroom grid: points per decade")
+      ->capture_default_str();
+  bias->callback([options] { run(*options); });
+}
+
+}  // namespace tacet::cli
