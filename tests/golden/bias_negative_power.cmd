@@ -1,0 +1,2 @@
+bias
+@/bias_negative_power.tacet

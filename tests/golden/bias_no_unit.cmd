@@ -1,0 +1,2 @@
+bias
+@/bias_no_unit.tacet

@@ -1,0 +1,2 @@
+bias
+@/bias_rails_inverted.tacet

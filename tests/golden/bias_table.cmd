@@ -1,0 +1,2 @@
+bias
+@/bias_speaker_input.tacet
