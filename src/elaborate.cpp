@@ -319,8 +319,13 @@ Circuit load_circuit(const std::string& path, const ElaborateOptions& options,
                      std::string* warnings) {
   SourceManager sources;
   Diagnostics diagnostics(sources);
-  DiskFileReader reader;
-  auto circuit = elaborate_file(path, reader, sources, diagnostics, options);
+  // `REV:path` reads that revision from git, includes too (tacet diff, check).
+  std::unique_ptr<FileReader> reader;
+  if (auto revision = split_revision(path))
+    reader = std::make_unique<RevisionFileReader>(revision->first);
+  else
+    reader = std::make_unique<DiskFileReader>();
+  auto circuit = elaborate_file(path, *reader, sources, diagnostics, options);
   if (!circuit) throw InputError(diagnostics.render_all());
   if (warnings) *warnings = diagnostics.render_all();
   return std::move(*circuit);

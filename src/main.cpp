@@ -18,6 +18,7 @@ int main(int argc, char** argv) {
   tacet::cli::setup_bias(app);
   tacet::cli::setup_show(app);
   tacet::cli::setup_check(app);
+  tacet::cli::setup_diff(app);
   try {
     app.parse(argc, argv);
   } catch (const CLI::ParseError& e) {

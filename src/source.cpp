@@ -2,6 +2,7 @@
 #include "tacet/source.hpp"
 
 #include <algorithm>
+#include <cstdio>
 #include <filesystem>
 #include <fstream>
 #include <sstream>
@@ -77,8 +78,49 @@ std::optional<std::string> MemoryFileReader::read(const std::string& path) {
 std::string resolve_relative(const std::string& including_file, const std::string& relative) {
   const std::filesystem::path target(relative);
   if (target.is_absolute()) return target.lexically_normal().string();
+  // A file read from a git revision includes from the same revision.
+  if (auto revision = split_revision(including_file))
+    return revision->first + ":" + resolve_relative(revision->second, relative);
   const auto folder = std::filesystem::path(including_file).parent_path();
   return (folder / target).lexically_normal().string();
+}
+
+}  // namespace tacet
+
+// ---- files from a git revision ------------------------------------------------
+
+namespace tacet {
+
+namespace {
+
+std::string shell_quote(const std::string& word) {
+  std::string out = "'";
+  for (char c : word) out += c == '\'' ? std::string("'\\''") : std::string(1, c);
+  return out + "'";
+}
+
+}  // namespace
+
+std::optional<std::pair<std::string, std::string>> split_revision(const std::string& spec) {
+  const auto colon = spec.find(':');
+  if (colon == std::string::npos || colon == 0 || colon + 1 == spec.size()) return std::nullopt;
+  std::error_code ec;
+  if (std::filesystem::exists(spec, ec)) return std::nullopt;  // a file whose name has a ':'
+  return std::make_pair(spec.substr(0, colon), spec.substr(colon + 1));
+}
+
+std::optional<std::string> RevisionFileReader::read(const std::string& path) {
+  const std::string prefix = revision_ + ":";
+  if (path.compare(0, prefix.size(), prefix) != 0) return disk_.read(path);
+  const std::string object = revision_ + ":./" + path.substr(prefix.size());
+  // git prints the blob on stdout; a missing revision or path is a non-zero exit.
+  FILE* pipe = ::popen(("git show " + shell_quote(object) + " 2>/dev/null").c_str(), "r");
+  if (!pipe) return std::nullopt;
+  std::string text;
+  char buffer[4096];
+  for (std::size_t n; (n = std::fread(buffer, 1, sizeof buffer, pipe)) > 0;) text.append(buffer, n);
+  if (::pclose(pipe) != 0) return std::nullopt;
+  return text;
 }
 
 }  // namespace tacet

@@ -52,9 +52,8 @@ std::string ac_table(const AcResult& result, const ReportContext& context) {
   return title_lines(context) + sweep_line(result) + "\n" + table.render();
 }
 
-namespace {
 
-std::string node_list(const Circuit& c, const Element& e) {
+std::string connection_list(const Circuit& c, const Element& e) {
   auto name = [&](int n) { return c.node_names[static_cast<std::size_t>(n)]; };
   switch (e.kind) {
     case ElementKind::opamp:
@@ -113,7 +112,6 @@ std::string model_line(const OpAmpModel& m) {
   return out + " }\n";
 }
 
-}  // namespace
 
 std::string circuit_listing(const Circuit& c, const ReportContext& context) {
   std::string out = title_lines(context);
@@ -122,7 +120,7 @@ std::string circuit_listing(const Circuit& c, const ReportContext& context) {
   if (c.supply) out += fmt::format(", supply {}V {}V", format_si(c.supply->high, 6), format_si(c.supply->low, 6));
   out += "\n\n";
   Table table({"kind", "name", "connections", "value"}, Table::Align::left);
-  for (const auto& e : c.elements) table.add({to_keyword(e.kind), e.name, node_list(c, e), element_value(c, e)});
+  for (const auto& e : c.elements) table.add({to_keyword(e.kind), e.name, connection_list(c, e), element_value(c, e)});
   out += table.render();
   std::vector<bool> used(c.models.size(), false);
   for (const auto& e : c.elements)

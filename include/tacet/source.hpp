@@ -9,6 +9,7 @@
 #include <string>
 #include <string_view>
 #include <unordered_map>
+#include <utility>
 #include <vector>
 
 namespace tacet {
@@ -66,6 +67,24 @@ class MemoryFileReader final : public FileReader {
  private:
   std::unordered_map<std::string, std::string> files_;
 };
+
+/// Reads `REV:path` through `git show REV:./path` (from the current folder's
+/// repository, path relative to the current folder), and plain paths from the
+/// disk. `tacet diff` uses it so an old revision's includes come from the same
+/// revision: resolve_relative keeps the `REV:` prefix on included paths.
+class RevisionFileReader final : public FileReader {
+ public:
+  explicit RevisionFileReader(std::string revision) : revision_(std::move(revision)) {}
+  std::optional<std::string> read(const std::string& path) override;
+
+ private:
+  std::string revision_;
+  DiskFileReader disk_;
+};
+
+/// Splits "REV:path" into its revision and path; nullopt for a plain path
+/// (no ':' before the first '/', or a path that exists on disk).
+std::optional<std::pair<std::string, std::string>> split_revision(const std::string& spec);
 
 /// `relative` as seen from the folder of `including_file` (absolute paths stay).
 std::string resolve_relative(const std::string& including_file, const std::string& relative);

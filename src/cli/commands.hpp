@@ -11,5 +11,6 @@ void setup_noise(CLI::App& app);
 void setup_bias(CLI::App& app);
 void setup_show(CLI::App& app);
 void setup_check(CLI::App& app);
+void setup_diff(CLI::App& app);
 
 }  // namespace tacet::cli

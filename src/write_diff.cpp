@@ -1,0 +1,80 @@
+#include "tacet/write_diff.hpp"
+
+#include <cmath>
+
+#include <fmt/format.h>
+#include <nlohmann/json.hpp>
+
+#include "tacet/format.hpp"
+#include "tacet/write_check.hpp"
+
+namespace tacet {
+
+namespace {
+
+std::string side_line(const char* label, const ReportContext& side) {
+  return fmt::format("{} {}{}\n", label, side.file, side.title.empty() ? "" : "  (" + side.title + ")");
+}
+
+std::string verdict(const std::optional<SpecResult>& r) {
+  if (!r) return "-";
+  return fmt::format("{} {}", r->value ? format_spec_value(*r->value, r->spec.unit) : "-", r->pass ? "PASS" : "FAIL");
+}
+
+}  // namespace
+
+std::string diff_table(const DiffResult& result, const DiffContext& context) {
+  std::string out = side_line("old:", context.old_side) + side_line("new:", context.new_side);
+  out += "\ncircuit:\n";
+  if (result.circuit.empty()) out += "  no change\n";
+  for (const auto& c : result.circuit) {
+    switch (c.kind) {
+      case ChangeKind::added: out += fmt::format("  + {} {}: {}\n", c.what, c.name, c.after); break;
+      case ChangeKind::removed: out += fmt::format("  - {} {}: {}\n", c.what, c.name, c.before); break;
+      case ChangeKind::changed:
+        out += fmt::format("  ~ {} {}: {}\n  {}  -> {}\n", c.what, c.name, c.before,
+                           std::string(c.what.size() + c.name.size() + 1, ' '), c.after);
+        break;
+    }
+  }
+  if (!result.probes.empty()) {
+    const auto& f = result.new_response.frequencies;
+    out += fmt::format("\nresponse, {} points from {}Hz to {}Hz (largest change, new minus old):\n", f.size(),
+                       format_si(f.front()), format_si(f.back()));
+    for (const auto& p : result.probes)
+      if (p.max_db_change == 0 && p.max_deg_change == 0)
+        out += fmt::format("  {}: no change\n", p.probe);
+      else
+        out += fmt::format("  {}: {:+.4f} dB at {}Hz, {:+.2f} deg at {}Hz\n", p.probe, p.max_db_change,
+                         format_si(p.db_at), p.max_deg_change, format_si(p.deg_at));
+  }
+  if (!result.specs.empty()) {
+    out += "\nspecs that moved:\n";
+    for (const auto& s : result.specs) out += fmt::format("  {}: {}  ->  {}\n", s.name, verdict(s.before), verdict(s.after));
+  }
+  return out;
+}
+
+std::string diff_json(const DiffResult& result, const DiffContext& context) {
+  using json = nlohmann::ordered_json;
+  auto number = [](double v) { return std::isfinite(v) ? json(v) : json(nullptr); };
+  auto side = [](const ReportContext& c) { return json{{"file", c.file}, {"title", c.title}}; };
+  auto spec = [&](const std::optional<SpecResult>& r) -> json {
+    if (!r) return nullptr;
+    return {{"pass", r->pass}, {"value", r->value ? number(*r->value) : json(nullptr)},
+            {"margin", r->value ? number(r->margin) : json(nullptr)}, {"unit", to_string(r->spec.unit)}};
+  };
+  json circuit = json::array(), probes = json::array(), specs = json::array();
+  for (const auto& c : result.circuit)
+    circuit.push_back({{"change", to_string(c.kind)}, {"what", c.what}, {"name", c.name},
+                       {"before", c.before}, {"after", c.after}});
+  for (const auto& p : result.probes)
+    probes.push_back({{"probe", p.probe}, {"max_db_change", number(p.max_db_change)}, {"db_at", number(p.db_at)},
+                      {"max_deg_change", number(p.max_deg_change)}, {"deg_at", number(p.deg_at)}});
+  for (const auto& s : result.specs) specs.push_back({{"name", s.name}, {"before", spec(s.before)}, {"after", spec(s.after)}});
+  json document = {{"analysis", "diff"}, {"old", side(context.old_side)}, {"new", side(context.new_side)},
+                   {"circuit", circuit}, {"probes", probes}, {"specs", specs}};
+  return document.dump(1, ' ', false, json::error_handler_t::strict) + "\n";
+}
+
+}  // namespace tacet
