@@ -335,7 +335,9 @@ void Elaborator::build_element(const ast::Instance& instance, int file,
       auto rails = rails_of(*option.value, file, scope);
       if (rails) e.rails = rails; else ok = false;
     } else if (key == "level") {
-      e.level = level_of(*option.value, file, scope);
+      ParsedOverride* o = find_override(e.name + ".level");  // --set Vin.level= wins
+      if (o) o->used = true;
+      e.level = o ? level_of(o->value, o->file, scope) : level_of(*option.value, file, scope);
       if (!e.level) ok = false;
     } else {
       auto v = overridden(e.name + "." + key, scope, spec->dimension);

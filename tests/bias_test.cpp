@@ -216,3 +216,18 @@ TEST_CASE("rails= on an instance overrides the supply, and without either nothin
   CHECK(amp(r, "U1").limit_high == 15);
   CHECK(*amp(r, "U1").ok);  // 11 V is inside +-15 V, though not inside the +-5 V supply
 }
+
+TEST_CASE("at DC capacitors are open and inductors are shorts", "[bias]") {
+  // Vin 2 V -> L1 -> out, R1 1k to gnd, C1 in parallel; and a 1k/1k divider
+  // through a series capacitor that blocks DC (Ohm's law).
+  CircuitBuilder b;
+  b.vsrc("Vin", "in", "gnd", 0).dc = 2;
+  b.add(ElementKind::inductor, "L1", {"in", "out"}, 10e-3);
+  b.add(ElementKind::resistor, "R1", {"out", "gnd"}, 1e3);
+  b.add(ElementKind::capacitor, "C1", {"out", "gnd"}, 1e-6);
+  b.add(ElementKind::capacitor, "C2", {"in", "mid"}, 1e-6);
+  b.add(ElementKind::resistor, "R2", {"mid", "gnd"}, 1e3);
+  const auto r = run_bias(b.circuit);
+  CHECK_THAT(at(b.circuit, r, "out"), IsClose(2.0, 1e-12));
+  CHECK(std::abs(at(b.circuit, r, "mid")) < 1e-15);
+}

@@ -45,12 +45,13 @@ std::string elaboration_errors(const std::string& text) {
   return diagnostics.render_all();
 }
 
-std::optional<SignalLevel> level_of(const std::string& options) {
+std::optional<SignalLevel> level_of(const std::string& options,
+                                    const ElaborateOptions& elaborate = {}) {
   MemoryFileReader reader;
   reader.add("main.tacet", "vsrc Vin (in, gnd) " + options + "\nres R1 (in, gnd) 1k\n");
   SourceManager sources;
   Diagnostics diagnostics(sources);
-  auto circuit = elaborate_file("main.tacet", reader, sources, diagnostics, {});
+  auto circuit = elaborate_file("main.tacet", reader, sources, diagnostics, elaborate);
   REQUIRE(circuit);
   return circuit->elements[0].level;
 }
@@ -167,6 +168,18 @@ TEST_CASE("level= reads V rms, V peak or W into a load", "[headroom][elaborate]"
   REQUIRE(power);
   CHECK(power->unit == LevelUnit::power);
   CHECK(power->load == 8);
+}
+
+TEST_CASE("--set Vin.level= sets or replaces the level", "[headroom][elaborate]") {
+  ElaborateOptions options;
+  options.overrides.push_back({"Vin.level", "3Vpk"});
+  auto replaced = level_of("level=40Vrms", options);
+  REQUIRE(replaced);
+  CHECK(replaced->unit == LevelUnit::peak);
+  CHECK(replaced->value == 3);
+  auto added = level_of("ac=1", options);
+  REQUIRE(added);
+  CHECK(added->value == 3);
 }
 
 TEST_CASE("a level with no unit is an error with its position", "[headroom][elaborate]") {
