@@ -11,6 +11,9 @@
 #include "tacet/format.hpp"
 #include "tacet/probe.hpp"
 #include "tacet/response.hpp"
+#include "tacet/bias.hpp"
+#include "tacet/headroom.hpp"
+#include "tacet/noise.hpp"
 
 namespace tacet {
 
@@ -52,11 +55,9 @@ class SpecMeter {
       case SpecKind::upper_corner:
       case SpecKind::lower_corner: corner(r); break;
       case SpecKind::noise:
-      case SpecKind::snr:
-      case SpecKind::offset:
-      case SpecKind::rails:
-        throw InputError(fmt::format("error: spec '{}': the {} analysis is not available in this build\n",
-                                     spec.name, to_string(spec.kind)));
+      case SpecKind::snr: noise(r); break;
+      case SpecKind::offset: offset(r); break;
+      case SpecKind::rails: rails(r); break;
     }
     if (r.value) {
       r.margin = window_margin(*r.value, spec.min, spec.max);
@@ -139,7 +140,74 @@ class SpecMeter {
                          format_si(upward ? s.to : s.ref));
   }
 
+  /// Noise over the spec's band: the rms total, or the SNR at the spec's level.
+  void noise(SpecResult& r) {
+    const Spec& s = r.spec;
+    NoiseOptions options;
+    options.sweep.kind = SweepKind::list;
+    options.sweep.at = {s.from, s.to};
+    options.probe = s.probe;
+    options.band = Band{s.from, s.to};
+    if (s.kind == SpecKind::snr) {
+      options.input = s.input;
+      options.level = s.level;
+    }
+    const NoiseResult n = run_noise(circuit_, options);
+    if (s.kind == SpecKind::noise) {
+      r.value = n.total_rms;
+      if (!n.contributors.empty())
+        r.note = fmt::format("largest: {} {} {:.0f}%", n.contributors[0].source,
+                             to_string(n.contributors[0].mechanism), 100 * n.contributors[0].share);
+    } else if (n.signal) {
+      r.value = n.signal->ratio_db;
+      r.note = fmt::format("signal {}V rms, noise {}V rms", format_si(n.signal->signal_rms), format_si(n.total_rms));
+    }
+  }
+
+  const BiasResult& bias() {
+    if (!bias_) bias_ = std::make_unique<BiasResult>(run_bias(circuit_));
+    return *bias_;
+  }
+
+  /// The largest |V| the node can reach over the offsets' unknown signs:
+  /// |nominal| + worst (the nominal includes the bias currents' shift).
+  void offset(SpecResult& r) {
+    const Probe probe = resolve_probe(r.spec.probe, circuit_);
+    const NodeBias& node = bias().node(probe.plus);
+    r.value = std::abs(node.nominal) + node.worst;
+    r.note = fmt::format("nominal {}V, worst-case band +-{}V", format_si(node.nominal), format_si(node.worst));
+  }
+
+  /// The smallest distance of any op-amp output from its rails minus swing,
+  /// at DC over the offsets and, where a source declares level=, at that
+  /// level over its band (every pin).
+  void rails(SpecResult& r) {
+    const BiasResult& b = bias();
+    std::optional<double> smallest;
+    auto take = [&](double margin, const std::string& where) {
+      if (std::isnan(margin)) return;
+      if (!smallest || margin < *smallest) smallest = margin, r.note = where;
+    };
+    for (const auto& op : b.opamps)
+      if (op.ok.has_value())
+        take(std::min(op.limit_high - op.high, op.low - op.limit_low), fmt::format("{} output at DC", op.name));
+    const bool has_level = std::any_of(circuit_.elements.begin(), circuit_.elements.end(),
+                                       [](const Element& e) { return e.level.has_value(); });
+    if (has_level) {
+      const HeadroomResult h = run_headroom(circuit_, b);
+      for (const auto& op : h.opamps) {
+        if (!op.has_rails) continue;
+        for (const auto* pin : {&op.out, &op.plus, &op.minus})
+          take(pin->margin, fmt::format("{} pin '{}' at {}Hz at the declared level", op.name, pin->node,
+                                        format_si(pin->frequency)));
+      }
+    }
+    r.value = smallest;
+    if (!smallest) r.note = "no op amp has rails to check: declare supply or rails=";
+  }
+
   const Circuit& circuit_;
+  std::unique_ptr<BiasResult> bias_;
   std::unique_ptr<FrequencyResponse> response_;
   Probe probe_;  ///< the probe of the spec being measured
 };

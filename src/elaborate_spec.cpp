@@ -254,12 +254,17 @@ void Elaborator::elaborate_spec(const ast::Spec& ast_spec, int file) {
     case SpecKind::rails:
       spec.unit = SpecUnit::volts;
       spec.margin = number("margin", Dimension::voltage).value_or(0);
+      spec.min = spec.margin;
       break;
   }
   if (needs_probe(*kind)) {
     auto current = given.find("current");
     auto probe = spec_probe(ast_spec, file, current == given.end() ? nullptr : current->second);
     if (!probe) return;
+    if (*kind == SpecKind::offset && probe->find(',') != std::string::npos) {
+      error(file, *ast_spec.probe, "an offset spec measures one node against gnd", "write (out)");
+      return;
+    }
     spec.probe = *probe;
   } else if (ast_spec.probe) {
     error(file, *ast_spec.probe, fmt::format("a {} spec takes no connections", ast_spec.kind.text));

@@ -189,3 +189,56 @@ TEST_CASE("duplicate spec names are rejected", "[check][elaborate]") {
   auto r = elaborate_text(kRc + "spec g gain (out) at=1k min=0dB\nspec g phase (out) at=1k max=0\n");
   CHECK(r.diagnostics.find("main.tacet:5:6: error: spec 'g' is already defined") == 0);
 }
+
+TEST_CASE("a noise spec integrates the output noise over its band", "[check][noise]") {
+  // R parallel C: the band total is sqrt((4kTR / (2 pi R C)) (atan(2 pi f2 R C) - atan(2 pi f1 R C)))
+  // (Johnson 1928, Nyquist 1928; the closed form of the RC integral). A 1 A
+  // current source of ac=0 keeps the node driven without adding noise.
+  const std::string rc = "ambient 25C\nisrc I1 (out, gnd) ac=0\nres R (out, gnd) 10k\ncap C (out, gnd) 10n\n";
+  auto r = check_one(rc, "spec n noise (out) from=20Hz to=20kHz max=1uV");
+  const double k = 1.380649e-23, t = 298.15, R = 10e3, C = 10e-9, w = 2 * std::numbers::pi * R * C;
+  const double expected = std::sqrt(4 * k * t * R / w * (std::atan(w * 20e3) - std::atan(w * 20)));
+  REQUIRE(r.value);
+  CHECK(*r.value == Approx(expected).epsilon(1e-3));
+  CHECK(r.pass == (expected <= 1e-6));
+  auto fail = check_one(rc, "spec n noise (out) from=20Hz to=20kHz max=100nV");
+  CHECK_FALSE(fail.pass);
+  CHECK(fail.margin == Approx(100e-9 - *fail.value));
+}
+
+TEST_CASE("an snr spec compares the signal at its level with the band noise", "[check][noise]") {
+  // Divider of two 10k resistors driven by Vin: gain 1/2; noise of 5k (R1 || R2)
+  // over 20 Hz .. 20 kHz: sqrt(4kT 5k 19980) (Johnson 1928, Nyquist 1928).
+  const std::string div = "vsrc Vin (in, gnd) ac=1\nres R1 (in, out) 10k\nres R2 (out, gnd) 10k\n";
+  auto r = check_one(div, "spec s snr (out) from=20Hz to=20kHz input=Vin level=1V min=100dB");
+  const double noise = std::sqrt(4 * 1.380649e-23 * 298.15 * 5e3 * 19980);
+  REQUIRE(r.value);
+  CHECK(*r.value == Approx(20 * std::log10(0.5 / noise)).epsilon(1e-6));
+  CHECK(r.pass);
+}
+
+TEST_CASE("an offset spec bounds a node over the op amps' offsets", "[check][bias]") {
+  // Non-inverting gain of 11 with vos = 1 mV: output offset vos (1 + Rf/Rg) = 11 mV
+  // (textbook op-amp DC error analysis; finite aol = 1e6 changes it by 1e-5).
+  const std::string amp =
+      "model m opamp { gbw 1M aol 120dB vos 1m }\n"
+      "vsrc Vin (in, gnd) dc=0\nopamp U1 (+in, -fb, out) m\nres Rf (out, fb) 10k\nres Rg (fb, gnd) 1k\n";
+  auto r = check_one(amp, "spec o offset (out) max=12mV");
+  REQUIRE(r.value);
+  CHECK(*r.value == Approx(11e-3).epsilon(1e-4));
+  CHECK(r.pass);
+  CHECK_FALSE(check_one(amp, "spec o offset (out) max=10mV").pass);
+}
+
+TEST_CASE("a rails spec fails when an output can come within its margin of the rails", "[check][bias]") {
+  // The same stage with vos = 100 mV: 1.1 V at the output, rails +-12 V, swing
+  // 1.5 V: 10.5 - 1.1 = 9.4 V inside the usable range.
+  const std::string amp =
+      "supply +12 -12\nmodel m opamp { gbw 1M aol 120dB vos 100m swing 1.5 }\n"
+      "vsrc Vin (in, gnd) dc=0\nopamp U1 (+in, -fb, out) m\nres Rf (out, fb) 10k\nres Rg (fb, gnd) 1k\n";
+  auto pass = check_one(amp, "spec r rails margin=9V");
+  REQUIRE(pass.value);
+  CHECK(*pass.value == Approx(9.4).epsilon(1e-4));
+  CHECK(pass.pass);
+  CHECK_FALSE(check_one(amp, "spec r rails margin=10V").pass);
+}
