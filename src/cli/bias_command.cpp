@@ -1,6 +1,7 @@
 // tacet bias: parse, elaborate, assemble at DC, solve the operating point and
 // the offset sensitivities, then the headroom at the declared level; write.
 
+#include <iostream>
 #include <memory>
 
 #include <fmt/format.h>
@@ -52,6 +53,10 @@ void run(const BiasCommandOptions& o) {
     case OutputFormat::json: text = bias_json(bias, headroom, context); break;
   }
   write_output(o.common.output, text);
+  // The table opens with the cautions; csv and json readers may not look, so
+  // a person at the terminal still sees them.
+  if (format != OutputFormat::table)
+    for (const auto& caution : headroom.cautions) std::cerr << caution << "\n";
 }
 
 }  // namespace
