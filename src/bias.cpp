@@ -124,6 +124,31 @@ double at_node(const MnaSystem& mna, const Vector& x, int node) {
   return u >= 0 ? x[static_cast<std::size_t>(u)].real() : 0.0;
 }
 
+bool drives(const Circuit& circuit, int node) {
+  return std::any_of(circuit.elements.begin(), circuit.elements.end(), [&](const Element& e) {
+    return e.kind == ElementKind::opamp && e.nodes[2] == node;
+  });
+}
+
+// Where a bias or offset current turns into a voltage: of the resistors on the
+// op amp's input pins, the one with the largest voltage across it in that
+// error's solution `x`. A pin that is an op-amp output (a follower's - input)
+// is left out: that op amp supplies the current, not the resistors on it.
+std::string busiest_resistor(const Circuit& circuit, const MnaSystem& mna, const Vector& x,
+                             const Element& opamp) {
+  std::string name;
+  double largest = 0;
+  for (const int pin : {opamp.nodes[0], opamp.nodes[1]}) {
+    if (pin == 0 || drives(circuit, pin)) continue;
+    for (const auto& e : circuit.elements) {
+      if (e.kind != ElementKind::resistor || (e.nodes[0] != pin && e.nodes[1] != pin)) continue;
+      const double across = std::abs(at_node(mna, x, e.nodes[0]) - at_node(mna, x, e.nodes[1]));
+      if (across > largest) largest = across, name = e.name;
+    }
+  }
+  return name;
+}
+
 void require_finite(const Vector& x, const MnaSystem& mna) {
   for (std::size_t u = 0; u < x.size(); ++u)
     if (!std::isfinite(x[u].real()))
@@ -208,6 +233,8 @@ BiasResult run_bias(const Circuit& circuit, const BiasOptions& options) {
   for (const DcError& error : dc_errors(circuit)) {
     const Vector s = dc.solve(unit_rhs(circuit, dc, error));
     require_finite(s, mna);
+    const std::string through =
+        error.kind == DcErrorKind::vos ? std::string() : busiest_resistor(circuit, mna, s, circuit.elements[error.element]);
     if (error.kind != DcErrorKind::ib)
       for (std::size_t k = 0; k < result.nodes.size(); ++k) {
         const double term = std::abs(s[k].real()) * error.limit;
@@ -219,7 +246,7 @@ BiasResult run_bias(const Circuit& circuit, const BiasOptions& options) {
       const double volts = error.kind == DcErrorKind::ib ? sensitivity * error.limit
                                                          : std::abs(sensitivity) * error.limit;
       amp.largest.push_back(
-          {circuit.elements[error.element].name, error.kind, std::abs(sensitivity), volts});
+          {circuit.elements[error.element].name, error.kind, std::abs(sensitivity), volts, through});
     }
   }
   for (std::size_t k = 0; k < result.nodes.size(); ++k) result.nodes[k].rss = std::sqrt(squares[k]);

@@ -21,10 +21,12 @@ std::string cell(double v) { return std::isfinite(v) ? format_si_fixed(v) : std:
 
 std::string ok_cell(bool checked, bool ok) { return !checked ? "-" : ok ? "yes" : "NO"; }
 
+// "U1 vos x10: 4mV", "U2 ib through Rf2: 900uV" (or "x9kohm" when no resistor carries it).
 std::string contribution(const OffsetContribution& c) {
-  const bool volts_per_volt = c.kind == DcErrorKind::vos;
-  return fmt::format("{} {} x{}{}: {}V", c.opamp, to_string(c.kind), format_si(c.gain, 3),
-                     volts_per_volt ? "" : "ohm", format_si(c.volts, 3));
+  const std::string how = !c.through.empty() ? "through " + c.through
+                          : c.kind == DcErrorKind::vos ? "x" + format_si(c.gain, 3)
+                                                       : "x" + format_si(c.gain, 3) + "ohm";
+  return fmt::format("{} {} {}: {}V", c.opamp, to_string(c.kind), how, format_si(c.volts, 3));
 }
 
 std::string largest_cell(const std::vector<OffsetContribution>& largest) {
@@ -116,7 +118,8 @@ json opamp_json(const OpAmpBias& a) {
   json largest = json::array();
   for (const auto& c : a.largest)
     largest.push_back({{"opamp", c.opamp}, {"kind", to_string(c.kind)}, {"gain", number(c.gain)},
-                       {"volts", number(c.volts)}});
+                       {"volts", number(c.volts)},
+                       {"through", c.through.empty() ? json(nullptr) : json(c.through)}});
   return {{"name", a.name},           {"out", a.out},
           {"nominal", number(a.nominal)}, {"low", number(a.low)},
           {"high", number(a.high)},       {"limit_low", number(a.limit_low)},

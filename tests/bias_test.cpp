@@ -88,6 +88,8 @@ TEST_CASE("bias current gives ib Rf minus ib Rs (1 + Rf/Rg) at the output", "[bi
   CHECK(worst_at(b.circuit, r, "out") == 0);  // ib is a nominal shift, not a band
   REQUIRE(amp(r, "U1").largest.size() == 1);
   CHECK_THAT(amp(r, "U1").largest[0].volts, IsClose(expected, 1e-9));
+  // ib Rf = 10 mV across Rf outweighs ib Rs = 1 mV across Rs (Ohm's law).
+  CHECK(amp(r, "U1").largest[0].through == "RfU1");
 }
 
 TEST_CASE("bias currents cancel when Rs equals Rf || Rg, leaving ios Rf", "[bias]") {

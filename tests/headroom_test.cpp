@@ -170,7 +170,7 @@ TEST_CASE("level= reads V rms, V peak or W into a load", "[headroom][elaborate]"
   CHECK(power->load == 8);
 }
 
-TEST_CASE("--set Vin.level= sets or replaces the level", "[headroom][elaborate]") {
+TEST_CASE("an override of Vin.level (--set) sets or replaces the level", "[headroom][elaborate]") {
   ElaborateOptions options;
   options.overrides.push_back({"Vin.level", "3Vpk"});
   auto replaced = level_of("level=40Vrms", options);

@@ -44,6 +44,9 @@ struct OffsetContribution {
   DcErrorKind kind = DcErrorKind::vos;
   double gain = 0;     ///< |dV/dsource|: V/V for vos, ohm for ios and ib
   double volts = 0;    ///< V: |S| limit for vos and ios; the signed shift for ib
+  /// ios and ib: the resistor that turns the current into the most voltage
+  /// (largest |v_a - v_b| in that error's solution), "" when none does.
+  std::string through;
 };
 
 struct NodeBias {

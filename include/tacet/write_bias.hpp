@@ -22,7 +22,7 @@ std::string bias_csv(const BiasResult& bias);
 
 /// {"analysis":"bias","file","title","nodes":{NAME:V},"offset":{NAME:{"worst","rss"}},
 ///  "opamps":[{"name","out","nominal","low","high","limit_low","limit_high","ok",
-///             "largest":[{"opamp","kind","gain","volts"}]}],
+///             "largest":[{"opamp","kind","gain","volts","through"}]}],
 ///  "warnings":[...],
 ///  "headroom":{"sources":[{"name","peak","rms","hazardous"}],"band":{"from","to"},
 ///              "opamps":[{"name","out","plus","minus": {"node","peak","low","high",
