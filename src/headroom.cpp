@@ -161,6 +161,7 @@ bool is_hazardous(const SignalLevel& level) {
 }
 
 std::string HeadroomOptions::validate() const {
+  if (per_decade < 1) return fmt::format("--per-decade {} must be at least 1", per_decade);
   if (band_low == 0 && band_high == 0) return {};
   if (!(std::isfinite(band_low) && band_low > 0 && std::isfinite(band_high)))
     return fmt::format("--band {}..{}: both ends must be finite frequencies above 0 Hz",
@@ -168,7 +169,6 @@ std::string HeadroomOptions::validate() const {
   if (!(band_low < band_high))
     return fmt::format("--band {}..{}: the low end must be below the high end",
                        format_si(band_low), format_si(band_high));
-  if (per_decade < 1) return fmt::format("per_decade {} must be at least 1", per_decade);
   return {};
 }
 

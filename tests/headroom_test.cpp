@@ -152,7 +152,11 @@ TEST_CASE("a declared level without a band is an error naming the source", "[hea
   options.band_low = 100, options.band_high = 1e3;
   CHECK(run_headroom(c, bias, options).band_high == 1e3);
   options.band_low = 2e3;
-  CHECK_THROWS_AS(run_headroom(c, bias, options), InputError);
+  CHECK_THROWS_WITH(run_headroom(c, bias, options),
+                    "error: --band 2k..1k: the low end must be below the high end\n");
+  options = HeadroomOptions{};
+  options.per_decade = 0;
+  CHECK_THROWS_WITH(run_headroom(c, bias, options), "error: --per-decade 0 must be at least 1\n");
 }
 
 TEST_CASE("level= reads V rms, V peak or W into a load", "[headroom][elaborate]") {
