@@ -332,7 +332,9 @@ void Elaborator::build_element(const ast::Instance& instance, int file,
     if (spec->flag) {
       e.noiseless = true;
     } else if (key == "rails") {
-      auto rails = rails_of(*option.value, file, scope);
+      ParsedOverride* o = find_override(e.name + ".rails");  // --set U1.rails= wins
+      if (o) o->used = true;
+      auto rails = o ? rails_of(o->value, o->file, scope) : rails_of(*option.value, file, scope);
       if (rails) e.rails = rails; else ok = false;
     } else if (key == "level") {
       ParsedOverride* o = find_override(e.name + ".level");  // --set Vin.level= wins

@@ -180,6 +180,19 @@ TEST_CASE("an op amp needs one + input, one - input and an output", "[elaborate]
         std::string::npos);
 }
 
+TEST_CASE("an override of U1.rails replaces rails written on the instance", "[elaborate]") {
+  ElaborateOptions options;
+  options.overrides.push_back({"U1.rails", "+5/-5"});
+  auto r = elaborate_text(std::string(kOpAmp) + "opamp U1 (+a, -b, b) amp rails=+15/-15\n"
+                                                "res R1 (a, gnd) 1k\n",
+                          {}, options);
+  REQUIRE(r.circuit);
+  const auto& u = element(*r.circuit, "U1");
+  REQUIRE(u.rails);
+  CHECK(u.rails->high == 5);
+  CHECK(u.rails->low == -5);
+}
+
 TEST_CASE("inverted rails are an error", "[elaborate]") {
   auto r = elaborate_text(std::string(kOpAmp) + "opamp U1 (+a, -b, b) amp rails=-15/+15\n");
   CHECK(r.diagnostics.find("error: rails inverted: high -15 V is not above low 15 V") != std::string::npos);
