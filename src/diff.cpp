@@ -7,6 +7,7 @@
 
 #include <fmt/format.h>
 
+#include "tacet/bias.hpp"
 #include "tacet/errors.hpp"
 #include "tacet/format.hpp"
 #include "tacet/write_table.hpp"
@@ -97,6 +98,50 @@ bool moved(const SpecResult& a, const SpecResult& b) {
   return std::abs(*a.value - *b.value) > 1e-9 * scale;
 }
 
+NoiseChange noise_change(const Circuit& old_c, const Circuit& new_c, const std::string& probe, const Band& band) {
+  NoiseOptions options;
+  options.sweep.kind = SweepKind::list;
+  options.sweep.at = {band.from, band.to};
+  options.probe = probe;
+  options.band = band;
+  const NoiseResult before = run_noise(old_c, options);
+  const NoiseResult after = run_noise(new_c, options);
+  NoiseChange change{probe, before.total_rms, after.total_rms, {}};
+  auto rms_of = [](const NoiseResult& r, const NoiseContributor& c) {
+    for (const auto& x : r.contributors)
+      if (x.source == c.source && x.mechanism == c.mechanism) return x.rms;
+    return 0.0;
+  };
+  for (const NoiseResult* side : {&after, &before})
+    for (std::size_t i = 0; i < side->contributors.size() && i < 3; ++i) {
+      const auto& c = side->contributors[i];
+      const bool listed = std::any_of(change.top.begin(), change.top.end(), [&](const ContributorChange& t) {
+        return t.source == c.source && t.mechanism == c.mechanism;
+      });
+      if (!listed) change.top.push_back({c.source, c.mechanism, rms_of(before, c), rms_of(after, c)});
+    }
+  return change;
+}
+
+/// DC points of the nodes both sides have, where they moved by more than 1 nV.
+std::vector<NodeChange> dc_changes(const BiasResult& before, const BiasResult& after) {
+  std::map<std::string, const NodeBias*> old_by_name;
+  for (const auto& n : before.nodes) old_by_name[n.name] = &n;
+  std::vector<NodeChange> out;
+  for (const auto& n : after.nodes) {
+    auto it = old_by_name.find(n.name);
+    if (it == old_by_name.end()) continue;
+    const NodeBias& o = *it->second;
+    if (std::abs(n.nominal - o.nominal) > 1e-9 || std::abs(n.worst - o.worst) > 1e-9)
+      out.push_back({n.name, o.nominal, n.nominal, o.worst, n.worst});
+  }
+  auto size = [](const NodeChange& c) {
+    return std::max(std::abs(c.new_nominal - c.old_nominal), std::abs(c.new_worst - c.old_worst));
+  };
+  std::stable_sort(out.begin(), out.end(), [&](const NodeChange& a, const NodeChange& b) { return size(a) > size(b); });
+  return out;
+}
+
 }  // namespace
 
 std::vector<CircuitChange> diff_circuits(const Circuit& old_circuit, const Circuit& new_circuit) {
@@ -158,6 +203,17 @@ DiffResult run_diff(const Circuit& old_circuit, const Circuit& new_circuit, cons
       if (std::isfinite(ddeg) && std::abs(ddeg) > std::abs(change.max_deg_change)) change.max_deg_change = ddeg, change.deg_at = f;
     }
     result.probes.push_back(change);
+  }
+  if (options.band)
+    for (const auto& trace : result.new_response.traces)
+      if (trace.probe.kind == ProbeKind::voltage)
+        result.noise.push_back(noise_change(old_circuit, new_circuit, trace.probe.text, *options.band));
+  try {
+    result.dc = dc_changes(run_bias(old_circuit), run_bias(new_circuit));
+  } catch (const SolveError& e) {
+    // An AC-coupled circuit without DC paths has no DC point to compare.
+    std::string message = e.what();
+    result.dc_note = message.substr(0, message.find('\n'));
   }
   if (!old_circuit.specs.empty() || !new_circuit.specs.empty()) {
     const CheckResult before = run_check(old_circuit);

@@ -6,6 +6,7 @@
 #include <nlohmann/json.hpp>
 
 #include "tacet/format.hpp"
+#include "tacet/text_table.hpp"
 
 namespace tacet {
 
@@ -63,30 +64,17 @@ std::string where_text(const SpecResult& r) {
 }  // namespace
 
 std::string check_table(const CheckResult& result, const ReportContext& context) {
-  std::vector<std::vector<std::string>> rows{{"spec", "kind", "measured", "limit", "margin", "result", ""}};
+  using Align = Table::Align;
+  // Names and words to the left, numbers to the right, the note last.
+  Table table({"spec", "kind", "measured", "limit", "margin", "result", ""},
+              {Align::left, Align::left, Align::right, Align::left, Align::right, Align::left, Align::left});
   for (const auto& r : result.specs) {
-    rows.push_back({r.spec.name, to_string(r.spec.kind),
-                    r.value ? format_spec_value(*r.value, r.spec.unit) : "-", format_spec_limit(r.spec),
-                    r.value ? format_spec_value(r.margin, r.spec.unit) : "-", r.pass ? "PASS" : "FAIL",
-                    where_text(r)});
+    table.add({r.spec.name, to_string(r.spec.kind), r.value ? format_spec_value(*r.value, r.spec.unit) : "-",
+               format_spec_limit(r.spec), r.value ? format_spec_value(r.margin, r.spec.unit) : "-",
+               r.pass ? "PASS" : "FAIL", where_text(r)});
   }
-  std::vector<std::size_t> width(rows.front().size(), 0);
-  for (const auto& row : rows)
-    for (std::size_t c = 0; c < row.size(); ++c) width[c] = std::max(width[c], row[c].size());
   std::string out = context.title.empty() ? "" : context.title + "\n";
-  out += context.file + "\n\n";
-  for (const auto& row : rows) {
-    std::string line;
-    for (std::size_t c = 0; c < row.size(); ++c) {
-      // Names and words to the left, numbers to the right, the note last.
-      const bool right = c == 2 || c == 4;
-      std::string pad(width[c] - row[c].size(), ' ');
-      if (c) line += "  ";
-      line += right ? pad + row[c] : row[c] + (c + 1 < row.size() ? pad : "");
-    }
-    while (!line.empty() && line.back() == ' ') line.pop_back();
-    out += line + "\n";
-  }
+  out += context.file + "\n\n" + table.render();
   const int failed = result.failed();
   const int total = static_cast<int>(result.specs.size());
   out += fmt::format("\n{} spec{}: {} pass, {} fail{}\n", total, total == 1 ? "" : "s", total - failed, failed,

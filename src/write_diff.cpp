@@ -48,6 +48,25 @@ std::string diff_table(const DiffResult& result, const DiffContext& context) {
         out += fmt::format("  {}: {:+.4f} dB at {}Hz, {:+.2f} deg at {}Hz\n", p.probe, p.max_db_change,
                          format_si(p.db_at), p.max_deg_change, format_si(p.deg_at));
   }
+  for (const auto& n : result.noise) {
+    out += fmt::format("\nnoise at {}: {}V rms -> {}V rms ({:+.2f} dB)\n", n.probe, format_si(n.old_rms),
+                       format_si(n.new_rms), 20 * std::log10(n.new_rms / n.old_rms));
+    for (const auto& c : n.top)
+      out += fmt::format("  {} {}: {}V -> {}V\n", c.source, to_string(c.mechanism), format_si(c.old_rms),
+                         format_si(c.new_rms));
+  }
+  if (!result.dc_note.empty()) {
+    out += "\nDC: not compared (" + result.dc_note + ")\n";
+  } else if (!result.dc.empty()) {
+    constexpr std::size_t kShown = 10;
+    out += "\nDC nodes that moved (nominal, worst-case band):\n";
+    for (std::size_t i = 0; i < result.dc.size() && i < kShown; ++i) {
+      const auto& d = result.dc[i];
+      out += fmt::format("  {}: {}V +-{}V -> {}V +-{}V\n", d.node, format_si(d.old_nominal), format_si(d.old_worst),
+                         format_si(d.new_nominal), format_si(d.new_worst));
+    }
+    if (result.dc.size() > kShown) out += fmt::format("  and {} more\n", result.dc.size() - kShown);
+  }
   if (!result.specs.empty()) {
     out += "\nspecs that moved:\n";
     for (const auto& s : result.specs) out += fmt::format("  {}: {}  ->  {}\n", s.name, verdict(s.before), verdict(s.after));
@@ -72,8 +91,21 @@ std::string diff_json(const DiffResult& result, const DiffContext& context) {
     probes.push_back({{"probe", p.probe}, {"max_db_change", number(p.max_db_change)}, {"db_at", number(p.db_at)},
                       {"max_deg_change", number(p.max_deg_change)}, {"deg_at", number(p.deg_at)}});
   for (const auto& s : result.specs) specs.push_back({{"name", s.name}, {"before", spec(s.before)}, {"after", spec(s.after)}});
+  json noise = json::array(), dc = json::array();
+  for (const auto& n : result.noise) {
+    json top = json::array();
+    for (const auto& c : n.top)
+      top.push_back({{"source", c.source}, {"mechanism", to_string(c.mechanism)}, {"old_rms", number(c.old_rms)},
+                     {"new_rms", number(c.new_rms)}});
+    noise.push_back({{"probe", n.probe}, {"old_rms", number(n.old_rms)}, {"new_rms", number(n.new_rms)},
+                     {"contributors", top}});
+  }
+  for (const auto& d : result.dc)
+    dc.push_back({{"node", d.node}, {"old_nominal", number(d.old_nominal)}, {"new_nominal", number(d.new_nominal)},
+                  {"old_worst", number(d.old_worst)}, {"new_worst", number(d.new_worst)}});
   json document = {{"analysis", "diff"}, {"old", side(context.old_side)}, {"new", side(context.new_side)},
-                   {"circuit", circuit}, {"probes", probes}, {"specs", specs}};
+                   {"circuit", circuit}, {"probes", probes}, {"noise", noise}, {"dc", dc},
+                   {"dc_note", result.dc_note}, {"specs", specs}};
   return document.dump(1, ' ', false, json::error_handler_t::strict) + "\n";
 }
 

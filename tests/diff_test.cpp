@@ -109,3 +109,32 @@ TEST_CASE("a missing revision is an input error", "[diff][git]") {
   CHECK_THROWS_WITH(load_circuit("no-such-revision-xyz:chain.tacet", {}),
                     Catch::Contains("cannot read 'no-such-revision-xyz:chain.tacet'"));
 }
+
+TEST_CASE("a diff reports DC node changes and noise totals over a band", "[diff][noise][bias]") {
+  // Divider from 1 V DC: out = R2 / (R1 + R2): 0.5 V -> 0.75 V (Ohm's law). Its noise is
+  // that of R1 || R2, 4kT (R1 || R2) over the band (Johnson 1928, Nyquist 1928):
+  // 500 ohm -> 750 ohm, a ratio of sqrt(1.5) in rms.
+  auto side = [](const char* r2) {
+    return std::string("vsrc Vin (in, gnd) dc=1 ac=1\nres R1 (in, out) 1k\nres R2 (out, gnd) ") + r2 + "\n";
+  };
+  DiffOptions options;
+  options.ac.probes = {"out"};
+  options.band = Band{20, 20e3};
+  auto result = run_diff(circuit_of(side("1k")), circuit_of(side("3k")), options);
+  REQUIRE(result.dc.size() == 1);
+  CHECK(result.dc[0].node == "out");
+  CHECK(result.dc[0].old_nominal == Approx(0.5).epsilon(1e-9));
+  CHECK(result.dc[0].new_nominal == Approx(0.75).epsilon(1e-9));
+  REQUIRE(result.noise.size() == 1);
+  CHECK(result.noise[0].new_rms / result.noise[0].old_rms == Approx(std::sqrt(1.5)).epsilon(1e-6));
+  CHECK(result.noise[0].old_rms == Approx(std::sqrt(4 * 1.380649e-23 * 298.15 * 500 * (20e3 - 20))).epsilon(1e-6));
+}
+
+TEST_CASE("a diff of circuits without a DC path says why DC is not compared", "[diff][bias]") {
+  const std::string hp = "vsrc Vin (in, gnd) ac=1\ncap C1 (in, out) 1n\ncap C2 (out, gnd) 1n\n";
+  DiffOptions options;
+  options.ac.probes = {"out"};
+  auto result = run_diff(circuit_of(hp), circuit_of(hp), options);
+  CHECK(result.dc.empty());
+  CHECK(result.dc_note.find("no DC path to gnd") != std::string::npos);
+}

@@ -11,6 +11,7 @@
 #include "tacet/ac.hpp"
 #include "tacet/check.hpp"
 #include "tacet/circuit.hpp"
+#include "tacet/noise.hpp"
 
 namespace tacet {
 
@@ -40,14 +41,40 @@ struct SpecChange {
   std::optional<SpecResult> after;   ///< nullopt: the spec was removed
 };
 
+/// A noise source's rms at the probe on each side (0 where it does not exist).
+struct ContributorChange {
+  std::string source;
+  NoiseMechanism mechanism = NoiseMechanism::thermal;
+  double old_rms = 0;  ///< V
+  double new_rms = 0;  ///< V
+};
+
+struct NoiseChange {
+  std::string probe;
+  double old_rms = 0;  ///< V over the band
+  double new_rms = 0;  ///< V
+  std::vector<ContributorChange> top;  ///< the three largest of each side, largest new first
+};
+
+/// A node's DC point and worst-case offset band on each side.
+struct NodeChange {
+  std::string node;
+  double old_nominal = 0, new_nominal = 0;  ///< V
+  double old_worst = 0, new_worst = 0;      ///< V
+};
+
 struct DiffOptions {
   AcOptions ac;  ///< probes and sweep shared by both sides; probes from the specs when empty
+  std::optional<Band> band;  ///< noise totals are compared over this band when given
 };
 
 struct DiffResult {
   std::vector<CircuitChange> circuit;
   std::vector<ProbeChange> probes;
   std::vector<SpecChange> specs;  ///< only those whose verdict or margin moved
+  std::vector<NoiseChange> noise;  ///< per voltage probe, when a band is given
+  std::vector<NodeChange> dc;      ///< nodes on both sides whose DC point or band moved, largest first
+  std::string dc_note;             ///< why there is no DC comparison (no DC path), or empty
   AcResult old_response;
   AcResult new_response;
 };

@@ -8,12 +8,17 @@
 
 namespace tacet {
 
-/// Right-aligned columns sized to their widest cell, two spaces apart.
+/// Columns sized to their widest cell, two spaces apart; right-aligned unless
+/// told otherwise, for the whole table or column by column.
 class Table {
  public:
   enum class Align { right, left };
   explicit Table(std::vector<std::string> header, Align align = Align::right)
-      : rows_{std::move(header)}, align_(align) {}
+      : rows_{std::move(header)}, align_(rows_.front().size(), align) {}
+  Table(std::vector<std::string> header, std::vector<Align> columns)
+      : rows_{std::move(header)}, align_(std::move(columns)) {
+    align_.resize(rows_.front().size(), Align::right);
+  }
   void add(std::vector<std::string> row) { rows_.push_back(std::move(row)); }
   std::string render() const {
     std::vector<std::size_t> width(rows_.front().size(), 0);
@@ -25,8 +30,9 @@ class Table {
       for (std::size_t c = 0; c < row.size(); ++c) {
         std::string pad(width[c] - display_width(row[c]), ' ');
         if (c) line += "  ";
-        line += align_ == Align::right ? pad + row[c] : row[c] + (c + 1 < row.size() ? pad : "");
+        line += align_[c] == Align::right ? pad + row[c] : row[c] + (c + 1 < row.size() ? pad : "");
       }
+      while (!line.empty() && line.back() == ' ') line.pop_back();
       out += line + "\n";
     }
     return out;
@@ -38,7 +44,7 @@ class Table {
         std::count_if(s.begin(), s.end(), [](char ch) { return (static_cast<unsigned char>(ch) & 0xC0) != 0x80; }));
   }
   std::vector<std::vector<std::string>> rows_;
-  Align align_;
+  std::vector<Align> align_;
 };
 
 }  // namespace tacet

@@ -27,12 +27,9 @@ HeadroomOptions headroom_options(const BiasCommandOptions& o) {
   HeadroomOptions options;
   options.per_decade = o.per_decade;
   if (!o.band.empty()) {
-    const auto dots = o.band.find("..");
-    if (dots == std::string::npos)
-      throw InputError(fmt::format("error: --band '{}' is not FROM..TO\nhint: write --band 20..20k\n",
-                                   o.band));
-    options.band_low = parse_quantity("--band", o.band.substr(0, dots), Dimension::frequency);
-    options.band_high = parse_quantity("--band", o.band.substr(dots + 2), Dimension::frequency);
+    const Band band = parse_band("--band", o.band);
+    options.band_low = band.from;
+    options.band_high = band.to;
   }
   if (std::string problem = options.validate(); !problem.empty())
     throw InputError(fmt::format("error: {}\n", problem));

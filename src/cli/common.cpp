@@ -53,6 +53,16 @@ std::vector<double> parse_quantity_list(const std::string& option, const std::st
   return out;
 }
 
+Band parse_band(const std::string& option, const std::string& text) {
+  const auto dots = text.find("..");
+  if (dots == std::string::npos || dots == 0 || dots + 2 == text.size())
+    throw InputError(fmt::format("error: {} '{}' is not F1..F2\nhint: write {} 20..20k\n", option, text, option));
+  const Band band{parse_quantity(option, text.substr(0, dots), Dimension::frequency),
+                  parse_quantity(option, text.substr(dots + 2), Dimension::frequency)};
+  if (auto problem = band.validate(); !problem.empty()) throw InputError(fmt::format("error: {}\n", problem));
+  return band;
+}
+
 OutputFormat output_format(const CommonOptions& options) {
   auto format = parse_output_format(options.format);
   if (!format)

@@ -9,6 +9,7 @@
 
 #include "tacet/ac.hpp"
 #include "tacet/circuit.hpp"
+#include "tacet/noise.hpp"
 #include "tacet/output.hpp"
 #include "tacet/units.hpp"
 
@@ -48,6 +49,10 @@ Sweep parse_sweep(const SweepFlags& flags);
 /// A number from the command line with an optional SI prefix and unit that
 /// must fit `dimension` ("1k", "20kHz"); throws InputError naming `option`.
 double parse_quantity(const std::string& option, const std::string& text, Dimension dimension);
+
+/// "20..20k" -> a band, each end through parse_quantity; throws InputError
+/// naming `option` when the form is wrong or from >= to.
+Band parse_band(const std::string& option, const std::string& text);
 
 /// "100,1k,10k" -> numbers, each through parse_quantity.
 std::vector<double> parse_quantity_list(const std::string& option, const std::string& text,

@@ -23,12 +23,15 @@ struct DiffCommandOptions {
   std::vector<std::string> probes;
   SweepFlags sweep;
   std::vector<std::string> fail_above;
+  std::string band;  ///< noise band F1..F2; empty: noise not compared
 };
 
-/// --fail-above thresholds: a gain change in dB, a phase change in degrees.
+/// --fail-above thresholds: a gain change in dB, a phase change in degrees, a
+/// relative change of a noise total.
 struct Thresholds {
   std::optional<double> db;
   std::optional<double> degrees;
+  std::optional<double> noise;  ///< fraction: 0.05 for 5%
 };
 
 Thresholds parse_thresholds(const std::vector<std::string>& texts) {
@@ -38,9 +41,11 @@ Thresholds parse_thresholds(const std::vector<std::string>& texts) {
       t.db = std::abs(parse_quantity("--fail-above", text, Dimension::decibel));
     else if (text.size() > 3 && text.substr(text.size() - 3) == "deg")
       t.degrees = std::abs(parse_quantity("--fail-above", text, Dimension::angle));
+    else if (!text.empty() && text.back() == '%')
+      t.noise = std::abs(parse_quantity("--fail-above", text, Dimension::ratio));
     else
-      throw InputError(fmt::format("error: --fail-above '{}' needs a unit: dB for gain, deg for phase\n"
-                                   "hint: --fail-above 0.1dB --fail-above 1deg\n", text));
+      throw InputError(fmt::format("error: --fail-above '{}' needs a unit: dB for gain, deg for phase, "
+                                   "% for a noise total\nhint: --fail-above 0.1dB --fail-above 1deg\n", text));
   }
   return t;
 }
@@ -50,6 +55,8 @@ bool exceeds(const DiffResult& result, const Thresholds& t) {
     if (t.db && std::abs(p.max_db_change) > *t.db) return true;
     if (t.degrees && std::abs(p.max_deg_change) > *t.degrees) return true;
   }
+  for (const auto& n : result.noise)
+    if (t.noise && std::abs(n.new_rms - n.old_rms) > *t.noise * n.old_rms) return true;
   return false;
 }
 
@@ -65,6 +72,10 @@ void run(const DiffCommandOptions& o) {
   DiffOptions options;
   options.ac.sweep = parse_sweep(o.sweep);
   options.ac.probes = o.probes;
+  if (!o.band.empty()) options.band = parse_band("--band", o.band);
+  if (thresholds.noise && !options.band)
+    throw InputError("error: --fail-above with % compares noise totals, which need --band\n"
+                     "hint: --band 20..20k --fail-above 5%\n");
   const DiffResult result = run_diff(old_circuit, new_circuit, options);
   write_output(o.common.output, format == OutputFormat::json ? diff_json(result, context)
                                                              : diff_table(result, context));
@@ -83,7 +94,9 @@ void setup_diff(CLI::App& app) {
                    "Compare the response here (default: every probe the specs name); repeatable");
   add_sweep_options(*diff, options->sweep);
   diff->add_option("--fail-above", options->fail_above,
-                   "Exit 1 when a probe's gain changes more than this (0.1dB) or its phase (1deg)");
+                   "Exit 1 when a probe's gain changes more than this (0.1dB), its phase (1deg) or a "
+                   "noise total (5%)");
+  diff->add_option("--band", options->band, "Compare the noise totals over this band: 20..20k");
   diff->add_option("--format", options->common.format, "Output format: table or json")->capture_default_str();
   diff->add_option("--output", options->common.output, "Write to this file (atomically) instead of stdout");
   diff->add_option("--set", options->common.set, "Override on both sides; repeatable");

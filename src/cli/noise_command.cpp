@@ -25,24 +25,12 @@ struct NoiseCommandOptions {
   std::string ref;    // Hz
 };
 
-Band parse_band(const std::string& text) {
-  const auto dots = text.find("..");
-  if (dots == std::string::npos || dots == 0 || dots + 2 == text.size())
-    throw InputError(fmt::format("error: --band '{}' is not F1..F2\nhint: write --band 20..20k\n",
-                                 text));
-  const Band band{parse_quantity("--band", text.substr(0, dots), Dimension::frequency),
-                  parse_quantity("--band", text.substr(dots + 2), Dimension::frequency)};
-  if (auto problem = band.validate(); !problem.empty())
-    throw InputError(fmt::format("error: {}\n", problem));
-  return band;
-}
-
 NoiseOptions options_from(const NoiseCommandOptions& o) {
   NoiseOptions options;
   options.sweep = parse_sweep(o.sweep);
   options.probe = o.probe;
   options.input = o.input;
-  if (!o.band.empty()) options.band = parse_band(o.band);
+  if (!o.band.empty()) options.band = parse_band("--band", o.band);
   if (!o.level.empty()) options.level = parse_quantity("--level", o.level, Dimension::any);
   if (!o.ref.empty()) options.reference = parse_quantity("--ref", o.ref, Dimension::frequency);
   return options;
