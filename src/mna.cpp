@@ -343,6 +343,8 @@ void MnaSystem::build_pattern() {
   coefficients.resize(out);
   pattern_.row_index = std::move(rows);
   coefficients_ = std::move(coefficients);
+  for (std::size_t k = 0; k < coefficients_.size(); ++k)
+    if (coefficients_[k].c1 != 0 || coefficients_[k].c2 != 0) varying_.push_back(static_cast<int>(k));
 }
 
 // --- per-point work ----------------------------------------------------------
@@ -351,6 +353,13 @@ void MnaSystem::assemble(std::complex<double> s, std::complex<double>* values) c
   const std::size_t count = coefficients_.size();
   for (std::size_t k = 0; k < count; ++k) {
     const Coefficients& c = coefficients_[k];
+    values[k] = c.c0 + s * (c.c1 + s * c.c2);
+  }
+}
+
+void MnaSystem::assemble_varying(std::complex<double> s, std::complex<double>* values) const {
+  for (const int k : varying_) {
+    const Coefficients& c = coefficients_[static_cast<std::size_t>(k)];
     values[k] = c.c0 + s * (c.c1 + s * c.c2);
   }
 }

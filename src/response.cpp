@@ -18,12 +18,13 @@ FrequencyResponse::FrequencyResponse(const Circuit& circuit, SolverKind solver)
   x_.resize(excitation_.size());
   scratch_.reserve(8);
   mna_.excitation(excitation_.data());
+  mna_.assemble(0.0, values_.data());  // the constant entries, once
 }
 
 void FrequencyResponse::solve_at(double f) {
   if (f == frequency_) return;
   const std::complex<double> s(0, 2 * std::numbers::pi * f);
-  mna_.assemble(s, values_.data());
+  mna_.assemble_varying(s, values_.data());
   if (lu_->factor(values_.data()) == FactorStatus::singular) {
     frequency_ = -1;
     const int column = lu_->singular_column();

@@ -58,6 +58,11 @@ class MnaSystem {
 
   /// Writes the matrix Y(s) into `values` (pattern().nonzeros() entries, CSC order).
   void assemble(std::complex<double> s, std::complex<double>* values) const;
+  /// Rewrites only the entries that depend on s (capacitors, inductors, op-amp
+  /// gain rows); `values` must hold an earlier assemble() of this system. Most
+  /// entries of a circuit matrix are conductances, so a sweep that keeps its
+  /// values array pays for the few that change.
+  void assemble_varying(std::complex<double> s, std::complex<double>* values) const;
   /// Writes b (size() entries) from every source's AC phasor.
   void excitation(std::complex<double>* rhs) const;
 
@@ -87,6 +92,7 @@ class MnaSystem {
   const Circuit* circuit_;
   CscPattern pattern_;
   std::vector<Coefficients> coefficients_;  // one per pattern entry
+  std::vector<int> varying_;                // entries with c1 or c2 non-zero
   std::vector<int> branch_of_;              // per element
   std::vector<int> internal_of_;            // per element: internal node unknown or -1
   std::vector<std::size_t> owner_of_;       // per non-node unknown: element index
