@@ -3,6 +3,8 @@
 
 #include "tacet/noise.hpp"
 
+#include "tacet/response.hpp"
+
 #include <fmt/format.h>
 
 #include <algorithm>
@@ -74,14 +76,7 @@ class AdjointSolver {
   const std::vector<std::complex<double>>& solve(double f) {
     const std::complex<double> s(0, kTwoPi * f);
     mna_.assemble(s, values_.data());
-    if (lu_->factor(values_.data()) == FactorStatus::singular) {
-      const int column = lu_->singular_column();
-      throw SolveError(fmt::format(
-          "error: circuit cannot be solved at {}Hz: {}", format_si(f),
-          column >= 0 ? fmt::format("the equations do not determine {} (singular matrix)",
-                                    mna_.unknown_name(column))
-                      : std::string("the matrix is singular")));
-    }
+    if (lu_->factor(values_.data()) == FactorStatus::singular) throw_singular(mna_, lu_->singular_column(), f);
     std::fill(y_.begin(), y_.end(), std::complex<double>{});
     probe_functional(probe_, mna_, s, terms_);
     for (const ProbeTerm& term : terms_) y_[static_cast<std::size_t>(term.unknown)] += term.coefficient;

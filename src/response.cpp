@@ -10,6 +10,13 @@
 
 namespace tacet {
 
+void throw_singular(const MnaSystem& mna, int column, double f) {
+  throw SolveError(fmt::format(
+      "error: circuit cannot be solved at {}Hz: {}", format_si(f),
+      column >= 0 ? fmt::format("the equations do not determine {} (singular matrix)", mna.unknown_name(column))
+                  : std::string("the matrix is singular")));
+}
+
 FrequencyResponse::FrequencyResponse(const Circuit& circuit, SolverKind solver)
     : mna_(circuit), lu_(make_sparse_lu(solver)) {
   lu_->analyse(mna_.pattern());
@@ -27,12 +34,7 @@ void FrequencyResponse::solve_at(double f) {
   mna_.assemble_varying(s, values_.data());
   if (lu_->factor(values_.data()) == FactorStatus::singular) {
     frequency_ = -1;
-    const int column = lu_->singular_column();
-    throw SolveError(fmt::format(
-        "error: circuit cannot be solved at {}Hz: {}", format_si(f),
-        column >= 0 ? fmt::format("the equations do not determine {} (singular matrix)",
-                                  mna_.unknown_name(column))
-                    : std::string("the matrix is singular")));
+    throw_singular(mna_, lu_->singular_column(), f);
   }
   x_ = excitation_;
   lu_->solve(x_.data());

@@ -15,6 +15,10 @@
 
 namespace tacet {
 
+/// The SolveError for a matrix found singular at f: names the unknown of the
+/// singular column when the factorisation knows it.
+[[noreturn]] void throw_singular(const MnaSystem& mna, int column, double f);
+
 class FrequencyResponse {
  public:
   /// Builds the MNA system (throws SolveError when the circuit has no unique
