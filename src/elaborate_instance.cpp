@@ -87,6 +87,9 @@ int Elaborator::resolve_node(const std::string& name, const InstanceContext& con
                              SourceLocation where) {
   if (name == "gnd") return 0;
   if (auto it = context.ports.find(name); it != context.ports.end()) return it->second;
+  if (name == "0" && !circuit_.find_node(context.prefix + name))
+    diagnostics_.warning(where, "node '0' is an ordinary node here, not the reference",
+                         "the reference node is called gnd");
   return circuit_.node(context.prefix + name, where);
 }
 

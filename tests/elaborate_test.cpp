@@ -406,3 +406,21 @@ TEST_CASE("a negative decibel value is a ratio below one", "[elaborate]") {
   REQUIRE(r.circuit);
   CHECK(element(*r.circuit, "E1").value == Approx(0.5).epsilon(1e-12));
 }
+
+TEST_CASE("a node named 0 is warned about once: the reference is gnd", "[elaborate]") {
+  auto r = elaborate_text("vsrc V1 (a, 0) ac=1\nres R1 (a, 0) 1k\n");
+  REQUIRE(r.circuit);  // a warning, not an error
+  CHECK(r.diagnostics ==
+        "main.tacet:1:13: warning: node '0' is an ordinary node here, not the reference\n"
+        "vsrc V1 (a, 0) ac=1\n"
+        "            ^\n"
+        "hint: the reference node is called gnd\n");
+}
+
+TEST_CASE("the Greek mu is a micro prefix like the micro sign", "[elaborate]") {
+  auto r = elaborate_text("cap C1 (a, gnd) 10\xCE\xBC" "F\ncap C2 (a, gnd) 10\xC2\xB5" "F\nres R (a, gnd) 1k\n");
+  INFO(r.diagnostics);
+  REQUIRE(r.circuit);
+  CHECK(r.circuit->elements[0].value == Approx(10e-6));
+  CHECK(r.circuit->elements[1].value == Approx(10e-6));
+}

@@ -226,7 +226,7 @@ inline auto const numeral_def = x3::raw[x3::lexeme[
     (digits >> -('.' >> -digits) | '.' >> digits) >>
     -(x3::char_("eE") >> -x3::char_("+-") >> digits)]];
 
-inline auto const micro_sign = x3::lit("\xC2\xB5");  // µ
+inline auto const micro_sign = x3::lit("\xC2\xB5") | x3::lit("\xCE\xBC");  // µ (micro sign), μ (Greek mu)
 inline auto const ohm_sign = x3::lit("\xCE\xA9");    // Ω
 inline auto const word_def = +(letter | micro_sign | ohm_sign);
 
