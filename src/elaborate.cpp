@@ -48,9 +48,11 @@ void Elaborator::load_file(const std::string& path, SourceLocation included_from
   if (loaded_.count(path)) return;  // a library included twice is read once
   auto text = reader_.read(path);
   if (!text) {
-    diagnostics_.error(included_from, fmt::format("cannot read '{}'", path),
-                       included_from.file >= 0 ? "include paths are relative to the including file"
-                                               : "");
+    std::string hint = included_from.file >= 0 ? "include paths are relative to the including file" : "";
+    if (auto revision = split_revision(path))
+      hint = fmt::format("git show {}:./{} found nothing: check the revision and the path (relative to "
+                         "this folder)", revision->first, revision->second);
+    diagnostics_.error(included_from, fmt::format("cannot read '{}'", path), hint);
     return;
   }
   loaded_.insert(path);

@@ -49,6 +49,10 @@ std::string diff_table(const DiffResult& result, const DiffContext& context) {
                          format_si(p.db_at), p.max_deg_change, format_si(p.deg_at));
   }
   for (const auto& n : result.noise) {
+    if (std::abs(n.new_rms - n.old_rms) <= 1e-12 * n.old_rms) {
+      out += fmt::format("\nnoise at {}: {}V rms, no change\n", n.probe, format_si(n.new_rms));
+      continue;
+    }
     out += fmt::format("\nnoise at {}: {}V rms -> {}V rms ({:+.2f} dB)\n", n.probe, format_si(n.old_rms),
                        format_si(n.new_rms), 20 * std::log10(n.new_rms / n.old_rms));
     for (const auto& c : n.top)
