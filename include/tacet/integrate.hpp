@@ -7,11 +7,12 @@
 // where the densities of circuits are smooth: a single pole 1/(1 + (f/fc)^2)
 // and a 1/f corner (1 + fc/f) both become analytic functions of u with no
 // feature narrower than about one unit of u. The u interval is cut into
-// panels (a few per decade) and each panel is integrated with an n-point
-// Gauss-Legendre rule (exact for polynomials of degree 2n - 1), compared with
-// the same rule on its two halves; a panel whose two estimates differ by more
-// than its share of the tolerance is bisected again (adaptive bisection), so a
-// sharp resonance gets the points it needs and a flat stretch does not.
+// panels (one per decade to start) and each panel is integrated with the
+// 15-point Gauss-Kronrod rule (exact for polynomials of degree 22), whose
+// embedded 7-point Gauss rule gives an error estimate from the same 15
+// evaluations; a panel whose two estimates differ by more than its share of
+// the tolerance is bisected (adaptive bisection), so a sharp resonance gets
+// the points it needs and a flat stretch does not.
 //
 // The integrand is a vector of m values (the power of every noise source at
 // f, say); the first `checked` of them decide convergence, each against its
@@ -27,7 +28,7 @@ namespace tacet {
 
 struct BandIntegrationOptions {
   double relative_tolerance = 1e-8;  ///< on each checked component's integral
-  int panels_per_decade = 2;         ///< first cut of the band, before any bisection
+  int panels_per_decade = 1;         ///< first cut of the band, before any bisection
   int max_depth = 24;                ///< bisections of one first-cut panel, at most
 };
 
@@ -45,7 +46,8 @@ BandIntegral integrate_band(double f1, double f2, std::size_t m, std::size_t che
                             const BandIntegrand& integrand,
                             const BandIntegrationOptions& options = {});
 
-/// Nodes and weights of the n-point Gauss-Legendre rule on [-1, 1], computed by
+/// Nodes and weights of the n-point Gauss-Legendre rule (kept for tests and
+/// callers that want a plain rule) on [-1, 1], computed by
 /// Newton's method on the Legendre polynomial P_n (to machine precision).
 void gauss_legendre(int n, std::vector<double>& nodes, std::vector<double>& weights);
 
