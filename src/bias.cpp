@@ -28,14 +28,7 @@ class DcSolver {
     lu_->analyse(mna_.pattern());
     Vector values(static_cast<std::size_t>(mna_.pattern().nonzeros()));
     mna_.assemble(0.0, values.data());
-    if (lu_->factor(values.data()) == FactorStatus::singular) {
-      const int column = lu_->singular_column();
-      throw SolveError(fmt::format(
-          "error: circuit cannot be solved at DC: {}",
-          column >= 0 ? fmt::format("the equations do not determine {} (singular matrix)",
-                                    mna_.unknown_name(column))
-                      : std::string("the matrix is singular")));
-    }
+    if (lu_->factor(values.data()) == FactorStatus::singular) throw_singular(mna_, lu_->singular_column(), 0.0);
   }
   const MnaSystem& mna() const { return mna_; }
   Vector zero_rhs() const { return Vector(static_cast<std::size_t>(mna_.size())); }

@@ -13,6 +13,7 @@
 #include "tacet/errors.hpp"
 #include "tacet/format.hpp"
 #include "tacet/mna.hpp"
+#include "tacet/response.hpp"
 
 namespace tacet {
 namespace {
@@ -85,15 +86,6 @@ void track(PinHeadroom& pin, const NodeBias& dc, double peak, double f) {
 void track_slew(SlewHeadroom& slew, double peak, double f) {
   const double needed = kTwoPi * f * peak;
   if (slew.frequency == 0 || needed > slew.needed) slew.needed = needed, slew.frequency = f;
-}
-
-void factor_at(const MnaSystem& mna, SparseLu& lu, Vector& values, double f) {
-  mna.assemble(std::complex<double>(0, kTwoPi * f), values.data());
-  if (lu.factor(values.data()) == FactorStatus::singular)
-    throw SolveError(fmt::format("error: circuit cannot be solved at {}Hz (headroom): {}",
-                                 format_si(f), lu.singular_column() >= 0
-                                     ? mna.unknown_name(lu.singular_column()) + " is undetermined"
-                                     : std::string("the matrix is singular")));
 }
 
 // |V| at every node (index = node id), summed over the level sources.
@@ -199,15 +191,13 @@ HeadroomResult run_headroom(const Circuit& circuit, const BiasResult& bias,
 
   Sweep grid;
   grid.from = band.low, grid.to = band.high, grid.per_decade = options.per_decade;
-  const MnaSystem mna(circuit);
-  const auto lu = make_sparse_lu(options.solver);
-  lu->analyse(mna.pattern());
-  Vector values(static_cast<std::size_t>(mna.pattern().nonzeros()));
+  FrequencyResponse response(circuit, options.solver);
+  const MnaSystem& mna = response.mna();
   Vector x(static_cast<std::size_t>(mna.size()));
   std::vector<double> peaks(circuit.node_count());
   for (const double f : grid.frequencies()) {
-    factor_at(mna, *lu, values, f);
-    signal_peaks(circuit, mna, *lu, result.sources, x, peaks);
+    response.factor_at(f);
+    signal_peaks(circuit, mna, response.lu(), result.sources, x, peaks);
     for (std::size_t k = 0; k < amps.size(); ++k) {
       const auto& pins = amps[k]->nodes;
       auto& amp = result.opamps[k];

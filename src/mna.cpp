@@ -10,6 +10,7 @@
 #include <queue>
 
 #include "tacet/errors.hpp"
+#include "tacet/format.hpp"
 
 namespace tacet {
 namespace {
@@ -399,6 +400,13 @@ int MnaSystem::slot(int row, int col) const {
   const auto end = pattern_.row_index.begin() + pattern_.col_ptr[col + 1];
   const auto it = std::lower_bound(begin, end, row);
   return it != end && *it == row ? static_cast<int>(it - pattern_.row_index.begin()) : -1;
+}
+
+void throw_singular(const MnaSystem& mna, int column, double f) {
+  throw SolveError(fmt::format(
+      "error: circuit cannot be solved at {}: {}", f == 0 ? std::string("DC") : format_si(f) + "Hz",
+      column >= 0 ? fmt::format("the equations do not determine {} (singular matrix)", mna.unknown_name(column))
+                  : std::string("the matrix is singular")));
 }
 
 }  // namespace tacet

@@ -19,7 +19,6 @@
 namespace tacet {
 namespace {
 
-constexpr double kTwoPi = 6.283185307179586476925286766559;
 constexpr double kZeroCelsius = 273.15;  // K
 
 // A noise source seen by the adjoint: its transfer to the probe is
@@ -61,35 +60,18 @@ std::vector<NoiseSource> noise_sources(const Circuit& circuit, const MnaSystem& 
   return sources;
 }
 
-// The transposed solve A(s)^T y = c, c the probe's functional, in buffers
-// allocated once.
+// The adjoint solution at f: factor, then one transposed solve for the probe.
 class AdjointSolver {
  public:
-  AdjointSolver(const MnaSystem& mna, const Probe& probe, SolverKind kind)
-      : mna_(mna), probe_(probe), lu_(make_sparse_lu(kind)),
-        values_(static_cast<std::size_t>(mna.pattern().nonzeros())),
-        y_(static_cast<std::size_t>(mna.size())) {
-    lu_->analyse(mna.pattern());
-    terms_.reserve(8);
-  }
-
+  AdjointSolver(FrequencyResponse& response, const Probe& probe) : response_(response), probe_(probe) {}
   const std::vector<std::complex<double>>& solve(double f) {
-    const std::complex<double> s(0, kTwoPi * f);
-    mna_.assemble(s, values_.data());
-    if (lu_->factor(values_.data()) == FactorStatus::singular) throw_singular(mna_, lu_->singular_column(), f);
-    std::fill(y_.begin(), y_.end(), std::complex<double>{});
-    probe_functional(probe_, mna_, s, terms_);
-    for (const ProbeTerm& term : terms_) y_[static_cast<std::size_t>(term.unknown)] += term.coefficient;
-    lu_->solve_transposed(y_.data());
-    return y_;
+    response_.factor_at(f);
+    return response_.adjoint(probe_);
   }
 
  private:
-  const MnaSystem& mna_;
+  FrequencyResponse& response_;
   const Probe& probe_;
-  std::unique_ptr<SparseLu> lu_;
-  std::vector<std::complex<double>> values_, y_;
-  std::vector<ProbeTerm> terms_;
 };
 
 // Where a unit of the input source enters: G = y[plus] - y[minus].
@@ -236,7 +218,8 @@ NoiseResult run_noise(const Circuit& circuit, const NoiseOptions& options) {
   result.temperature_kelvin = circuit.ambient_celsius + kZeroCelsius;
   result.frequencies = options.sweep.frequencies();
 
-  const MnaSystem mna(circuit);
+  FrequencyResponse response(circuit, options.solver);
+  const MnaSystem& mna = response.mna();
   std::optional<InputPort> input;
   if (!options.input.empty()) {
     input = resolve_input(options.input, circuit, mna);
@@ -244,7 +227,7 @@ NoiseResult run_noise(const Circuit& circuit, const NoiseOptions& options) {
     result.input_unit = source.kind == ElementKind::isource ? "A" : "V";
   }
   const auto sources = noise_sources(circuit, mna, result.temperature_kelvin);
-  AdjointSolver adjoint(mna, result.probe, options.solver);
+  AdjointSolver adjoint(response, result.probe);
   const InputPort* port = input ? &*input : nullptr;
   fill_points(result, adjoint, sources, port);
   integrate_contributors(result, adjoint, circuit, sources, port);

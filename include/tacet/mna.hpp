@@ -43,6 +43,12 @@ enum class AnalysisKind { ac, dc };
 /// output with rout = 0; at DC also inductors), naming the elements of the loop.
 void check_solvable(const Circuit& circuit, AnalysisKind kind);
 
+class MnaSystem;
+
+/// The SolveError for a matrix found singular at f (Hz; 0 reads "at DC"):
+/// names the unknown of the singular column when the factorisation knows it.
+[[noreturn]] void throw_singular(const MnaSystem& mna, int column, double f);
+
 class MnaSystem {
  public:
   /// Runs check_solvable(circuit, AnalysisKind::ac), then builds the pattern.

@@ -15,34 +15,39 @@
 
 namespace tacet {
 
-/// The SolveError for a matrix found singular at f: names the unknown of the
-/// singular column when the factorisation knows it.
-[[noreturn]] void throw_singular(const MnaSystem& mna, int column, double f);
-
 class FrequencyResponse {
  public:
   /// Builds the MNA system (throws SolveError when the circuit has no unique
   /// solution). The circuit must outlive this object.
   explicit FrequencyResponse(const Circuit& circuit, SolverKind solver = SolverKind::klu);
 
-  /// Solves at f (Hz) unless f is the last frequency solved. Throws SolveError
-  /// naming the unknown when the matrix is singular there.
+  /// Assembles and refactors at f (Hz) unless f is the frequency factored
+  /// last. Throws SolveError naming the unknown when the matrix is singular.
+  void factor_at(double f);
+  /// factor_at(f), then the forward solve with every source's AC phasor,
+  /// unless f is the frequency solved last.
   void solve_at(double f);
   /// The probe's phasor at the last frequency solved; SolveError if not finite.
   std::complex<double> value(const Probe& probe);
   /// solve_at(f), then value(probe).
   std::complex<double> at(const Probe& probe, double f);
+  /// The adjoint solution y of A(s)^T y = c at the frequency factored last, c
+  /// the probe's functional: y_k is the transfer from a unit injected into row
+  /// k to the probe (the noise analysis reads every source's transfer here).
+  const std::vector<std::complex<double>>& adjoint(const Probe& probe);
 
   const MnaSystem& mna() const { return mna_; }
+  /// The factorisation at the frequency factored last, for callers that solve
+  /// right-hand sides of their own.
   SparseLu& lu() { return *lu_; }
-  double frequency() const { return frequency_; }
 
  private:
   MnaSystem mna_;
   std::unique_ptr<SparseLu> lu_;
-  std::vector<std::complex<double>> values_, excitation_, x_;
+  std::vector<std::complex<double>> values_, excitation_, x_, y_;
   std::vector<ProbeTerm> scratch_;
-  double frequency_ = -1;
+  double factored_ = -1;  ///< Hz of the current factorisation; -1: none
+  double solved_ = -1;    ///< Hz of x_; -1: none
 };
 
 }  // namespace tacet
