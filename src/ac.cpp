@@ -16,17 +16,15 @@
 namespace tacet {
 namespace {
 
-std::string si(double value) { return format_si(value); }
-
 bool positive_frequency(double f) { return std::isfinite(f) && f > 0; }
 
 std::string validate_range(const Sweep& sweep) {
   if (!positive_frequency(sweep.from))
-    return fmt::format("--from {} must be a finite frequency above 0 Hz", si(sweep.from));
+    return fmt::format("--from {} must be a finite frequency above 0 Hz", format_si(sweep.from));
   if (!positive_frequency(sweep.to))
-    return fmt::format("--to {} must be a finite frequency above 0 Hz", si(sweep.to));
+    return fmt::format("--to {} must be a finite frequency above 0 Hz", format_si(sweep.to));
   if (!(sweep.from < sweep.to))
-    return fmt::format("--from {} must be below --to {}", si(sweep.from), si(sweep.to));
+    return fmt::format("--from {} must be below --to {}", format_si(sweep.from), format_si(sweep.to));
   return {};
 }
 
@@ -49,7 +47,7 @@ std::string Sweep::validate() const {
     if (at.empty()) return "--at must list at least one frequency";
     for (double f : at)
       if (!positive_frequency(f))
-        return fmt::format("--at {}: every frequency must be finite and above 0 Hz", si(f));
+        return fmt::format("--at {}: every frequency must be finite and above 0 Hz", format_si(f));
     return {};
   }
   if (auto range = validate_range(*this); !range.empty()) return range;

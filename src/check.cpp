@@ -71,17 +71,17 @@ class SpecMeter {
     if (!response_) response_ = std::make_unique<FrequencyResponse>(circuit_);
     return *response_;
   }
-  std::complex<double> h(const Spec&, double f) { return response().at(probe_, f); }
-  double db_at(const Spec& spec, double f) { return to_db(h(spec, f)); }
+  std::complex<double> h(double f) { return response().at(probe_, f); }
+  double db_at(double f) { return to_db(h(f)); }
 
   void gain(SpecResult& r) {
-    const auto z = h(r.spec, r.spec.at);
+    const auto z = h(r.spec.at);
     r.value = r.spec.unit == SpecUnit::db ? to_db(z) : std::abs(z);
     r.where = r.spec.at;
   }
 
   void phase(SpecResult& r) {
-    r.value = to_degrees(h(r.spec, r.spec.at));
+    r.value = to_degrees(h(r.spec.at));
     r.where = r.spec.at;
   }
 
@@ -89,8 +89,8 @@ class SpecMeter {
   /// refinement around the worst grid point.
   void flatness(SpecResult& r) {
     const Spec& s = r.spec;
-    const double reference = db_at(s, s.ref);
-    auto deviation = [&](double f) { return std::abs(db_at(s, f) - reference); };
+    const double reference = db_at(s.ref);
+    auto deviation = [&](double f) { return std::abs(db_at(f) - reference); };
     const auto grid = log_grid(s.from, s.to);
     std::size_t worst = 0;
     double worst_value = -1;
@@ -100,14 +100,23 @@ class SpecMeter {
     }
     double where = grid[worst];
     if (worst > 0 && worst + 1 < grid.size()) {
+      // Golden section: each step keeps one inner point and its value, so it
+      // costs one solve.
       double a = std::log(grid[worst - 1]), b = std::log(grid[worst + 1]);
       const double g = (std::sqrt(5.0) - 1) / 2;
+      double c = b - g * (b - a), d = a + g * (b - a);
+      double at_c = deviation(std::exp(c)), at_d = deviation(std::exp(d));
       for (int it = 0; it < 60 && b - a > 1e-12; ++it) {
-        const double c = b - g * (b - a), d = a + g * (b - a);
-        if (deviation(std::exp(c)) > deviation(std::exp(d))) b = d; else a = c;
+        if (at_c > at_d) {
+          b = d, d = c, at_d = at_c;
+          c = b - g * (b - a), at_c = deviation(std::exp(c));
+        } else {
+          a = c, c = d, at_c = at_d;
+          d = a + g * (b - a), at_d = deviation(std::exp(d));
+        }
       }
       const double f = std::exp((a + b) / 2);
-      if (deviation(f) > worst_value) worst_value = deviation(f), where = f;
+      if (const double at_f = deviation(f); at_f > worst_value) worst_value = at_f, where = f;
     }
     r.value = worst_value;
     r.where = where;
@@ -117,10 +126,10 @@ class SpecMeter {
   /// `drop` dB below its value at ref; bisection in log f to 1e-12.
   void corner(SpecResult& r) {
     const Spec& s = r.spec;
-    const double target = db_at(s, s.ref) - s.drop;
+    const double target = db_at(s.ref) - s.drop;
     const bool upward = s.kind == SpecKind::upper_corner;
     const auto grid = upward ? log_grid(s.ref, s.to) : log_grid(s.from, s.ref);
-    auto below = [&](double f) { return db_at(s, f) < target; };
+    auto below = [&](double f) { return db_at(f) < target; };
     const std::size_t n = grid.size();
     for (std::size_t k = 1; k < n; ++k) {
       const double inside = upward ? grid[k - 1] : grid[n - k];
