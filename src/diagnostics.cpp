@@ -153,4 +153,14 @@ std::string nearest_word(std::string_view word, const std::vector<std::string>& 
   return best;
 }
 
+std::string choice_hint(std::string_view word, const std::vector<std::string>& choices,
+                        std::string_view label) {
+  if (std::string near = nearest_word(word, choices); !near.empty()) return "did you mean '" + near + "'?";
+  if (choices.empty()) return {};
+  std::string out(label);
+  out += ':';
+  for (const auto& choice : choices) out += ' ' + choice;
+  return out;
+}
+
 }  // namespace tacet

@@ -276,10 +276,8 @@ std::optional<OpAmpModel> Elaborator::resolve_model(const ast::Model& model, int
   for (const auto& entry : model.entries) {
     const std::string& key = entry.key.text;
     if (std::find(keys.begin(), keys.end(), key) == keys.end()) {
-      std::string near = nearest_word(key, keys);
       error(file, entry.key, fmt::format("unknown op-amp parameter '{}'", key),
-            near.empty() ? "op-amp parameters: gbw aol fp2 rout rin en fce in fci vos ib ios swing slew vcm_low vcm_high"
-                         : fmt::format("did you mean '{}'?", near));
+            choice_hint(key, keys, "op-amp parameters"));
       ok = false;
       continue;
     }

@@ -67,12 +67,6 @@ const char* value_noun(ElementKind kind) {
   }
 }
 
-std::string join(const std::vector<std::string>& words) {
-  std::string out;
-  for (const auto& w : words) out += (out.empty() ? "" : " ") + w;
-  return out;
-}
-
 }  // namespace
 
 void Elaborator::instantiate(const ast::Instance& instance, int file, const InstanceContext& context) {
@@ -313,10 +307,8 @@ void Elaborator::build_element(const ast::Instance& instance, int file,
     if (spec == specs.end()) {
       std::vector<std::string> keys;
       for (const auto& s : specs) keys.emplace_back(s.key);
-      std::string near = nearest_word(key, keys);
       error(file, option.key, fmt::format("'{}' takes no option '{}'", instance.keyword.text, key),
-            near.empty() ? (keys.empty() ? std::string() : "options: " + join(keys))
-                         : fmt::format("did you mean '{}'?", near));
+            choice_hint(key, keys, "options"));
       ok = false;
       continue;
     }
@@ -435,10 +427,8 @@ void Elaborator::expand_block(const ast::Instance& use, int file, const Instance
   for (const auto& p : block.parameters) param_names.push_back(p.key.text);
   for (const auto& arg : use.options) {
     if (std::find(param_names.begin(), param_names.end(), arg.key.text) == param_names.end()) {
-      std::string near = nearest_word(arg.key.text, param_names);
       error(file, arg.key, fmt::format("block '{}' has no parameter '{}'", block.name.text, arg.key.text),
-            near.empty() ? (param_names.empty() ? "" : "parameters: " + join(param_names))
-                         : fmt::format("did you mean '{}'?", near));
+            choice_hint(arg.key.text, param_names, "parameters"));
       ok = false;
     } else if (!arg.value) {
       error(file, arg, fmt::format("argument '{}' needs a value", arg.key.text),

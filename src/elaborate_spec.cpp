@@ -116,10 +116,8 @@ std::optional<std::string> Elaborator::spec_probe(const ast::Spec& spec, int fil
 void Elaborator::elaborate_spec(const ast::Spec& ast_spec, int file) {
   auto kind = parse_spec_kind(ast_spec.kind.text);
   if (!kind) {
-    std::string near = nearest_word(ast_spec.kind.text, kind_names());
     error(file, ast_spec.kind, fmt::format("unknown kind of spec '{}'", ast_spec.kind.text),
-          near.empty() ? "kinds: gain flatness phase upper_corner lower_corner noise snr offset rails"
-                       : fmt::format("did you mean '{}'?", near));
+          choice_hint(ast_spec.kind.text, kind_names(), "kinds"));
     return;
   }
   if (!check_unique(spec_names_, "spec", ast_spec.name, file, ast_spec.name.text)) return;
@@ -137,11 +135,8 @@ void Elaborator::elaborate_spec(const ast::Spec& ast_spec, int file) {
     if (it == specs.end()) {
       std::vector<std::string> keys;
       for (const auto& s : specs) keys.emplace_back(s.key);
-      std::string near = nearest_word(key, keys);
-      std::string all;
-      for (const auto& k : keys) all += (all.empty() ? "" : " ") + k;
       error(file, option.key, fmt::format("a {} spec takes no option '{}'", ast_spec.kind.text, key),
-            near.empty() ? "options: " + all : fmt::format("did you mean '{}'?", near));
+            choice_hint(key, keys, "options"));
       ok = false;
     } else if (!option.value) {
       error(file, option, fmt::format("option '{}' needs a value", key), fmt::format("write {}=...", key));

@@ -185,10 +185,8 @@ class Evaluator {
       }
       return finite(f.fn(a), call);
     }
-    std::string near = nearest_word(call.function.text, names);
     report(call.function, fmt::format("unknown function '{}'", call.function.text),
-           near.empty() ? "functions: sqrt log10 ln exp abs db undb sin cos atan min max par"
-                        : fmt::format("did you mean '{}'?", near));
+           choice_hint(call.function.text, names, "functions"));
     return std::nullopt;
   }
 

@@ -141,3 +141,10 @@ TEST_CASE("a long spelling of a short keyword suggests the keyword", "[diagnosti
   CHECK(tacet::nearest_word("inductor", keywords) == "ind");
   CHECK(tacet::nearest_word("zzzz", keywords).empty());
 }
+
+TEST_CASE("a hint names the nearest choice, else lists them all", "[diagnostics]") {
+  const std::vector<std::string> options{"tol", "noiseless"};
+  CHECK(tacet::choice_hint("tole", options, "options") == "did you mean 'tol'?");
+  CHECK(tacet::choice_hint("zzzzzz", options, "options") == "options: tol noiseless");
+  CHECK(tacet::choice_hint("zzzzzz", {}, "options").empty());
+}
