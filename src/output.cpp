@@ -27,6 +27,10 @@ std::optional<OutputFormat> parse_output_format(const std::string& text) {
   return std::nullopt;
 }
 
+std::string report_header(const ReportContext& context) {
+  return (context.title.empty() ? "" : context.title + "\n") + context.file + "\n";
+}
+
 void write_output(const std::string& path, const std::string& text) {
   if (path.empty()) {
     std::cout << text << std::flush;

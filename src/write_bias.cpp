@@ -4,7 +4,7 @@
 #include <optional>
 
 #include <fmt/format.h>
-#include <nlohmann/json.hpp>
+#include "tacet/json_output.hpp"
 
 #include "tacet/format.hpp"
 #include "tacet/text_table.hpp"
@@ -13,7 +13,8 @@ namespace tacet {
 
 namespace {
 
-using json = nlohmann::ordered_json;
+using json = json_output::Json;
+using json_output::number;
 
 // --- table --------------------------------------------------------------------
 
@@ -110,8 +111,6 @@ std::string headroom_section(const HeadroomResult& h) {
 
 // --- json ---------------------------------------------------------------------
 
-json number(double v) { return std::isfinite(v) ? json(v) : json(nullptr); }
-
 json ok_json(std::optional<bool> ok) { return ok ? json(*ok) : json(nullptr); }
 
 json opamp_json(const OpAmpBias& a) {
@@ -166,8 +165,7 @@ json headroom_json(const HeadroomResult& h) {
 
 std::string bias_table(const BiasResult& bias, const HeadroomResult& headroom,
                        const ReportContext& context) {
-  std::string out = context.title.empty() ? "" : context.title + "\n";
-  out += context.file + "\n";
+  std::string out = report_header(context);
   out += lines(headroom.cautions, "");
   out += "DC operating point (capacitors open, inductors shorted); low and high bound each "
          "output over every vos and ios sign\n\n";
@@ -188,7 +186,7 @@ std::string bias_csv(const BiasResult& bias) {
 
 std::string bias_json(const BiasResult& bias, const HeadroomResult& headroom,
                       const ReportContext& context) {
-  json document{{"analysis", "bias"}, {"file", context.file}, {"title", context.title}};
+  json document = json_output::header("bias", context);
   json nodes = json::object(), offset = json::object(), opamps = json::array();
   for (const auto& n : bias.nodes) {
     nodes[n.name] = number(n.nominal);
@@ -200,7 +198,7 @@ std::string bias_json(const BiasResult& bias, const HeadroomResult& headroom,
   document["opamps"] = opamps;
   document["warnings"] = bias.warnings;
   document["headroom"] = headroom_json(headroom);
-  return document.dump(1, ' ', false, json::error_handler_t::strict) + "\n";
+  return json_output::text(document);
 }
 
 }  // namespace tacet

@@ -3,9 +3,9 @@
 #include <cmath>
 
 #include <fmt/format.h>
-#include <nlohmann/json.hpp>
 
 #include "tacet/format.hpp"
+#include "tacet/json_output.hpp"
 #include "tacet/text_table.hpp"
 
 namespace tacet {
@@ -73,8 +73,7 @@ std::string check_table(const CheckResult& result, const ReportContext& context)
                format_spec_limit(r.spec), r.value ? format_spec_value(r.margin, r.spec.unit) : "-",
                r.pass ? "PASS" : "FAIL", where_text(r)});
   }
-  std::string out = context.title.empty() ? "" : context.title + "\n";
-  out += context.file + "\n\n" + table.render();
+  std::string out = report_header(context) + "\n" + table.render();
   const int failed = result.failed();
   const int total = static_cast<int>(result.specs.size());
   out += fmt::format("\n{} spec{}: {} pass, {} fail{}\n", total, total == 1 ? "" : "s", total - failed, failed,
@@ -83,8 +82,8 @@ std::string check_table(const CheckResult& result, const ReportContext& context)
 }
 
 std::string check_json(const CheckResult& result, const ReportContext& context) {
-  using json = nlohmann::ordered_json;
-  auto number = [](std::optional<double> v) { return v && std::isfinite(*v) ? json(*v) : json(nullptr); };
+  using json = json_output::Json;
+  using json_output::number;
   json specs = json::array();
   for (const auto& r : result.specs) {
     json limit = {{"min", number(r.spec.min)}, {"max", number(r.spec.max)}};
@@ -98,9 +97,10 @@ std::string check_json(const CheckResult& result, const ReportContext& context) 
                      {"unit", to_string(r.spec.unit)},
                      {"note", r.note}});
   }
-  json document = {{"analysis", "check"}, {"file", context.file}, {"title", context.title},
-                   {"specs", specs}, {"failed", result.failed()}};
-  return document.dump(1, ' ', false, json::error_handler_t::strict) + "\n";
+  json document = json_output::header("check", context);
+  document["specs"] = specs;
+  document["failed"] = result.failed();
+  return json_output::text(document);
 }
 
 }  // namespace tacet

@@ -3,9 +3,9 @@
 #include <cmath>
 
 #include <fmt/format.h>
-#include <nlohmann/json.hpp>
 
 #include "tacet/format.hpp"
+#include "tacet/json_output.hpp"
 #include "tacet/write_check.hpp"
 
 namespace tacet {
@@ -79,12 +79,12 @@ std::string diff_table(const DiffResult& result, const DiffContext& context) {
 }
 
 std::string diff_json(const DiffResult& result, const DiffContext& context) {
-  using json = nlohmann::ordered_json;
-  auto number = [](double v) { return std::isfinite(v) ? json(v) : json(nullptr); };
+  using json = json_output::Json;
+  using json_output::number;
   auto side = [](const ReportContext& c) { return json{{"file", c.file}, {"title", c.title}}; };
   auto spec = [&](const std::optional<SpecResult>& r) -> json {
     if (!r) return nullptr;
-    return {{"pass", r->pass}, {"value", r->value ? number(*r->value) : json(nullptr)},
+    return {{"pass", r->pass}, {"value", number(r->value)},
             {"margin", r->value ? number(r->margin) : json(nullptr)}, {"unit", to_string(r->spec.unit)}};
   };
   json circuit = json::array(), probes = json::array(), specs = json::array();
@@ -110,7 +110,7 @@ std::string diff_json(const DiffResult& result, const DiffContext& context) {
   json document = {{"analysis", "diff"}, {"old", side(context.old_side)}, {"new", side(context.new_side)},
                    {"circuit", circuit}, {"probes", probes}, {"noise", noise}, {"dc", dc},
                    {"dc_note", result.dc_note}, {"specs", specs}};
-  return document.dump(1, ' ', false, json::error_handler_t::strict) + "\n";
+  return json_output::text(document);
 }
 
 }  // namespace tacet

@@ -2,29 +2,15 @@
 
 #include <cmath>
 
-#include <nlohmann/json.hpp>
 
 #include "tacet/format.hpp"
+#include "tacet/json_output.hpp"
 
 namespace tacet {
 
-namespace {
-
-// Ordered, so keys appear as documented (f, re, im, db, deg), not alphabetically.
-using json = nlohmann::ordered_json;
-
-json number(double v) { return std::isfinite(v) ? json(v) : json(nullptr); }
-
-json header(const char* analysis, const ReportContext& context) {
-  return json{{"analysis", analysis}, {"file", context.file}, {"title", context.title}};
-}
-
-std::string dump(const json& document) {
-  // nlohmann writes doubles with max_digits10, so every value reads back exactly.
-  return document.dump(1, ' ', false, json::error_handler_t::strict) + "\n";
-}
-
-}  // namespace
+using json_output::header;
+using json_output::number;
+using json = json_output::Json;
 
 std::string ac_json(const AcResult& result, const ReportContext& context) {
   json document = header("ac", context);
@@ -39,7 +25,7 @@ std::string ac_json(const AcResult& result, const ReportContext& context) {
     traces.push_back({{"probe", trace.probe.text}, {"unit", probe_unit(trace.probe)}, {"points", points}});
   }
   document["traces"] = traces;
-  return dump(document);
+  return json_output::text(document);
 }
 
 }  // namespace tacet

@@ -6,7 +6,7 @@
 #include <cmath>
 
 #include <fmt/format.h>
-#include <nlohmann/json.hpp>
+#include "tacet/json_output.hpp"
 
 #include "tacet/format.hpp"
 #include "tacet/text_table.hpp"
@@ -14,7 +14,8 @@
 namespace tacet {
 namespace {
 
-using json = nlohmann::ordered_json;  // keys in the documented order
+using json = json_output::Json;
+using json_output::number;
 
 const char* unit_of(const NoiseResult& r) { return probe_unit(r.probe); }
 
@@ -103,13 +104,10 @@ std::string point_rows(const NoiseResult& r) {
   return table.render();
 }
 
-json number(double v) { return std::isfinite(v) ? json(v) : json(nullptr); }
-
 }  // namespace
 
 std::string noise_table(const NoiseResult& r, const ReportContext& context, std::size_t top) {
-  std::string out = context.title.empty() ? "" : context.title + "\n";
-  out += context.file + "\n";
+  std::string out = report_header(context);
   out += fmt::format("Noise at {} over {}Hz..{}Hz, {:.2f} C ({:.2f} K){}\n\n", r.probe.text,
                      format_si(r.band.from), format_si(r.band.to), r.temperature_kelvin - 273.15,
                      r.temperature_kelvin, r.input.empty() ? "" : "; input " + r.input);
@@ -135,13 +133,15 @@ std::string noise_csv(const NoiseResult& r) {
 }
 
 std::string noise_json(const NoiseResult& r, const ReportContext& context) {
-  json d{{"analysis", "noise"}, {"file", context.file}, {"title", context.title},
-         {"probe", r.probe.text}, {"unit", unit_of(r)},
-         {"band", {{"from", number(r.band.from)}, {"to", number(r.band.to)}}},
-         {"temperature_K", number(r.temperature_kelvin)}, {"total_rms", number(r.total_rms)}};
+  json d = json_output::header("noise", context);
+  d["probe"] = r.probe.text;
+  d["unit"] = unit_of(r);
+  d["band"] = {{"from", number(r.band.from)}, {"to", number(r.band.to)}};
+  d["temperature_K"] = number(r.temperature_kelvin);
+  d["total_rms"] = number(r.total_rms);
   if (!r.input.empty()) {
     d["input"] = r.input;
-    d["input_referred_rms"] = number(r.input_referred_rms.value_or(NAN));
+    d["input_referred_rms"] = number(r.input_referred_rms);
   }
   if (r.signal)
     d["signal"] = {{"level", number(r.signal->level)}, {"reference", number(r.signal->reference)},
@@ -159,7 +159,7 @@ std::string noise_json(const NoiseResult& r, const ReportContext& context) {
     contributors.push_back({{"source", c.source}, {"mechanism", to_string(c.mechanism)},
                             {"rms", number(c.rms)}, {"share", number(c.share)}});
   d["contributors"] = contributors;
-  return d.dump(1, ' ', false, json::error_handler_t::strict) + "\n";
+  return json_output::text(d);
 }
 
 }  // namespace tacet

@@ -17,10 +17,6 @@ std::string db_cell(std::complex<double> z) {
   return std::isfinite(db) ? fmt::format("{:.4f}", db) : std::string("-inf");
 }
 
-std::string title_lines(const ReportContext& context) {
-  std::string out = context.title.empty() ? "" : context.title + "\n";
-  return out + context.file + "\n";
-}
 
 std::string sweep_line(const AcResult& result) {
   const auto& f = result.frequencies;
@@ -49,7 +45,7 @@ std::string ac_table(const AcResult& result, const ReportContext& context) {
     }
     table.add(std::move(row));
   }
-  return title_lines(context) + sweep_line(result) + "\n" + table.render();
+  return report_header(context) + sweep_line(result) + "\n" + table.render();
 }
 
 
@@ -114,7 +110,7 @@ std::string model_line(const OpAmpModel& m) {
 
 
 std::string circuit_listing(const Circuit& c, const ReportContext& context) {
-  std::string out = title_lines(context);
+  std::string out = report_header(context);
   out += fmt::format("{} nodes besides gnd, {} elements, ambient {}C", c.node_count() - 1,
                      c.elements.size(), format_si(c.ambient_celsius, 6));
   if (c.supply) out += fmt::format(", supply {}V {}V", format_si(c.supply->high, 6), format_si(c.supply->low, 6));

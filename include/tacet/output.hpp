@@ -17,6 +17,9 @@ struct ReportContext {
   std::string title;
 };
 
+/// The first lines of every table: the title (when there is one), then the file.
+std::string report_header(const ReportContext& context);
+
 /// Writes `text` to `path` through a temporary file in the same folder and a
 /// rename, so a reader never sees half a file and a failure leaves any old file
 /// untouched. An empty path means stdout. Throws InputError when it cannot write.
