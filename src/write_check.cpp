@@ -32,10 +32,16 @@ std::string bare(double value, SpecUnit unit) {
   }
 }
 
+/// The unit written after a bare number; Hz and V are glued to theirs by bare().
 std::string unit_suffix(SpecUnit unit) {
-  std::string text = format_spec_value(1, unit);
-  auto space = text.find(' ');
-  return space == std::string::npos ? "" : text.substr(space);
+  switch (unit) {
+    case SpecUnit::db: return " dB";
+    case SpecUnit::ratio: return " V/V";
+    case SpecUnit::degrees: return " deg";
+    case SpecUnit::hertz:
+    case SpecUnit::volts: return "";
+  }
+  return "";
 }
 
 }  // namespace
