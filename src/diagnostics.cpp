@@ -11,9 +11,6 @@ namespace tacet {
 
 namespace {
 
-bool is_utf8_continuation(char c) {
-  return (static_cast<unsigned char>(c) & 0xC0U) == 0x80U;
-}
 
 const char* severity_word(Severity severity) {
   switch (severity) {
@@ -36,12 +33,9 @@ std::string caret_line(std::string_view line, std::size_t column_byte, std::uint
   // `length` is in bytes of source text (what the syntax tree records);
   // the underline shows the code points those bytes hold, up to the line end.
   const std::size_t span_end = std::min(line.size(), before + std::max<std::uint32_t>(length, 1));
-  const auto code_points =
-      std::count_if(line.begin() + static_cast<std::ptrdiff_t>(before),
-                    line.begin() + static_cast<std::ptrdiff_t>(span_end),
-                    [](char c) { return !is_utf8_continuation(c); });
+  const std::size_t underlined = code_points(line.substr(before, span_end - before));
   out += '^';
-  if (code_points > 1) out.append(static_cast<std::size_t>(code_points - 1), '~');
+  if (underlined > 1) out.append(underlined - 1, '~');
   out += '\n';
   return out;
 }

@@ -11,9 +11,6 @@ namespace tacet {
 
 namespace {
 
-bool is_utf8_continuation(char c) {
-  return (static_cast<unsigned char>(c) & 0xC0U) == 0x80U;
-}
 
 // Offsets past the end (an error at end of file) are reported at the end.
 std::size_t clamp_offset(const std::string& text, std::uint32_t offset) {
@@ -38,16 +35,18 @@ int SourceManager::add(std::string path, std::string text) {
   return size() - 1;
 }
 
+std::size_t code_points(std::string_view text) {
+  return static_cast<std::size_t>(
+      std::count_if(text.begin(), text.end(), [](char c) { return !is_utf8_continuation(c); }));
+}
+
 LineColumn SourceManager::line_column(SourceLocation where) const {
   const std::string& text = file(where.file).text;
   const std::size_t offset = clamp_offset(text, where.offset);
   const std::size_t start = line_start(text, offset);
   const auto newlines = std::count(text.begin(), text.begin() + static_cast<std::ptrdiff_t>(start), '\n');
-  const auto continuation_bytes =
-      std::count_if(text.begin() + static_cast<std::ptrdiff_t>(start),
-                    text.begin() + static_cast<std::ptrdiff_t>(offset), is_utf8_continuation);
-  const auto code_points = static_cast<std::ptrdiff_t>(offset - start) - continuation_bytes;
-  return LineColumn{static_cast<int>(newlines) + 1, static_cast<int>(code_points) + 1};
+  const std::size_t column = code_points(std::string_view(text).substr(start, offset - start));
+  return LineColumn{static_cast<int>(newlines) + 1, static_cast<int>(column) + 1};
 }
 
 std::string_view SourceManager::line_text(SourceLocation where) const {

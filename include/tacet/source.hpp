@@ -25,6 +25,13 @@ struct SourceFile {
   std::string text;
 };
 
+/// Whether a byte continues a UTF-8 sequence (10xxxxxx).
+inline bool is_utf8_continuation(char c) { return (static_cast<unsigned char>(c) & 0xC0U) == 0x80U; }
+
+/// The UTF-8 code points in `text`: what a column, an underline or a table
+/// cell's width counts, so `µ` and `Ω` take one place each.
+std::size_t code_points(std::string_view text);
+
 /// Line and column, both 1-based; the column counts UTF-8 code points, so a
 /// caret lands under the right character after `µ` or `Ω`.
 struct LineColumn {

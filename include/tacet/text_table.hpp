@@ -6,6 +6,8 @@
 #include <string>
 #include <vector>
 
+#include "tacet/source.hpp"
+
 namespace tacet {
 
 /// Columns sized to their widest cell, two spaces apart; right-aligned unless
@@ -39,10 +41,7 @@ class Table {
   }
 
  private:
-  static std::size_t display_width(const std::string& s) {
-    return static_cast<std::size_t>(
-        std::count_if(s.begin(), s.end(), [](char ch) { return (static_cast<unsigned char>(ch) & 0xC0) != 0x80; }));
-  }
+  static std::size_t display_width(const std::string& s) { return code_points(s); }
   std::vector<std::vector<std::string>> rows_;
   std::vector<Align> align_;
 };
