@@ -181,8 +181,7 @@ class SpecMeter {
   /// The largest |V| the node can reach over the offsets' unknown signs:
   /// |nominal| + worst (the nominal includes the bias currents' shift).
   void offset(SpecResult& r) {
-    const Probe probe = resolve_probe(r.spec.probe, circuit_);
-    const NodeBias& node = bias().node(probe.plus);
+    const NodeBias& node = bias().node(probe_.plus);
     r.value = std::abs(node.nominal) + node.worst;
     r.note = fmt::format("nominal {}V, worst-case band +-{}V", format_si(node.nominal), format_si(node.worst));
   }
