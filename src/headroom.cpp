@@ -88,14 +88,26 @@ void track_slew(SlewHeadroom& slew, double peak, double f) {
   if (slew.frequency == 0 || needed > slew.needed) slew.needed = needed, slew.frequency = f;
 }
 
+/// A level source as the solver sees it: its branch row and its peak.
+struct Drive {
+  int row = 0;
+  double peak = 0;  ///< V
+};
+
+std::vector<Drive> drives_of(const Circuit& circuit, const MnaSystem& mna, const std::vector<LevelSource>& sources) {
+  std::vector<Drive> drives;
+  for (const auto& source : sources)
+    drives.push_back({mna.branch_unknown(*circuit.find_element(source.name)), source.peak});
+  return drives;
+}
+
 // |V| at every node (index = node id), summed over the level sources.
-void signal_peaks(const Circuit& circuit, const MnaSystem& mna, SparseLu& lu,
-                  const std::vector<LevelSource>& sources, Vector& x, std::vector<double>& peaks) {
+void signal_peaks(const MnaSystem& mna, SparseLu& lu, const std::vector<Drive>& drives, Vector& x,
+                  std::vector<double>& peaks) {
   std::fill(peaks.begin(), peaks.end(), 0.0);
-  for (const auto& source : sources) {
+  for (const auto& drive : drives) {
     std::fill(x.begin(), x.end(), std::complex<double>{});
-    const auto element = *circuit.find_element(source.name);
-    x[static_cast<std::size_t>(mna.branch_unknown(element))] = source.peak;
+    x[static_cast<std::size_t>(drive.row)] = drive.peak;
     lu.solve(x.data());
     for (std::size_t node = 1; node < peaks.size(); ++node)
       peaks[node] += std::abs(x[static_cast<std::size_t>(mna.node_unknown(static_cast<int>(node)))]);
@@ -195,9 +207,10 @@ HeadroomResult run_headroom(const Circuit& circuit, const BiasResult& bias,
   const MnaSystem& mna = response.mna();
   Vector x(static_cast<std::size_t>(mna.size()));
   std::vector<double> peaks(circuit.node_count());
+  const std::vector<Drive> drives = drives_of(circuit, mna, result.sources);
   for (const double f : grid.frequencies()) {
     response.factor_at(f);
-    signal_peaks(circuit, mna, response.lu(), result.sources, x, peaks);
+    signal_peaks(mna, response.lu(), drives, x, peaks);
     for (std::size_t k = 0; k < amps.size(); ++k) {
       const auto& pins = amps[k]->nodes;
       auto& amp = result.opamps[k];
