@@ -178,6 +178,11 @@ class SpecMeter {
     return *bias_;
   }
 
+  const HeadroomResult& headroom() {
+    if (!headroom_) headroom_ = std::make_unique<HeadroomResult>(run_headroom(circuit_, bias()));
+    return *headroom_;
+  }
+
   /// The largest |V| the node can reach over the offsets' unknown signs:
   /// |nominal| + worst (the nominal includes the bias currents' shift).
   void offset(SpecResult& r) {
@@ -202,7 +207,7 @@ class SpecMeter {
     const bool has_level = std::any_of(circuit_.elements.begin(), circuit_.elements.end(),
                                        [](const Element& e) { return e.level.has_value(); });
     if (has_level) {
-      const HeadroomResult h = run_headroom(circuit_, b);
+      const HeadroomResult& h = headroom();
       for (const auto& op : h.opamps) {
         if (!op.has_rails) continue;
         for (const auto* pin : {&op.out, &op.plus, &op.minus})
@@ -216,6 +221,7 @@ class SpecMeter {
 
   const Circuit& circuit_;
   std::unique_ptr<BiasResult> bias_;
+  std::unique_ptr<HeadroomResult> headroom_;
   std::unique_ptr<FrequencyResponse> response_;
   Probe probe_;  ///< the probe of the spec being measured
 };
