@@ -31,9 +31,9 @@
 #include <string>
 #include <vector>
 
-#include "tacet/ac.hpp"
-#include "tacet/mna.hpp"
-#include "tacet/noise.hpp"
+#include "tacet/analysis/ac.hpp"
+#include "tacet/solve/mna.hpp"
+#include "tacet/analysis/noise.hpp"
 
 namespace {
 

@@ -7,7 +7,7 @@
 #include <CLI/CLI.hpp>
 
 #include "cli/commands.hpp"
-#include "tacet/errors.hpp"
+#include "tacet/common/errors.hpp"
 
 int main(int argc, char** argv) {
   CLI::App app{"tacet: small-signal solver for precision op-amp stages"};

@@ -1,15 +1,15 @@
 // AC analysis against closed forms from the literature; each check names its
 // source in tests/reference_circuits.hpp or beside it.
 
-#include "tacet/ac.hpp"
+#include "tacet/analysis/ac.hpp"
 
 #include <catch2/catch.hpp>
 #include <cmath>
 
 #include "is_close.hpp"
 #include "reference_circuits.hpp"
-#include "tacet/errors.hpp"
-#include "tacet/mna.hpp"
+#include "tacet/common/errors.hpp"
+#include "tacet/solve/mna.hpp"
 
 using namespace tacet;
 using namespace tacet::testing;

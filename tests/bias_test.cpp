@@ -6,14 +6,14 @@
 // loop factor 1 + (1 + Rf/Rg)/aol (H. S. Black, Bell Syst. Tech. J. 13, 1934),
 // which makes the comparison exact to 1e-9.
 
-#include "tacet/bias.hpp"
+#include "tacet/analysis/bias.hpp"
 
 #include <catch2/catch.hpp>
 #include <cmath>
 
 #include "is_close.hpp"
 #include "reference_circuits.hpp"
-#include "tacet/errors.hpp"
+#include "tacet/common/errors.hpp"
 
 using namespace tacet;
 using namespace tacet::testing;

@@ -4,8 +4,8 @@
 #include <numbers>
 #include <string>
 
-#include "tacet/check.hpp"
-#include "tacet/errors.hpp"
+#include "tacet/analysis/check.hpp"
+#include "tacet/common/errors.hpp"
 #include "text_circuit.hpp"
 
 using namespace tacet;

@@ -1,7 +1,7 @@
 // The one diagnostic shape: location, source line, caret line, hint.
 #include <catch2/catch.hpp>
 
-#include "tacet/diagnostics.hpp"
+#include "tacet/language/diagnostics.hpp"
 
 using tacet::Diagnostics;
 using tacet::SourceManager;

@@ -5,8 +5,8 @@
 #include <filesystem>
 #include <fstream>
 
-#include "tacet/diff.hpp"
-#include "tacet/elaborate.hpp"
+#include "tacet/analysis/diff.hpp"
+#include "tacet/elaborate/elaborate.hpp"
 #include "text_circuit.hpp"
 
 using namespace tacet;

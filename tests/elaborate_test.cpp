@@ -5,7 +5,7 @@
 #include <utility>
 #include <vector>
 
-#include "tacet/elaborate.hpp"
+#include "tacet/elaborate/elaborate.hpp"
 #include "text_circuit.hpp"
 
 using namespace tacet;

@@ -3,7 +3,7 @@
 #include <cmath>
 #include <complex>
 
-#include "tacet/format.hpp"
+#include "tacet/common/format.hpp"
 
 using namespace tacet;
 

@@ -2,15 +2,15 @@
 // each op-amp pin against the rails, the slew rate a sine needs, the cautions,
 // and the level= syntax with its errors.
 
-#include "tacet/headroom.hpp"
+#include "tacet/analysis/headroom.hpp"
 
 #include <catch2/catch.hpp>
 #include <cmath>
 
 #include "is_close.hpp"
 #include "reference_circuits.hpp"
-#include "tacet/elaborate.hpp"
-#include "tacet/errors.hpp"
+#include "tacet/elaborate/elaborate.hpp"
+#include "tacet/common/errors.hpp"
 
 using namespace tacet;
 using namespace tacet::testing;

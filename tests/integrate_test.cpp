@@ -1,6 +1,6 @@
 // Band integration against closed-form integrals; each check names its source.
 
-#include "tacet/integrate.hpp"
+#include "tacet/solve/integrate.hpp"
 
 #include <catch2/catch.hpp>
 #include <cmath>

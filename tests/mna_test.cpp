@@ -1,13 +1,13 @@
 // The MNA system: numbering, the stamp of each element, the fixed pattern and
 // the structural checks that run before any solve.
 
-#include "tacet/mna.hpp"
+#include "tacet/solve/mna.hpp"
 
 #include <catch2/catch.hpp>
 
 #include "is_close.hpp"
 #include "reference_circuits.hpp"
-#include "tacet/errors.hpp"
+#include "tacet/common/errors.hpp"
 
 using namespace tacet;
 using namespace tacet::testing;

@@ -1,6 +1,6 @@
 // Noise analysis against closed forms from the literature; each check names its source.
 
-#include "tacet/noise.hpp"
+#include "tacet/analysis/noise.hpp"
 
 #include <catch2/catch.hpp>
 #include <cmath>
@@ -8,7 +8,7 @@
 
 #include "is_close.hpp"
 #include "reference_circuits.hpp"
-#include "tacet/errors.hpp"
+#include "tacet/common/errors.hpp"
 
 using namespace tacet;
 using namespace tacet::testing;

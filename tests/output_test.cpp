@@ -4,8 +4,8 @@
 #include <fstream>
 #include <sstream>
 
-#include "tacet/errors.hpp"
-#include "tacet/output.hpp"
+#include "tacet/common/errors.hpp"
+#include "tacet/report/output.hpp"
 
 using namespace tacet;
 namespace fs = std::filesystem;

@@ -9,7 +9,7 @@
 #include <string>
 #include <type_traits>
 
-#include "tacet/parser.hpp"
+#include "tacet/language/parser.hpp"
 
 namespace ast = tacet::ast;
 namespace x3 = boost::spirit::x3;

@@ -8,7 +8,7 @@
 #include <string>
 #include <vector>
 
-#include "tacet/circuit.hpp"
+#include "tacet/circuit/circuit.hpp"
 
 namespace tacet::testing {
 

@@ -4,7 +4,7 @@
 #include <filesystem>
 #include <fstream>
 
-#include "tacet/source.hpp"
+#include "tacet/language/source.hpp"
 
 using tacet::SourceLocation;
 using tacet::SourceManager;

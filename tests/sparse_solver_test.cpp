@@ -1,7 +1,7 @@
 // Both sparse LU backends against a dense LU of the same matrix (Eigen's
 // FullPivLU, a reference implementation outside this project).
 
-#include "tacet/sparse_solver.hpp"
+#include "tacet/solve/sparse_solver.hpp"
 
 #include <Eigen/Dense>
 #include <catch2/catch.hpp>

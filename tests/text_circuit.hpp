@@ -7,7 +7,7 @@
 #include <utility>
 #include <vector>
 
-#include "tacet/elaborate.hpp"
+#include "tacet/elaborate/elaborate.hpp"
 
 namespace tacet::testing {
 

@@ -1,6 +1,6 @@
 #include <catch2/catch.hpp>
 
-#include "tacet/units.hpp"
+#include "tacet/language/units.hpp"
 
 using namespace tacet;
 

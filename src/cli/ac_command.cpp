@@ -6,11 +6,9 @@
 
 #include "commands.hpp"
 #include "common.hpp"
-#include "tacet/ac.hpp"
-#include "tacet/errors.hpp"
-#include "tacet/write_csv.hpp"
-#include "tacet/write_json.hpp"
-#include "tacet/write_table.hpp"
+#include "tacet/analysis/ac.hpp"
+#include "tacet/common/errors.hpp"
+#include "tacet/report/write_ac.hpp"
 
 namespace tacet::cli {
 

@@ -8,10 +8,10 @@
 
 #include "commands.hpp"
 #include "common.hpp"
-#include "tacet/bias.hpp"
-#include "tacet/errors.hpp"
-#include "tacet/headroom.hpp"
-#include "tacet/write_bias.hpp"
+#include "tacet/analysis/bias.hpp"
+#include "tacet/common/errors.hpp"
+#include "tacet/analysis/headroom.hpp"
+#include "tacet/report/write_bias.hpp"
 
 namespace tacet::cli {
 

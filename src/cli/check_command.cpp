@@ -5,9 +5,9 @@
 
 #include "commands.hpp"
 #include "common.hpp"
-#include "tacet/check.hpp"
-#include "tacet/errors.hpp"
-#include "tacet/write_check.hpp"
+#include "tacet/analysis/check.hpp"
+#include "tacet/common/errors.hpp"
+#include "tacet/report/write_check.hpp"
 
 namespace tacet::cli {
 

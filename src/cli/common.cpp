@@ -6,8 +6,8 @@
 
 #include <fmt/format.h>
 
-#include "tacet/elaborate.hpp"
-#include "tacet/errors.hpp"
+#include "tacet/elaborate/elaborate.hpp"
+#include "tacet/common/errors.hpp"
 
 namespace tacet::cli {
 

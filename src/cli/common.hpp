@@ -7,11 +7,11 @@
 
 #include <CLI/CLI.hpp>
 
-#include "tacet/ac.hpp"
-#include "tacet/circuit.hpp"
-#include "tacet/noise.hpp"
-#include "tacet/output.hpp"
-#include "tacet/units.hpp"
+#include "tacet/analysis/ac.hpp"
+#include "tacet/circuit/circuit.hpp"
+#include "tacet/analysis/noise.hpp"
+#include "tacet/report/output.hpp"
+#include "tacet/language/units.hpp"
 
 namespace tacet::cli {
 

@@ -8,9 +8,9 @@
 
 #include "commands.hpp"
 #include "common.hpp"
-#include "tacet/diff.hpp"
-#include "tacet/errors.hpp"
-#include "tacet/write_diff.hpp"
+#include "tacet/analysis/diff.hpp"
+#include "tacet/common/errors.hpp"
+#include "tacet/report/write_diff.hpp"
 
 namespace tacet::cli {
 

@@ -7,9 +7,9 @@
 
 #include "commands.hpp"
 #include "common.hpp"
-#include "tacet/errors.hpp"
-#include "tacet/noise.hpp"
-#include "tacet/write_noise.hpp"
+#include "tacet/common/errors.hpp"
+#include "tacet/analysis/noise.hpp"
+#include "tacet/report/write_noise.hpp"
 
 namespace tacet::cli {
 

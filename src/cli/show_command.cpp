@@ -4,7 +4,7 @@
 
 #include "commands.hpp"
 #include "common.hpp"
-#include "tacet/write_table.hpp"
+#include "tacet/report/write_circuit.hpp"
 
 namespace tacet::cli {
 

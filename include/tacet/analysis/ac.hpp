@@ -1,0 +1,53 @@
+#pragma once
+// AC analysis: the small-signal response to every source's `ac=` phasor,
+// superposed, at each frequency of a sweep.
+
+#include <complex>
+#include <string>
+#include <vector>
+
+#include "tacet/circuit/circuit.hpp"
+#include "tacet/solve/probe.hpp"
+#include "tacet/solve/sparse_solver.hpp"
+
+namespace tacet {
+
+enum class SweepKind { log, linear, list };
+const char* to_string(SweepKind kind);
+
+struct Sweep {
+  SweepKind kind = SweepKind::log;
+  double from = 10;      ///< Hz, first point of a log or linear sweep
+  double to = 100e3;     ///< Hz, last point
+  int per_decade = 20;   ///< log sweep: points per decade
+  int points = 101;      ///< linear sweep: number of points, ends included
+  std::vector<double> at;  ///< list: the frequencies, Hz
+
+  /// Empty when valid, else a message naming the option, its value and the rule.
+  std::string validate() const;
+  /// The frequencies in order. A log sweep starts at `from`, steps by
+  /// 10^(1/per_decade) and ends at `to` (included even when off the grid).
+  std::vector<double> frequencies() const;
+};
+
+struct AcOptions {
+  Sweep sweep;
+  std::vector<std::string> probes;  ///< probe texts, resolved by run_ac
+  SolverKind solver = SolverKind::klu;  ///< sparse LU backend (Eigen: for comparison)
+};
+
+struct AcTrace {
+  Probe probe;
+  std::vector<std::complex<double>> values;  ///< one per frequency, V or A
+};
+
+struct AcResult {
+  std::vector<double> frequencies;  ///< Hz
+  std::vector<AcTrace> traces;      ///< one per probe, in the order asked
+};
+
+/// Throws InputError for a bad sweep or probe, SolveError when the circuit is
+/// singular at some frequency (the message names the unknown involved).
+AcResult run_ac(const Circuit& circuit, const AcOptions& options);
+
+}  // namespace tacet

@@ -1,0 +1,92 @@
+#pragma once
+// Bias analysis: the DC operating point of the circuit with capacitors open and
+// inductors shorted (the MNA matrix at s = 0, op amps with their finite aol and
+// rout), and the worst-case band of every node over the op amps' unknown-sign
+// DC errors.
+//
+// Nominal point: vos = 0, ios = 0, and each op amp's bias current `ib` flowing
+// into both input pins (KCL row of the pin: rhs -= ib), plus every source's dc=.
+//
+// Offsets: each op amp k contributes two sources of unknown sign,
+//   vos_k: a voltage in series with its + input, rhs[gain row of k] += vos;
+//   ios_k: I(+) = ib + s ios/2, I(-) = ib - s ios/2, s in {-1, +1}.
+// The DC system is linear, so node n moves by S_nj x_j for source j with
+// sensitivity S_nj (one extra right-hand side per source on the one DC
+// factorisation). Over all sign combinations
+//   worst_n = sum_j |S_nj| limit_j      (the exact worst case of the signs),
+//   rss_n   = sqrt(sum_j (S_nj limit_j)^2)  (a statistical estimate).
+// An op-amp output is then bounded by nominal -/+ worst and checked against
+// [rail_low + swing, rail_high - swing].
+
+#include <cstddef>
+#include <limits>
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "tacet/circuit/circuit.hpp"
+#include "tacet/solve/sparse_solver.hpp"
+
+namespace tacet {
+
+struct BiasOptions {
+  SolverKind solver = SolverKind::klu;  ///< sparse LU backend
+};
+
+/// Which DC error of an op amp a contribution comes from.
+enum class DcErrorKind { vos, ios, ib };
+/// "vos", "ios", "ib".
+const char* to_string(DcErrorKind kind);
+
+/// One DC error's share at a node.
+struct OffsetContribution {
+  std::string opamp;   ///< the op amp's name
+  DcErrorKind kind = DcErrorKind::vos;
+  double gain = 0;     ///< |dV/dsource|: V/V for vos, ohm for ios and ib
+  double volts = 0;    ///< V: |S| limit for vos and ios; the signed shift for ib
+  /// ios and ib: the resistor that turns the current into the most voltage
+  /// (largest |v_a - v_b| in that error's solution), "" when none does.
+  std::string through;
+};
+
+struct NodeBias {
+  std::string name;
+  double nominal = 0;  ///< V
+  double worst = 0;    ///< V, sum over sources of |sensitivity| x limit
+  double rss = 0;      ///< V, root-sum-square of the same terms
+};
+
+constexpr double kNotGiven = std::numeric_limits<double>::quiet_NaN();
+
+struct OpAmpBias {
+  std::string name;
+  std::size_t element = 0;  ///< index into Circuit::elements
+  std::string out;          ///< output node name
+  double nominal = 0;       ///< V at the output
+  double low = 0;           ///< V, nominal - worst
+  double high = 0;          ///< V, nominal + worst
+  std::optional<Rails> rails;          ///< the instance's rails=, else the supply; none: unchecked
+  double limit_low = kNotGiven;        ///< V, rails.low + swing
+  double limit_high = kNotGiven;       ///< V, rails.high - swing
+  std::optional<bool> ok;              ///< nullopt: no rails to check against
+  std::vector<OffsetContribution> largest;  ///< up to three, largest |volts| first
+};
+
+struct BiasResult {
+  std::vector<NodeBias> nodes;    ///< node id k at index k - 1 (gnd left out)
+  std::vector<OpAmpBias> opamps;  ///< in the order of the netlist
+  std::vector<std::string> warnings;  ///< for people: saturation, unchecked rails
+
+  /// The bias of node id `node`; gnd is 0 V with no band.
+  const NodeBias& node(int node) const;
+};
+
+/// The rails an op amp is checked against: rails= on the instance, else the
+/// circuit's supply, else none.
+std::optional<Rails> rails_for(const Circuit& circuit, const Element& opamp);
+
+/// Throws SolveError naming the nodes when some node has no DC path to gnd, or
+/// when the DC matrix is singular.
+BiasResult run_bias(const Circuit& circuit, const BiasOptions& options = {});
+
+}  // namespace tacet

@@ -1,0 +1,37 @@
+#pragma once
+// check: measures every `spec` of a circuit and compares it with its limits.
+// Each analysis a spec needs is set up once and shared by all specs that
+// need it (one FrequencyResponse for every gain, phase, flatness and corner).
+
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "tacet/circuit/circuit.hpp"
+#include "tacet/circuit/spec.hpp"
+
+namespace tacet {
+
+struct SpecResult {
+  Spec spec;
+  std::optional<double> value;  ///< measured, in spec.unit; nullopt: could not be measured
+  double margin = 0;            ///< how far inside the limits (negative: outside), in spec.unit
+  bool pass = false;
+  double where = 0;             ///< Hz of the worst point (flatness) or 0
+  std::string note;             ///< why there is no value, or what was measured where
+};
+
+struct CheckResult {
+  std::vector<SpecResult> specs;  ///< in the order written
+  int failed() const;
+};
+
+/// Measures every spec. Throws SolveError when the circuit cannot be solved,
+/// InputError when a spec needs an analysis this build cannot run.
+CheckResult run_check(const Circuit& circuit);
+
+/// Margin of `value` inside the optional window [min, max]: the smaller
+/// distance to a given limit, negative when outside.
+double window_margin(double value, std::optional<double> min, std::optional<double> max);
+
+}  // namespace tacet

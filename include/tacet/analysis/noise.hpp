@@ -1,0 +1,111 @@
+#pragma once
+// Noise analysis: the output noise density at a probe, its rms over a band,
+// the share of every noise source, and the noise referred to an input source.
+//
+// Sources (all uncorrelated, densities one-sided, per Hz):
+//   resistor  thermal current 4 k T / R  [A^2/Hz] across it (Johnson 1928,
+//             Nyquist 1928), k = 1.380649e-23 J/K (SI 2019, exact),
+//             T = ambient + 273.15 K; none when `noiseless`;
+//   op amp    en^2 (1 + fce/f) [V^2/Hz] in series with the + input ("en");
+//             in^2 (1 + fci/f) [A^2/Hz] from each input pin to gnd ("in+",
+//             "in-"); none when the instance is `noiseless`.
+// Capacitors, inductors, sources and controlled sources are noiseless.
+//
+// Adjoint method: the probe is a linear functional c^T x of the MNA unknowns,
+// and x = A^-1 b, so the probe's response to any right-hand side b is
+// y^T b with A^T y = c. One transposed solve per frequency, on the
+// factorisation of A, gives the transfer of every source at once:
+//   a current between nodes a and b: y_a - y_b  (injected into a, out of b);
+//   the en of op amp U: y_row, row = MnaSystem::opamp_gain_row(U);
+//   the in of a pin p: y_p.
+// Output power density S(f) = sum_i |H_i(f)|^2 S_i(f) [V^2/Hz for a voltage
+// probe, A^2/Hz for a current probe]; the density printed is sqrt(S).
+//
+// Input-referred: with an input source, G(f) is the probe's response to a
+// unit value of that source alone (y_branch for a vsrc; y_minus - y_plus for
+// an isrc), the input-referred density is sqrt(S)/|G|, and the
+// input-referred total is the rms of that density integrated over the band
+// (not the output total divided by one gain).
+//
+// Band totals come from integrate_band (adaptive Gauss-Legendre in ln f), not
+// from the printed sweep: total_rms = sqrt(integral of S over the band).
+
+#include <complex>
+#include <cstddef>
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "tacet/analysis/ac.hpp"
+#include "tacet/circuit/circuit.hpp"
+#include "tacet/solve/probe.hpp"
+#include "tacet/solve/sparse_solver.hpp"
+
+namespace tacet {
+
+/// Boltzmann constant, J/K (exact since the 2019 SI redefinition).
+constexpr double kBoltzmann = 1.380649e-23;
+
+enum class NoiseMechanism { thermal, en, in_plus, in_minus };
+/// "thermal", "en", "in+", "in-" (the JSON and table spelling).
+const char* to_string(NoiseMechanism mechanism);
+std::optional<NoiseMechanism> parse_noise_mechanism(const std::string& text);
+
+/// A frequency band, Hz.
+struct Band {
+  double from = 0;
+  double to = 0;
+  /// Empty when 0 < from < to and both finite; else a message naming --band.
+  std::string validate() const;
+};
+
+struct NoiseOptions {
+  Sweep sweep;                ///< the printed points
+  std::string probe;          ///< probe text, resolved by run_noise
+  std::string input;          ///< an input source's name; empty: no input referral
+  std::optional<Band> band;   ///< integration band; default: the sweep's lowest..highest point
+  std::optional<double> level;      ///< V or A rms of the signal at `input`; needs `input`
+  std::optional<double> reference;  ///< Hz, where the signal gain is taken; default sqrt(from to)
+  SolverKind solver = SolverKind::klu;
+  /// Empty when valid, else a message naming the option, its value and the rule.
+  std::string validate() const;
+};
+
+/// One noise source's part of the band total.
+struct NoiseContributor {
+  std::string source;  ///< element name
+  NoiseMechanism mechanism = NoiseMechanism::thermal;
+  double rms = 0;      ///< its rms over the band at the probe, V (or A)
+  double share = 0;    ///< its fraction of the total power, 0..1
+};
+
+/// Signal against noise at the probe, when a --level is given.
+struct SignalToNoise {
+  double level = 0;         ///< rms at the input source, V (or A)
+  double reference = 0;     ///< Hz, where the gain is taken
+  double signal_rms = 0;    ///< level x |G(reference)| at the probe
+  double ratio_db = 0;      ///< 20 log10(signal_rms / total_rms)
+};
+
+struct NoiseResult {
+  Probe probe;
+  std::string input;                      ///< empty: none
+  std::string input_unit;                 ///< "V" (vsrc) or "A" (isrc); empty without input
+  double temperature_kelvin = 0;
+  Band band;
+  std::vector<double> frequencies;        ///< Hz, the printed points
+  std::vector<double> density;            ///< per point, V/sqrt(Hz) (A/sqrt(Hz) for i(...))
+  std::vector<std::complex<double>> gain; ///< per point, G(f) (empty without input)
+  std::vector<double> input_density;      ///< per point, density / |G| (empty without input)
+  double total_rms = 0;                   ///< over the band, V (or A)
+  std::optional<double> input_referred_rms;  ///< over the band, input source's unit
+  std::vector<NoiseContributor> contributors;  ///< largest share first
+  std::optional<SignalToNoise> signal;
+  int band_evaluations = 0;               ///< adjoint solves spent on the band integral
+};
+
+/// Throws InputError for bad options, probe or input, SolveError when the
+/// circuit is singular at some frequency.
+NoiseResult run_noise(const Circuit& circuit, const NoiseOptions& options);
+
+}  // namespace tacet

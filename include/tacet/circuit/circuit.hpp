@@ -1,0 +1,112 @@
+#pragma once
+// elaborate's output and every analysis' input: a flat circuit of numbers.
+// No text, no params, no blocks: block instances are expanded into dotted
+// names ("F1.R1", node "F1.x"), models are resolved, values are in SI units.
+
+#include <complex>
+#include <cstddef>
+#include <limits>
+#include <map>
+#include <optional>
+#include <string>
+#include <unordered_map>
+#include <vector>
+
+#include "tacet/language/source.hpp"
+#include "tacet/circuit/spec.hpp"
+
+namespace tacet {
+
+enum class ElementKind { resistor, capacitor, inductor, vsource, isource, vcvs, vccs, opamp };
+
+/// The keyword that declares the kind ("res", "cap", ...).
+const char* to_keyword(ElementKind kind);
+
+/// Op-amp macromodel (all values SI). A(s) = aol / ((1 + s/wp)(1 + s/wp2)),
+/// wp = 2 pi gbw / aol, wp2 = 2 pi fp2 (no second pole when fp2 == 0). The
+/// internal voltage A(s)(v+ - v-) drives the output pin through rout.
+struct OpAmpModel {
+  std::string name;
+  double gbw = 0;        ///< gain-bandwidth product, Hz (required)
+  double aol = 1e6;      ///< DC open-loop gain, V/V
+  double fp2 = 0;        ///< second pole, Hz; 0: none
+  double rout = 0;       ///< output resistance, ohm
+  double rin = 0;        ///< differential input resistance, ohm; 0: open
+  double en = 0;         ///< input voltage noise density (white part), V/sqrt(Hz)
+  double fce = 0;        ///< voltage-noise 1/f corner, Hz
+  double in = 0;         ///< input current noise density (white part), A/sqrt(Hz)
+  double fci = 0;        ///< current-noise 1/f corner, Hz
+  double vos = 0;        ///< largest input offset voltage magnitude, V
+  double ib = 0;         ///< bias current into each input pin, A
+  double ios = 0;        ///< largest input offset current magnitude, A
+  double swing = 0;      ///< how far inside each rail the output saturates, V
+  double slew = 0;       ///< slew rate, V/s; 0: not given
+  std::optional<double> vcm_low;   ///< inputs must stay this far above the low rail, V
+  std::optional<double> vcm_high;  ///< inputs must stay this far below the high rail, V
+  SourceLocation where;
+};
+
+/// How a source's largest level was written: `level=40Vrms`, `level=56.6Vpk`
+/// or `level=200W load=8ohm` (power into a load, P = V_rms^2 / R).
+enum class LevelUnit { rms, peak, power };
+
+/// vsource: the largest signal the input must accept, for the headroom check.
+struct SignalLevel {
+  LevelUnit unit = LevelUnit::peak;
+  double value = 0;  ///< V rms, V peak or W, by `unit`
+  double load = 0;   ///< ohm; only with LevelUnit::power
+};
+
+struct Rails {
+  double high = 0;  ///< V
+  double low = 0;   ///< V
+};
+
+/// Node index 0 is gnd. `nodes` holds, per kind:
+///   resistor/capacitor/inductor: {a, b}
+///   vsource/isource: {plus, minus}; an isource drives current from plus
+///     through itself to minus
+///   vcvs/vccs: {out_plus, out_minus, control_plus, control_minus}
+///   opamp: {plus_input, minus_input, output}
+struct Element {
+  ElementKind kind = ElementKind::resistor;
+  std::string name;  ///< hierarchical: "F1.R1"
+  std::vector<int> nodes;
+  double value = 0;       ///< ohm, farad, henry, V/V (vcvs gain) or siemens (vccs gm)
+  double dc = 0;          ///< sources: DC value, V or A
+  double ac_magnitude = 0;  ///< sources: AC magnitude, V or A
+  double ac_phase = 0;    ///< sources: AC phase, degrees
+  double tolerance = 0;   ///< relative (0.01 = 1 %); 0: not given
+  bool noiseless = false;
+  int model = -1;         ///< opamp: index into Circuit::models
+  std::optional<Rails> rails;  ///< opamp: rails= on the instance
+  std::optional<SignalLevel> level;  ///< vsource: level= (and load=)
+  double band_low = 0;    ///< vsource: headroom band start, Hz; 0: not given
+  double band_high = 0;   ///< vsource: headroom band end, Hz; 0: not given
+  SourceLocation where;
+
+  std::complex<double> ac_phasor() const;
+};
+
+struct Circuit {
+  std::string title;
+  double ambient_celsius = 25.0;
+  std::optional<Rails> supply;
+  std::vector<std::string> node_names{"gnd"};  ///< index = node id
+  std::vector<Element> elements;
+  std::vector<OpAmpModel> models;
+  std::vector<SourceLocation> node_where;  ///< where each node first appeared
+  std::vector<Spec> specs;                 ///< the budget, in the order written
+  std::map<std::string, double> params;    ///< the file's top-level params, for diffs
+
+  /// Node id by name, adding it when new.
+  int node(const std::string& name, SourceLocation where = {});
+  std::optional<int> find_node(const std::string& name) const;
+  std::optional<std::size_t> find_element(const std::string& name) const;
+  std::size_t node_count() const { return node_names.size(); }
+
+ private:
+  std::unordered_map<std::string, int> node_ids_{{"gnd", 0}};
+};
+
+}  // namespace tacet

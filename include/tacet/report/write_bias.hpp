@@ -1,0 +1,36 @@
+#pragma once
+// Writers of the bias analysis and the headroom at the declared level: one
+// aligned report for people (op amps first: the designer's question, then the
+// headroom, then every node), csv of the nodes, and json for programs.
+
+#include <string>
+
+#include "tacet/analysis/bias.hpp"
+#include "tacet/analysis/headroom.hpp"
+#include "tacet/report/output.hpp"
+
+namespace tacet {
+
+/// Op amps (nominal output, worst-case band, limits, ok, largest offsets),
+/// warnings, the headroom at the level (or a line saying none is declared),
+/// cautions, then every node's nominal, worst and rss.
+std::string bias_table(const BiasResult& bias, const HeadroomResult& headroom,
+                       const ReportContext& context);
+
+/// node,nominal,worst,rss (V), one row per node.
+std::string bias_csv(const BiasResult& bias);
+
+/// {"analysis":"bias","file","title","nodes":{NAME:V},"offset":{NAME:{"worst","rss"}},
+///  "opamps":[{"name","out","nominal","low","high","limit_low","limit_high","ok",
+///             "largest":[{"opamp","kind","gain","volts","through"}]}],
+///  "warnings":[...],
+///  "headroom":{"sources":[{"name","peak","rms","hazardous"}],"band":{"from","to"},
+///              "opamps":[{"name","out","plus","minus": {"node","peak","low","high",
+///                          "limit_low","limit_high","margin","f","ok"},
+///                         "slew":{"needed","available","f","ok"}}],
+///              "warnings":[...],"cautions":[...]}}
+/// Limits without rails, and ok when nothing was checked, are null.
+std::string bias_json(const BiasResult& bias, const HeadroomResult& headroom,
+                      const ReportContext& context);
+
+}  // namespace tacet

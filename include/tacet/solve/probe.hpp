@@ -1,0 +1,56 @@
+#pragma once
+// What a user asks to see: a node voltage (`out`), a node pair (`out,ref`),
+// or the current through an element (`i(R1)`, flowing from its first
+// connection through it to its second; for an op amp, `i(U1)` is the current
+// its output delivers into the output pin).
+//
+// Every probe is a linear functional of the MNA unknowns x plus a constant:
+//   value = constant + sum_k coefficient_k x_k
+// (a current source's probe is just its phasor). The noise analysis uses the
+// coefficients as the right-hand side of its adjoint (transposed) solve.
+
+#include <complex>
+#include <cstddef>
+#include <string>
+#include <vector>
+
+#include "tacet/circuit/circuit.hpp"
+#include "tacet/solve/mna.hpp"
+
+namespace tacet {
+
+enum class ProbeKind { voltage, current };
+
+struct Probe {
+  std::string text;  ///< as the user wrote it, for headers and JSON
+  ProbeKind kind = ProbeKind::voltage;
+  int plus = 0;   ///< voltage: node ids; gnd is 0
+  int minus = 0;
+  std::size_t element = 0;  ///< current: index into Circuit::elements
+};
+
+/// Resolves a probe's text against the circuit. Throws InputError for an
+/// unknown node or element, with the nearest name as a hint.
+Probe resolve_probe(const std::string& text, const Circuit& circuit);
+
+/// The unit a probe's values carry: "V" or "A".
+const char* probe_unit(const Probe& probe);
+
+/// One term of a probe's functional: coefficient times unknown `unknown`.
+struct ProbeTerm {
+  int unknown;
+  std::complex<double> coefficient;
+};
+
+/// Fills `terms` (cleared first; its capacity is reused, so a caller that
+/// keeps the vector allocates nothing per point) with the probe's functional
+/// at the Laplace variable s, and returns the constant part.
+std::complex<double> probe_functional(const Probe& probe, const MnaSystem& mna,
+                                      std::complex<double> s, std::vector<ProbeTerm>& terms);
+
+/// The probe's value for the solution x (mna.size() values) at s; `scratch`
+/// is reused working space.
+std::complex<double> probe_value(const Probe& probe, const MnaSystem& mna, std::complex<double> s,
+                                 const std::complex<double>* x, std::vector<ProbeTerm>& scratch);
+
+}  // namespace tacet

@@ -1,0 +1,53 @@
+#pragma once
+// The small-signal solution at one frequency at a time, for analyses that
+// choose their frequencies as they go (the AC sweep, spec checks searching a
+// corner or a band's worst point). The MNA pattern and the symbolic analysis
+// are made once; each new frequency costs one assemble, refactor and solve.
+
+#include <complex>
+#include <memory>
+#include <vector>
+
+#include "tacet/circuit/circuit.hpp"
+#include "tacet/solve/mna.hpp"
+#include "tacet/solve/probe.hpp"
+#include "tacet/solve/sparse_solver.hpp"
+
+namespace tacet {
+
+class FrequencyResponse {
+ public:
+  /// Builds the MNA system (throws SolveError when the circuit has no unique
+  /// solution). The circuit must outlive this object.
+  explicit FrequencyResponse(const Circuit& circuit, SolverKind solver = SolverKind::klu);
+
+  /// Assembles and refactors at f (Hz) unless f is the frequency factored
+  /// last. Throws SolveError naming the unknown when the matrix is singular.
+  void factor_at(double f);
+  /// factor_at(f), then the forward solve with every source's AC phasor,
+  /// unless f is the frequency solved last.
+  void solve_at(double f);
+  /// The probe's phasor at the last frequency solved; SolveError if not finite.
+  std::complex<double> value(const Probe& probe);
+  /// solve_at(f), then value(probe).
+  std::complex<double> at(const Probe& probe, double f);
+  /// The adjoint solution y of A(s)^T y = c at the frequency factored last, c
+  /// the probe's functional: y_k is the transfer from a unit injected into row
+  /// k to the probe (the noise analysis reads every source's transfer here).
+  const std::vector<std::complex<double>>& adjoint(const Probe& probe);
+
+  const MnaSystem& mna() const { return mna_; }
+  /// The factorisation at the frequency factored last, for callers that solve
+  /// right-hand sides of their own.
+  SparseLu& lu() { return *lu_; }
+
+ private:
+  MnaSystem mna_;
+  std::unique_ptr<SparseLu> lu_;
+  std::vector<std::complex<double>> values_, excitation_, x_, y_;
+  std::vector<ProbeTerm> scratch_;
+  double factored_ = -1;  ///< Hz of the current factorisation; -1: none
+  double solved_ = -1;    ///< Hz of x_; -1: none
+};
+
+}  // namespace tacet

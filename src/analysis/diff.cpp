@@ -1,0 +1,238 @@
+#include "tacet/analysis/diff.hpp"
+
+#include <algorithm>
+#include <cmath>
+#include <map>
+#include <set>
+
+#include <fmt/format.h>
+
+#include "tacet/analysis/bias.hpp"
+#include "tacet/common/errors.hpp"
+#include "tacet/common/format.hpp"
+#include "tacet/circuit/circuit_text.hpp"
+
+namespace tacet {
+
+const char* to_string(ChangeKind kind) {
+  switch (kind) {
+    case ChangeKind::added: return "added";
+    case ChangeKind::removed: return "removed";
+    case ChangeKind::changed: return "changed";
+  }
+  return "changed";
+}
+
+namespace {
+
+/// An element as one comparable line: kind, connections by node name, value.
+std::string describe(const Circuit& c, const Element& e) {
+  return fmt::format("{} {} {}", to_keyword(e.kind), connection_list(c, e), element_value(c, e));
+}
+
+std::string describe(const OpAmpModel& m) {
+  std::string line = model_line(m);
+  while (!line.empty() && line.back() == '\n') line.pop_back();
+  return line;
+}
+
+/// Matches items by name; each side is described by its own function (an
+/// element's connections are named after its own side's nodes).
+template <typename Item, typename DescribeOld, typename DescribeNew>
+void diff_named(const std::vector<Item>& old_items, const std::vector<Item>& new_items, const char* what,
+                DescribeOld describe_old, DescribeNew describe_new, std::vector<CircuitChange>& out) {
+  std::map<std::string, const Item*> old_by_name;
+  for (const auto& item : old_items) old_by_name[item.name] = &item;
+  std::set<std::string> seen;
+  for (const auto& item : new_items) {
+    seen.insert(item.name);
+    auto it = old_by_name.find(item.name);
+    const std::string after = describe_new(item);
+    if (it == old_by_name.end()) {
+      out.push_back({ChangeKind::added, what, item.name, "", after});
+    } else if (const std::string before = describe_old(*it->second); before != after) {
+      out.push_back({ChangeKind::changed, what, item.name, before, after});
+    }
+  }
+  for (const auto& item : old_items)
+    if (!seen.count(item.name)) out.push_back({ChangeKind::removed, what, item.name, describe_old(item), ""});
+}
+
+/// Models that some op amp uses; library models nobody uses are not news.
+std::vector<OpAmpModel> used_models(const Circuit& c) {
+  std::vector<OpAmpModel> out;
+  std::set<int> used;
+  for (const auto& e : c.elements)
+    if (e.kind == ElementKind::opamp) used.insert(e.model);
+  for (int i : used) out.push_back(c.models[static_cast<std::size_t>(i)]);
+  return out;
+}
+
+double wrap_degrees(double d) {
+  while (d > 180) d -= 360;
+  while (d <= -180) d += 360;
+  return d;
+}
+
+const AcTrace* find_trace(const AcResult& r, const std::string& probe) {
+  for (const auto& t : r.traces)
+    if (t.probe.text == probe) return &t;
+  return nullptr;
+}
+
+AcResult response_of(const Circuit& circuit, const AcOptions& options, const char* side) {
+  for (const auto& probe : options.probes) {
+    try {
+      resolve_probe(probe, circuit);
+    } catch (const InputError& e) {
+      throw InputError(fmt::format("{} revision: {}", side, e.what()));
+    }
+  }
+  return run_ac(circuit, options);
+}
+
+bool moved(const SpecResult& a, const SpecResult& b) {
+  if (a.pass != b.pass || a.value.has_value() != b.value.has_value()) return true;
+  if (!a.value) return false;
+  const double scale = std::max({std::abs(*a.value), std::abs(*b.value), 1e-300});
+  return std::abs(*a.value - *b.value) > 1e-9 * scale;
+}
+
+NoiseChange noise_change(const Circuit& old_c, const Circuit& new_c, const std::string& probe, const Band& band) {
+  NoiseOptions options;
+  options.sweep.kind = SweepKind::list;
+  options.sweep.at = {band.from, band.to};
+  options.probe = probe;
+  options.band = band;
+  const NoiseResult before = run_noise(old_c, options);
+  const NoiseResult after = run_noise(new_c, options);
+  NoiseChange change{probe, before.total_rms, after.total_rms, {}};
+  auto rms_of = [](const NoiseResult& r, const NoiseContributor& c) {
+    for (const auto& x : r.contributors)
+      if (x.source == c.source && x.mechanism == c.mechanism) return x.rms;
+    return 0.0;
+  };
+  for (const NoiseResult* side : {&after, &before})
+    for (std::size_t i = 0; i < side->contributors.size() && i < 3; ++i) {
+      const auto& c = side->contributors[i];
+      const bool listed = std::any_of(change.top.begin(), change.top.end(), [&](const ContributorChange& t) {
+        return t.source == c.source && t.mechanism == c.mechanism;
+      });
+      if (!listed) change.top.push_back({c.source, c.mechanism, rms_of(before, c), rms_of(after, c)});
+    }
+  return change;
+}
+
+/// DC points of the nodes both sides have, where they moved by more than 1 nV.
+std::vector<NodeChange> dc_changes(const BiasResult& before, const BiasResult& after) {
+  std::map<std::string, const NodeBias*> old_by_name;
+  for (const auto& n : before.nodes) old_by_name[n.name] = &n;
+  std::vector<NodeChange> out;
+  for (const auto& n : after.nodes) {
+    auto it = old_by_name.find(n.name);
+    if (it == old_by_name.end()) continue;
+    const NodeBias& o = *it->second;
+    if (std::abs(n.nominal - o.nominal) > 1e-9 || std::abs(n.worst - o.worst) > 1e-9)
+      out.push_back({n.name, o.nominal, n.nominal, o.worst, n.worst});
+  }
+  auto size = [](const NodeChange& c) {
+    return std::max(std::abs(c.new_nominal - c.old_nominal), std::abs(c.new_worst - c.old_worst));
+  };
+  std::stable_sort(out.begin(), out.end(), [&](const NodeChange& a, const NodeChange& b) { return size(a) > size(b); });
+  return out;
+}
+
+}  // namespace
+
+std::vector<CircuitChange> diff_circuits(const Circuit& old_circuit, const Circuit& new_circuit) {
+  std::vector<CircuitChange> out;
+  diff_named(old_circuit.elements, new_circuit.elements, "element",
+             [&](const Element& e) { return describe(old_circuit, e); },
+             [&](const Element& e) { return describe(new_circuit, e); }, out);
+  diff_named(used_models(old_circuit), used_models(new_circuit), "model",
+             [](const OpAmpModel& m) { return describe(m); }, [](const OpAmpModel& m) { return describe(m); },
+             out);
+
+  struct NamedValue {
+    std::string name;
+    double value;
+  };
+  auto params = [](const Circuit& c) {
+    std::vector<NamedValue> v;
+    for (const auto& [name, value] : c.params) v.push_back({name, value});
+    return v;
+  };
+  // Six digits read well; a change hidden by them is shown in full.
+  diff_named(params(old_circuit), params(new_circuit), "param",
+             [](const NamedValue& p) { return format_si(p.value, 6); },
+             [](const NamedValue& p) { return format_si(p.value, 6); }, out);
+  std::map<std::string, double> old_params(old_circuit.params.begin(), old_circuit.params.end());
+  for (const auto& [name, value] : new_circuit.params) {
+    auto it = old_params.find(name);
+    if (it != old_params.end() && it->second != value && format_si(it->second, 6) == format_si(value, 6))
+      out.push_back({ChangeKind::changed, "param", name, format_exact(it->second), format_exact(value)});
+  }
+  return out;
+}
+
+std::vector<std::string> spec_probes(const Circuit& old_circuit, const Circuit& new_circuit) {
+  std::vector<std::string> out;
+  for (const Circuit* c : {&new_circuit, &old_circuit})
+    for (const auto& s : c->specs)
+      if (!s.probe.empty() && std::find(out.begin(), out.end(), s.probe) == out.end()) out.push_back(s.probe);
+  return out;
+}
+
+DiffResult run_diff(const Circuit& old_circuit, const Circuit& new_circuit, const DiffOptions& options) {
+  DiffResult result;
+  result.circuit = diff_circuits(old_circuit, new_circuit);
+  AcOptions ac = options.ac;
+  if (ac.probes.empty()) ac.probes = spec_probes(old_circuit, new_circuit);
+  if (!ac.probes.empty()) {
+    result.old_response = response_of(old_circuit, ac, "old");
+    result.new_response = response_of(new_circuit, ac, "new");
+  }
+  for (const auto& new_trace : result.new_response.traces) {
+    const AcTrace* old_trace = find_trace(result.old_response, new_trace.probe.text);
+    ProbeChange change{new_trace.probe.text, 0, 0, 0, 0};
+    for (std::size_t i = 0; i < new_trace.values.size(); ++i) {
+      const double f = result.new_response.frequencies[i];
+      const double ddb = to_db(new_trace.values[i]) - to_db(old_trace->values[i]);
+      const double ddeg = wrap_degrees(to_degrees(new_trace.values[i]) - to_degrees(old_trace->values[i]));
+      if (std::isfinite(ddb) && std::abs(ddb) > std::abs(change.max_db_change)) change.max_db_change = ddb, change.db_at = f;
+      if (std::isfinite(ddeg) && std::abs(ddeg) > std::abs(change.max_deg_change)) change.max_deg_change = ddeg, change.deg_at = f;
+    }
+    result.probes.push_back(change);
+  }
+  if (options.band)
+    for (const auto& trace : result.new_response.traces)
+      if (trace.probe.kind == ProbeKind::voltage)
+        result.noise.push_back(noise_change(old_circuit, new_circuit, trace.probe.text, *options.band));
+  try {
+    result.dc = dc_changes(run_bias(old_circuit), run_bias(new_circuit));
+  } catch (const SolveError& e) {
+    // An AC-coupled circuit without DC paths has no DC point to compare.
+    std::string message = e.what();
+    result.dc_note = message.substr(0, message.find('\n'));
+  }
+  if (!old_circuit.specs.empty() || !new_circuit.specs.empty()) {
+    const CheckResult before = run_check(old_circuit);
+    const CheckResult after = run_check(new_circuit);
+    std::map<std::string, const SpecResult*> old_by_name;
+    for (const auto& r : before.specs) old_by_name[r.spec.name] = &r;
+    std::set<std::string> seen;
+    for (const auto& r : after.specs) {
+      seen.insert(r.spec.name);
+      auto it = old_by_name.find(r.spec.name);
+      if (it == old_by_name.end())
+        result.specs.push_back({r.spec.name, std::nullopt, r});
+      else if (moved(*it->second, r))
+        result.specs.push_back({r.spec.name, *it->second, r});
+    }
+    for (const auto& r : before.specs)
+      if (!seen.count(r.spec.name)) result.specs.push_back({r.spec.name, r, std::nullopt});
+  }
+  return result;
+}
+
+}  // namespace tacet

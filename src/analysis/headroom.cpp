@@ -1,0 +1,227 @@
+// Headroom: one AC factorisation per frequency of the band, one solve per
+// source with a declared level, then every op-amp pin against its limits.
+
+#include "tacet/analysis/headroom.hpp"
+#include "tacet/common/constants.hpp"
+
+#include <fmt/format.h>
+
+#include <algorithm>
+#include <cmath>
+#include <complex>
+
+#include "tacet/analysis/ac.hpp"
+#include "tacet/common/errors.hpp"
+#include "tacet/common/format.hpp"
+#include "tacet/solve/mna.hpp"
+#include "tacet/solve/response.hpp"
+
+namespace tacet {
+namespace {
+
+constexpr double kSqrt2 = 1.4142135623730950488016887242097;
+// The usual extra-low-voltage limits (brief section 11).
+constexpr double kHazardRms = 30.0;
+constexpr double kHazardPeak = 42.4;
+
+using Vector = std::vector<std::complex<double>>;
+
+std::vector<LevelSource> level_sources(const Circuit& circuit) {
+  std::vector<LevelSource> sources;
+  for (const auto& e : circuit.elements)
+    if (e.kind == ElementKind::vsource && e.level)
+      sources.push_back({e.name, *e.level, peak_volts(*e.level), rms_volts(*e.level),
+                         is_hazardous(*e.level)});
+  return sources;
+}
+
+struct Band {
+  double low, high;
+};
+
+Band band_of(const Circuit& circuit, const HeadroomOptions& options,
+             const std::vector<LevelSource>& sources) {
+  if (options.band_low > 0) return {options.band_low, options.band_high};
+  Band band{0, 0};
+  for (const auto& e : circuit.elements) {
+    if (e.kind != ElementKind::vsource || !e.level || e.band_low <= 0) continue;
+    band.low = band.low > 0 ? std::min(band.low, e.band_low) : e.band_low;
+    band.high = std::max(band.high, e.band_high);
+  }
+  if (band.low > 0) return band;
+  throw InputError(fmt::format(
+      "error: the headroom at the level of '{}' needs a band\n"
+      "hint: add band_low=20Hz band_high=20kHz to '{}', or give --band 20..20k\n",
+      sources.front().name, sources.front().name));
+}
+
+// The limits of one op amp's pins; NaN where there are no rails.
+void set_limits(const Circuit& circuit, const Element& e, OpAmpHeadroom& amp) {
+  const auto rails = rails_for(circuit, e);
+  const auto& m = circuit.models.at(static_cast<std::size_t>(e.model));
+  amp.has_cm_range = m.vcm_low.has_value() || m.vcm_high.has_value();
+  amp.slew.available = m.slew;
+  if (!rails) return;
+  amp.has_rails = true;
+  amp.out.limit_low = rails->low + m.swing;
+  amp.out.limit_high = rails->high - m.swing;
+  for (PinHeadroom* pin : {&amp.plus, &amp.minus}) {
+    pin->limit_low = rails->low + m.vcm_low.value_or(0.0);
+    pin->limit_high = rails->high - m.vcm_high.value_or(0.0);
+  }
+}
+
+// Keeps the frequency where the pin's margin is smallest (without limits:
+// where its signal is largest).
+void track(PinHeadroom& pin, const NodeBias& dc, double peak, double f) {
+  const double low = dc.nominal - dc.worst - peak;
+  const double high = dc.nominal + dc.worst + peak;
+  const double margin = std::min(pin.limit_high - high, low - pin.limit_low);
+  const bool first = pin.frequency == 0;
+  const bool worse = std::isnan(margin) ? peak > pin.signal_peak : !(margin >= pin.margin);
+  if (!first && !worse) return;
+  pin.signal_peak = peak, pin.low = low, pin.high = high, pin.margin = margin, pin.frequency = f;
+}
+
+void track_slew(SlewHeadroom& slew, double peak, double f) {
+  const double needed = kTwoPi * f * peak;
+  if (slew.frequency == 0 || needed > slew.needed) slew.needed = needed, slew.frequency = f;
+}
+
+/// A level source as the solver sees it: its branch row and its peak.
+struct Drive {
+  int row = 0;
+  double peak = 0;  ///< V
+};
+
+std::vector<Drive> drives_of(const Circuit& circuit, const MnaSystem& mna, const std::vector<LevelSource>& sources) {
+  std::vector<Drive> drives;
+  for (const auto& source : sources)
+    drives.push_back({mna.branch_unknown(*circuit.find_element(source.name)), source.peak});
+  return drives;
+}
+
+// |V| at every node (index = node id), summed over the level sources.
+void signal_peaks(const MnaSystem& mna, SparseLu& lu, const std::vector<Drive>& drives, Vector& x,
+                  std::vector<double>& peaks) {
+  std::fill(peaks.begin(), peaks.end(), 0.0);
+  for (const auto& drive : drives) {
+    std::fill(x.begin(), x.end(), std::complex<double>{});
+    x[static_cast<std::size_t>(drive.row)] = drive.peak;
+    lu.solve(x.data());
+    for (std::size_t node = 1; node < peaks.size(); ++node)
+      peaks[node] += std::abs(x[static_cast<std::size_t>(mna.node_unknown(static_cast<int>(node)))]);
+  }
+}
+
+void warn_pin(const std::string& amp, const char* what, const PinHeadroom& pin, const char* limit,
+              std::vector<std::string>& warnings) {
+  if (pin.ok()) return;
+  const bool above = pin.limit_high - pin.high <= pin.low - pin.limit_low;
+  warnings.push_back(fmt::format("{}: {} '{}' reaches {}V at {}Hz, {} {}V ({}): {} short", amp,
+                                 what, pin.node, format_si(above ? pin.high : pin.low),
+                                 format_si(pin.frequency), above ? "above" : "below",
+                                 format_si(above ? pin.limit_high : pin.limit_low), limit,
+                                 format_si(-pin.margin) + "V"));
+}
+
+void warn(const OpAmpHeadroom& amp, std::vector<std::string>& warnings) {
+  if (amp.has_rails) {
+    warn_pin(amp.name, "output", amp.out, "rail less swing", warnings);
+    const char* range = amp.has_cm_range ? "common-mode range" : "supply";
+    warn_pin(amp.name, "+ input", amp.plus, range, warnings);
+    warn_pin(amp.name, "- input", amp.minus, range, warnings);
+  }
+  if (!amp.slew.ok())
+    warnings.push_back(fmt::format("{}: the signal needs {}V/us at {}Hz, more than its slew {}V/us",
+                                   amp.name, format_si(amp.slew.needed * 1e-6),
+                                   format_si(amp.slew.frequency),
+                                   format_si(amp.slew.available * 1e-6)));
+}
+
+std::string caution(const LevelSource& source) {
+  return fmt::format(
+      "caution: '{}' declares {}V rms ({}V peak), above the usual extra-low-voltage limits "
+      "(30 V rms, 42.4 V peak): the input carries a hazardous voltage. Follow local electrical "
+      "codes and licensed practice for anything built and connected; tacet does not assess safety.",
+      source.name, format_si(source.rms), format_si(source.peak));
+}
+
+}  // namespace
+
+double peak_volts(const SignalLevel& level) {
+  switch (level.unit) {
+    case LevelUnit::rms: return level.value * kSqrt2;
+    case LevelUnit::peak: return level.value;
+    case LevelUnit::power: return std::sqrt(2.0 * level.value * level.load);
+  }
+  return 0;
+}
+
+double rms_volts(const SignalLevel& level) { return peak_volts(level) / kSqrt2; }
+
+bool is_hazardous(const SignalLevel& level) {
+  return rms_volts(level) > kHazardRms || peak_volts(level) > kHazardPeak;
+}
+
+std::string HeadroomOptions::validate() const {
+  if (per_decade < 1) return fmt::format("--per-decade {} must be at least 1", per_decade);
+  if (band_low == 0 && band_high == 0) return {};
+  if (!(std::isfinite(band_low) && band_low > 0 && std::isfinite(band_high)))
+    return fmt::format("--band {}..{}: both ends must be finite frequencies above 0 Hz",
+                       format_si(band_low), format_si(band_high));
+  if (!(band_low < band_high))
+    return fmt::format("--band {}..{}: the low end must be below the high end",
+                       format_si(band_low), format_si(band_high));
+  return {};
+}
+
+HeadroomResult run_headroom(const Circuit& circuit, const BiasResult& bias,
+                            const HeadroomOptions& options) {
+  if (auto problem = options.validate(); !problem.empty())
+    throw InputError("error: " + problem + "\n");
+  HeadroomResult result;
+  result.sources = level_sources(circuit);
+  for (const auto& source : result.sources)
+    if (source.hazardous) result.cautions.push_back(caution(source));
+  if (result.sources.empty()) return result;
+  const Band band = band_of(circuit, options, result.sources);
+  result.band_low = band.low, result.band_high = band.high;
+
+  std::vector<const Element*> amps;
+  for (const auto& e : circuit.elements) {
+    if (e.kind != ElementKind::opamp) continue;
+    OpAmpHeadroom amp;
+    amp.name = e.name;
+    amp.out.node = circuit.node_names[static_cast<std::size_t>(e.nodes[2])];
+    amp.plus.node = circuit.node_names[static_cast<std::size_t>(e.nodes[0])];
+    amp.minus.node = circuit.node_names[static_cast<std::size_t>(e.nodes[1])];
+    set_limits(circuit, e, amp);
+    result.opamps.push_back(amp);
+    amps.push_back(&e);
+  }
+
+  Sweep grid;
+  grid.from = band.low, grid.to = band.high, grid.per_decade = options.per_decade;
+  FrequencyResponse response(circuit, options.solver);
+  const MnaSystem& mna = response.mna();
+  Vector x(static_cast<std::size_t>(mna.size()));
+  std::vector<double> peaks(circuit.node_count());
+  const std::vector<Drive> drives = drives_of(circuit, mna, result.sources);
+  for (const double f : grid.frequencies()) {
+    response.factor_at(f);
+    signal_peaks(mna, response.lu(), drives, x, peaks);
+    for (std::size_t k = 0; k < amps.size(); ++k) {
+      const auto& pins = amps[k]->nodes;
+      auto& amp = result.opamps[k];
+      track(amp.out, bias.node(pins[2]), peaks[static_cast<std::size_t>(pins[2])], f);
+      track(amp.plus, bias.node(pins[0]), peaks[static_cast<std::size_t>(pins[0])], f);
+      track(amp.minus, bias.node(pins[1]), peaks[static_cast<std::size_t>(pins[1])], f);
+      track_slew(amp.slew, peaks[static_cast<std::size_t>(pins[2])], f);
+    }
+  }
+  for (const auto& amp : result.opamps) warn(amp, result.warnings);
+  return result;
+}
+
+}  // namespace tacet

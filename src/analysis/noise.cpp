@@ -1,0 +1,238 @@
+// Noise analysis: one MNA system, one symbolic analysis, then per frequency
+// one factorisation and one transposed (adjoint) solve for every source at once.
+
+#include "tacet/analysis/noise.hpp"
+
+#include "tacet/solve/response.hpp"
+
+#include <fmt/format.h>
+
+#include <algorithm>
+#include <cmath>
+
+#include "tacet/common/spelling.hpp"
+#include "tacet/common/errors.hpp"
+#include "tacet/common/format.hpp"
+#include "tacet/solve/integrate.hpp"
+#include "tacet/solve/mna.hpp"
+
+namespace tacet {
+namespace {
+
+constexpr double kZeroCelsius = 273.15;  // K
+
+// A noise source seen by the adjoint: its transfer to the probe is
+// y[plus] - y[minus] (an unknown of -1 is gnd and counts as 0).
+struct NoiseSource {
+  std::size_t element = 0;
+  NoiseMechanism mechanism = NoiseMechanism::thermal;
+  int plus = -1, minus = -1;
+  double white = 0;   // white power density, A^2/Hz or V^2/Hz
+  double corner = 0;  // 1/f corner, Hz
+  double power(double f) const { return white * (1 + corner / f); }
+};
+
+std::complex<double> transfer(const std::vector<std::complex<double>>& y, int plus, int minus) {
+  std::complex<double> h{};
+  if (plus >= 0) h += y[static_cast<std::size_t>(plus)];
+  if (minus >= 0) h -= y[static_cast<std::size_t>(minus)];
+  return h;
+}
+
+std::vector<NoiseSource> noise_sources(const Circuit& circuit, const MnaSystem& mna,
+                                       double kelvin) {
+  std::vector<NoiseSource> sources;
+  auto add = [&](std::size_t i, NoiseMechanism m, int plus, int minus, double white, double corner) {
+    if (white > 0 && (plus >= 0 || minus >= 0)) sources.push_back({i, m, plus, minus, white, corner});
+  };
+  for (std::size_t i = 0; i < circuit.elements.size(); ++i) {
+    const Element& e = circuit.elements[i];
+    if (e.noiseless) continue;
+    if (e.kind == ElementKind::resistor)
+      add(i, NoiseMechanism::thermal, mna.node_unknown(e.nodes[0]), mna.node_unknown(e.nodes[1]),
+          4 * kBoltzmann * kelvin / e.value, 0);
+    if (e.kind != ElementKind::opamp) continue;
+    const OpAmpModel& m = circuit.models[static_cast<std::size_t>(e.model)];
+    add(i, NoiseMechanism::en, mna.opamp_gain_row(i), -1, m.en * m.en, m.fce);
+    add(i, NoiseMechanism::in_plus, mna.node_unknown(e.nodes[0]), -1, m.in * m.in, m.fci);
+    add(i, NoiseMechanism::in_minus, mna.node_unknown(e.nodes[1]), -1, m.in * m.in, m.fci);
+  }
+  return sources;
+}
+
+// The adjoint solution at f: factor, then one transposed solve for the probe.
+class AdjointSolver {
+ public:
+  AdjointSolver(FrequencyResponse& response, const Probe& probe) : response_(response), probe_(probe) {}
+  const std::vector<std::complex<double>>& solve(double f) {
+    response_.factor_at(f);
+    return response_.adjoint(probe_);
+  }
+
+ private:
+  FrequencyResponse& response_;
+  const Probe& probe_;
+};
+
+// Where a unit of the input source enters: G = y[plus] - y[minus].
+struct InputPort {
+  int plus = -1, minus = -1;
+};
+
+InputPort resolve_input(const std::string& name, const Circuit& circuit, const MnaSystem& mna) {
+  std::vector<std::string> sources;
+  for (const Element& e : circuit.elements)
+    if (e.kind == ElementKind::vsource || e.kind == ElementKind::isource) sources.push_back(e.name);
+  const std::string listed = sources.empty() ? "the circuit has none"
+                                             : "the sources are " + fmt::format("{}", fmt::join(sources, ", "));
+  const auto index = circuit.find_element(name);
+  if (!index) {
+    const std::string near = nearest_word(name, sources);
+    throw InputError(fmt::format("error: --input '{}' is not an element of the circuit\nhint: {}",
+                                 name, near.empty() ? listed : "did you mean '" + near + "'?"));
+  }
+  const Element& e = circuit.elements[*index];
+  if (e.kind == ElementKind::vsource) return {mna.branch_unknown(*index), -1};
+  // An isource draws its current out of its first node into its second.
+  if (e.kind == ElementKind::isource)
+    return {mna.node_unknown(e.nodes[1]), mna.node_unknown(e.nodes[0])};
+  throw InputError(fmt::format("error: --input '{}' is a {}, not a source\nhint: name a vsrc or "
+                               "isrc; {}",
+                               name, to_keyword(e.kind), listed));
+}
+
+Band band_of(const NoiseOptions& options) {
+  if (options.band) return *options.band;
+  const auto f = options.sweep.frequencies();
+  const auto [low, high] = std::minmax_element(f.begin(), f.end());
+  return {*low, *high};
+}
+
+// Sweep points: the density, and with an input the gain and the input-referred density.
+void fill_points(NoiseResult& result, AdjointSolver& adjoint,
+                 const std::vector<NoiseSource>& sources, const InputPort* input) {
+  for (double f : result.frequencies) {
+    const auto& y = adjoint.solve(f);
+    double power = 0;
+    for (const NoiseSource& source : sources)
+      power += std::norm(transfer(y, source.plus, source.minus)) * source.power(f);
+    result.density.push_back(std::sqrt(power));
+    if (!input) continue;
+    const auto g = transfer(y, input->plus, input->minus);
+    result.gain.push_back(g);
+    result.input_density.push_back(std::sqrt(power) / std::abs(g));
+  }
+}
+
+// The band integral; components: total power, [input-referred power], each source.
+void integrate_contributors(NoiseResult& result, AdjointSolver& adjoint, const Circuit& circuit,
+                            const std::vector<NoiseSource>& sources, const InputPort* input) {
+  const std::size_t first = input ? 2 : 1;
+  const auto integral = integrate_band(
+      result.band.from, result.band.to, first + sources.size(), first,
+      [&](double f, double* out) {
+        const auto& y = adjoint.solve(f);
+        out[0] = 0;
+        for (std::size_t i = 0; i < sources.size(); ++i) {
+          const auto& source = sources[i];
+          out[first + i] = std::norm(transfer(y, source.plus, source.minus)) * source.power(f);
+          out[0] += out[first + i];
+        }
+        if (input) out[1] = out[0] / std::norm(transfer(y, input->plus, input->minus));
+      });
+  result.band_evaluations = integral.evaluations;
+  const double total = integral.values[0];
+  result.total_rms = std::sqrt(total);
+  if (input) result.input_referred_rms = std::sqrt(integral.values[1]);
+  for (std::size_t i = 0; i < sources.size(); ++i) {
+    const double power = integral.values[first + i];
+    result.contributors.push_back({circuit.elements[sources[i].element].name,
+                                   sources[i].mechanism, std::sqrt(power),
+                                   total > 0 ? power / total : 0.0});
+  }
+  std::stable_sort(result.contributors.begin(), result.contributors.end(),
+                   [](const NoiseContributor& a, const NoiseContributor& b) {
+                     return a.share > b.share;
+                   });
+}
+
+SignalToNoise signal_to_noise(const NoiseResult& result, const NoiseOptions& options,
+                              AdjointSolver& adjoint, const InputPort& input) {
+  SignalToNoise snr;
+  snr.level = *options.level;
+  snr.reference = options.reference.value_or(std::sqrt(result.band.from * result.band.to));
+  snr.signal_rms = snr.level * std::abs(transfer(adjoint.solve(snr.reference), input.plus, input.minus));
+  snr.ratio_db = 20 * std::log10(snr.signal_rms / result.total_rms);
+  return snr;
+}
+
+bool positive(double f) { return std::isfinite(f) && f > 0; }
+
+}  // namespace
+
+const char* to_string(NoiseMechanism mechanism) {
+  switch (mechanism) {
+    case NoiseMechanism::thermal: return "thermal";
+    case NoiseMechanism::en: return "en";
+    case NoiseMechanism::in_plus: return "in+";
+    case NoiseMechanism::in_minus: return "in-";
+  }
+  return "?";
+}
+
+std::optional<NoiseMechanism> parse_noise_mechanism(const std::string& text) {
+  for (auto m : {NoiseMechanism::thermal, NoiseMechanism::en, NoiseMechanism::in_plus,
+                 NoiseMechanism::in_minus})
+    if (text == to_string(m)) return m;
+  return std::nullopt;
+}
+
+std::string Band::validate() const {
+  const std::string band = fmt::format("--band {}..{}", format_si(from), format_si(to));
+  if (!positive(from) || !std::isfinite(to)) return band + ": F1 must be a finite frequency above 0 Hz";
+  if (!(from < to)) return band + ": F1 must be below F2";
+  return {};
+}
+
+std::string NoiseOptions::validate() const {
+  if (auto problem = sweep.validate(); !problem.empty()) return problem;
+  if (band) {
+    if (auto problem = band->validate(); !problem.empty()) return problem;
+  } else if (auto problem = band_of(*this).validate(); !problem.empty()) {
+    return "a single frequency has no band to integrate over: give --band F1..F2";
+  }
+  if (level && input.empty()) return "--level needs --input: the source that carries the signal";
+  if (level && !positive(*level))
+    return fmt::format("--level {} must be a finite level above 0", format_si(*level));
+  if (reference && !positive(*reference))
+    return fmt::format("--ref {} must be a finite frequency above 0 Hz", format_si(*reference));
+  return {};
+}
+
+NoiseResult run_noise(const Circuit& circuit, const NoiseOptions& options) {
+  if (auto problem = options.validate(); !problem.empty()) throw InputError("error: " + problem);
+  NoiseResult result;
+  result.probe = resolve_probe(options.probe, circuit);
+  result.input = options.input;
+  result.band = band_of(options);
+  result.temperature_kelvin = circuit.ambient_celsius + kZeroCelsius;
+  result.frequencies = options.sweep.frequencies();
+
+  FrequencyResponse response(circuit, options.solver);
+  const MnaSystem& mna = response.mna();
+  std::optional<InputPort> input;
+  if (!options.input.empty()) {
+    input = resolve_input(options.input, circuit, mna);
+    const auto& source = circuit.elements[*circuit.find_element(options.input)];
+    result.input_unit = source.kind == ElementKind::isource ? "A" : "V";
+  }
+  const auto sources = noise_sources(circuit, mna, result.temperature_kelvin);
+  AdjointSolver adjoint(response, result.probe);
+  const InputPort* port = input ? &*input : nullptr;
+  fill_points(result, adjoint, sources, port);
+  integrate_contributors(result, adjoint, circuit, sources, port);
+  if (options.level) result.signal = signal_to_noise(result, options, adjoint, *input);
+  return result;
+}
+
+}  // namespace tacet

@@ -1,0 +1,61 @@
+// The small lookups of the flat circuit.
+
+#include "tacet/circuit/circuit.hpp"
+#include "tacet/common/constants.hpp"
+
+#include <cmath>
+
+namespace tacet {
+
+const char* to_keyword(ElementKind kind) {
+  switch (kind) {
+    case ElementKind::resistor:
+      return "res";
+    case ElementKind::capacitor:
+      return "cap";
+    case ElementKind::inductor:
+      return "ind";
+    case ElementKind::vsource:
+      return "vsrc";
+    case ElementKind::isource:
+      return "isrc";
+    case ElementKind::vcvs:
+      return "vcvs";
+    case ElementKind::vccs:
+      return "vccs";
+    case ElementKind::opamp:
+      return "opamp";
+  }
+  return "?";
+}
+
+std::complex<double> Element::ac_phasor() const {
+  constexpr double kRadiansPerDegree = 1.0 / kDegreesPerRadian;
+  // Not std::polar: a negative magnitude (an inverted source) is allowed here.
+  const double angle = ac_phase * kRadiansPerDegree;
+  return ac_magnitude * std::complex<double>(std::cos(angle), std::sin(angle));
+}
+
+int Circuit::node(const std::string& name, SourceLocation where) {
+  const auto [it, added] = node_ids_.try_emplace(name, static_cast<int>(node_names.size()));
+  if (added) {
+    node_names.push_back(name);
+    node_where.resize(node_names.size());
+    node_where.back() = where;
+  }
+  return it->second;
+}
+
+std::optional<int> Circuit::find_node(const std::string& name) const {
+  const auto it = node_ids_.find(name);
+  if (it == node_ids_.end()) return std::nullopt;
+  return it->second;
+}
+
+std::optional<std::size_t> Circuit::find_element(const std::string& name) const {
+  for (std::size_t i = 0; i < elements.size(); ++i)
+    if (elements[i].name == name) return i;
+  return std::nullopt;
+}
+
+}  // namespace tacet

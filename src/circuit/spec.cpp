@@ -1,0 +1,46 @@
+#include "tacet/circuit/spec.hpp"
+
+#include <array>
+
+namespace tacet {
+
+namespace {
+
+constexpr std::array<std::pair<SpecKind, const char*>, 9> kKindNames{{
+    {SpecKind::gain, "gain"},
+    {SpecKind::flatness, "flatness"},
+    {SpecKind::phase, "phase"},
+    {SpecKind::upper_corner, "upper_corner"},
+    {SpecKind::lower_corner, "lower_corner"},
+    {SpecKind::noise, "noise"},
+    {SpecKind::snr, "snr"},
+    {SpecKind::offset, "offset"},
+    {SpecKind::rails, "rails"},
+}};
+
+}  // namespace
+
+const char* to_string(SpecKind kind) {
+  for (const auto& [k, name] : kKindNames)
+    if (k == kind) return name;
+  return "gain";
+}
+
+std::optional<SpecKind> parse_spec_kind(std::string_view text) {
+  for (const auto& [k, name] : kKindNames)
+    if (text == name) return k;
+  return std::nullopt;
+}
+
+const char* to_string(SpecUnit unit) {
+  switch (unit) {
+    case SpecUnit::db: return "dB";
+    case SpecUnit::ratio: return "V/V";
+    case SpecUnit::degrees: return "deg";
+    case SpecUnit::hertz: return "Hz";
+    case SpecUnit::volts: return "V";
+  }
+  return "";
+}
+
+}  // namespace tacet

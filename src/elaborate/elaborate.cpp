@@ -1,0 +1,334 @@
+#include "tacet/elaborate/elaborate.hpp"
+
+#include <fmt/format.h>
+
+#include "elaborate/elaborator.hpp"
+#include "tacet/common/errors.hpp"
+#include "tacet/language/parser.hpp"
+
+namespace tacet {
+
+namespace detail {
+
+Elaborator::Elaborator(FileReader& reader, SourceManager& sources, Diagnostics& diagnostics,
+                       const ElaborateOptions& options)
+    : reader_(reader), sources_(sources), diagnostics_(diagnostics), options_(options) {}
+
+void Elaborator::error(int file, const ast::Located& where, std::string message, std::string hint) {
+  diagnostics_.error({file, where.offset}, std::move(message), std::move(hint),
+                     std::max<std::uint32_t>(1, where.length));
+}
+
+std::optional<Circuit> Elaborator::run(const std::string& path) {
+  parse_overrides();
+  load_file(path, {});
+  resolve_models();
+  if (options_.ambient_celsius) circuit_.ambient_celsius = *options_.ambient_celsius;
+  InstanceContext top;
+  top.scope = &globals_;
+  for (const auto& [instance, file] : top_instances_) instantiate(*instance, file, top);
+  for (const auto& [spec, file] : specs_) elaborate_spec(*spec, file);
+  for (const auto& [name, value] : globals_.params) circuit_.params[name] = value.value;
+  report_unused_overrides();
+  if (diagnostics_.has_errors()) return std::nullopt;
+  return std::move(circuit_);
+}
+
+// ---- files ----------------------------------------------------------------
+
+void Elaborator::load_file(const std::string& path, SourceLocation included_from) {
+  for (const auto& open : include_stack_) {
+    if (open != path) continue;
+    std::string chain;
+    for (const auto& p : include_stack_) chain += p + " -> ";
+    diagnostics_.error(included_from, fmt::format("include cycle: {}{}", chain, path),
+                       "a file may not include itself, directly or through others");
+    return;
+  }
+  if (loaded_.count(path)) return;  // a library included twice is read once
+  auto text = reader_.read(path);
+  if (!text) {
+    std::string hint = included_from.file >= 0 ? "include paths are relative to the including file" : "";
+    if (auto revision = split_revision(path))
+      hint = fmt::format("git show {}:./{} found nothing: check the revision and the path (relative to "
+                         "this folder)", revision->first, revision->second);
+    diagnostics_.error(included_from, fmt::format("cannot read '{}'", path), hint);
+    return;
+  }
+  loaded_.insert(path);
+  int file = sources_.add(path, std::move(*text));
+  auto netlist = parse_netlist(sources_.file(file).text, file, diagnostics_);
+  if (!netlist) return;
+  netlists_.push_back(std::make_unique<ast::Netlist>(std::move(*netlist)));
+  include_stack_.push_back(path);
+  collect(*netlists_.back(), file);
+  include_stack_.pop_back();
+}
+
+void Elaborator::collect(const ast::Netlist& netlist, int file) {
+  struct Visitor {
+    Elaborator& self;
+    int file;
+    void operator()(const ast::Title& t) const {
+      // The top file's title names the circuit; a library's own title does not.
+      if (self.include_stack_.size() == 1) self.circuit_.title = t.text;
+    }
+    void operator()(const ast::Include& inc) const {
+      const std::string& including = self.sources_.file(file).path;
+      self.load_file(resolve_relative(including, inc.path), {file, inc.offset});
+    }
+    void operator()(const ast::Ambient& a) const { self.declare_ambient(a, file); }
+    void operator()(const ast::Supply& s) const { self.declare_supply(s, file); }
+    void operator()(const ast::Param& p) const { self.declare_param(p, file, self.globals_, ""); }
+    void operator()(const ast::Instance& i) const { self.top_instances_.push_back({&i, file}); }
+    void operator()(const ast::Model& m) const {
+      if (self.check_unique(self.model_names_, "model", m.name, file, m.name.text))
+        self.model_order_.push_back({&m, file});
+    }
+    void operator()(const ast::Spec& s) const { self.specs_.push_back({&s, file}); }
+    void operator()(const ast::Block& b) const {
+      if (self.check_unique(self.block_names_, "block", b.name, file, b.name.text))
+        self.blocks_[b.name.text] = {&b, file};
+    }
+  };
+  for (const auto& statement : netlist.statements) boost::apply_visitor(Visitor{*this, file}, statement);
+}
+
+bool Elaborator::check_unique(std::map<std::string, SourceLocation>& seen, const std::string& what,
+                              const ast::Identifier& name, int file, const std::string& full_name) {
+  auto [it, inserted] = seen.emplace(full_name, SourceLocation{file, name.offset});
+  if (inserted) return true;
+  error(file, name, fmt::format("{} '{}' is already defined", what, full_name));
+  diagnostics_.add({Severity::note, it->second, static_cast<std::uint32_t>(name.text.size()),
+                    fmt::format("'{}' was first defined here", full_name), ""});
+  return false;
+}
+
+// ---- params, supply, ambient ----------------------------------------------
+
+void Elaborator::declare_param(const ast::Param& param, int file, Scope& scope,
+                               const std::string& prefix) {
+  const std::string full = prefix + param.name.text;
+  if (param.name.text == "pi") {
+    error(file, param.name, "'pi' is a constant and cannot be redefined");
+    return;
+  }
+  if (scope.params.count(param.name.text)) {
+    error(file, param.name, fmt::format("param '{}' is already defined", full));
+    diagnostics_.add({Severity::note, scope.params[param.name.text].where,
+                      static_cast<std::uint32_t>(param.name.text.size()),
+                      fmt::format("'{}' was first defined here", full), ""});
+    return;
+  }
+  std::optional<double> value = prefix.empty() ? overridden(full, scope, Dimension::any) : std::nullopt;
+  if (!value) value = evaluate(param.value, file, scope, Dimension::any, diagnostics_);
+  if (value) scope.params[param.name.text] = {*value, {file, param.name.offset}};
+}
+
+void Elaborator::declare_ambient(const ast::Ambient& ambient, int file) {
+  auto t = evaluate(ambient.value, file, globals_, Dimension::temperature, diagnostics_);
+  if (!t) return;
+  if (*t < -273.15) {
+    error(file, extent(ambient.value), "temperature below absolute zero");
+    return;
+  }
+  circuit_.ambient_celsius = *t;
+}
+
+void Elaborator::declare_supply(const ast::Supply& supply, int file) {
+  auto high = evaluate(supply.high, file, globals_, Dimension::voltage, diagnostics_);
+  auto low = evaluate(supply.low, file, globals_, Dimension::voltage, diagnostics_);
+  if (!high || !low) return;
+  if (*high <= *low) {
+    error(file, extent(supply.high),
+          fmt::format("supply rails inverted: high {} V is not above low {} V", *high, *low),
+          "write the high rail first: supply +12 -12");
+    return;
+  }
+  circuit_.supply = Rails{*high, *low};
+}
+
+// ---- overrides --------------------------------------------------------------
+
+void Elaborator::parse_overrides() {
+  for (const auto& o : options_.overrides) {
+    int file = sources_.add(fmt::format("--set {}", o.name), o.value);
+    auto expr = parse_expression(sources_.file(file).text, file, diagnostics_);
+    if (expr) overrides_.push_back({o, std::move(*expr), file, false});
+  }
+}
+
+ParsedOverride* Elaborator::find_override(const std::string& name) {
+  for (auto& o : overrides_)
+    if (o.text.name == name) return &o;
+  return nullptr;
+}
+
+std::optional<double> Elaborator::overridden(const std::string& name, const Scope& scope,
+                                             Dimension dimension) {
+  ParsedOverride* o = find_override(name);
+  if (!o) return std::nullopt;
+  o->used = true;
+  return evaluate(o->value, o->file, scope, dimension, diagnostics_);
+}
+
+void Elaborator::report_unused_overrides() {
+  std::vector<std::string> names;
+  for (const auto& [n, w] : globals_.params) names.push_back(n);
+  for (const auto& [n, w] : element_names_) names.push_back(n);
+  for (const auto& [n, w] : model_names_) names.push_back(n);
+  for (const auto& o : overrides_) {
+    if (o.used) continue;
+    std::string near = nearest_word(o.text.name, names);
+    diagnostics_.error({}, fmt::format("--set {}: no param, element or model parameter of that name",
+                                       o.text.name),
+                       near.empty() ? "" : fmt::format("did you mean '{}'?", near));
+  }
+}
+
+// ---- models -----------------------------------------------------------------
+
+namespace {
+
+struct ModelKey {
+  const char* key;
+  Dimension dimension;
+  double OpAmpModel::*field;
+  bool positive;  // must be > 0 (else >= 0)
+};
+
+const ModelKey kOpAmpKeys[] = {
+    {"gbw", Dimension::frequency, &OpAmpModel::gbw, true},
+    {"aol", Dimension::gain, &OpAmpModel::aol, true},
+    {"fp2", Dimension::frequency, &OpAmpModel::fp2, true},
+    {"rout", Dimension::resistance, &OpAmpModel::rout, false},
+    {"rin", Dimension::resistance, &OpAmpModel::rin, true},
+    {"en", Dimension::voltage_density, &OpAmpModel::en, false},
+    {"fce", Dimension::frequency, &OpAmpModel::fce, false},
+    {"in", Dimension::current_density, &OpAmpModel::in, false},
+    {"fci", Dimension::frequency, &OpAmpModel::fci, false},
+    {"vos", Dimension::voltage, &OpAmpModel::vos, false},
+    {"ib", Dimension::current, &OpAmpModel::ib, false},
+    {"ios", Dimension::current, &OpAmpModel::ios, false},
+    {"swing", Dimension::voltage, &OpAmpModel::swing, false},
+    {"slew", Dimension::slew, &OpAmpModel::slew, true},
+};
+
+std::vector<std::string> opamp_key_names() {
+  std::vector<std::string> out;
+  for (const auto& k : kOpAmpKeys) out.emplace_back(k.key);
+  out.emplace_back("vcm_low");
+  out.emplace_back("vcm_high");
+  return out;
+}
+
+}  // namespace
+
+void Elaborator::resolve_models() {
+  for (const auto& [model, file] : model_order_) {
+    auto resolved = resolve_model(*model, file);
+    if (!resolved) {
+      model_index_[model->name.text] = -1;
+      continue;
+    }
+    model_index_[model->name.text] = static_cast<int>(circuit_.models.size());
+    circuit_.models.push_back(std::move(*resolved));
+  }
+}
+
+std::optional<OpAmpModel> Elaborator::resolve_model(const ast::Model& model, int file) {
+  if (model.kind.text != "opamp") {
+    error(file, model.kind, fmt::format("unknown model kind '{}'", model.kind.text),
+          "the only model kind is 'opamp'");
+    return std::nullopt;
+  }
+  OpAmpModel out;
+  out.name = model.name.text;
+  out.where = {file, model.name.offset};
+  bool ok = true, has_gbw = false;
+  std::set<std::string> given;
+  auto assign = [&](const std::string& key, std::optional<double> value, const ast::Located& at,
+                    int at_file) {
+    if (!value) return void(ok = false);
+    if (key == "vcm_low" || key == "vcm_high") {
+      (key == "vcm_low" ? out.vcm_low : out.vcm_high) = *value;
+      return;
+    }
+    for (const auto& k : kOpAmpKeys) {
+      if (key != k.key) continue;
+      bool bad = k.positive ? *value <= 0 : (*value < 0 && key != "ib");
+      if (bad) {
+        error(at_file, at, fmt::format("{} of model '{}' must be {} than zero", key, out.name,
+                                       k.positive ? "greater" : "no less"));
+        ok = false;
+        return;
+      }
+      out.*k.field = *value;
+      if (key == "gbw") has_gbw = true;
+    }
+  };
+  auto dimension_of = [](const std::string& key) {
+    for (const auto& k : kOpAmpKeys)
+      if (key == k.key) return k.dimension;
+    return Dimension::voltage;  // vcm_low, vcm_high
+  };
+  const auto keys = opamp_key_names();
+  for (const auto& entry : model.entries) {
+    const std::string& key = entry.key.text;
+    if (std::find(keys.begin(), keys.end(), key) == keys.end()) {
+      error(file, entry.key, fmt::format("unknown op-amp parameter '{}'", key),
+            choice_hint(key, keys, "op-amp parameters"));
+      ok = false;
+      continue;
+    }
+    if (!given.insert(key).second) {
+      error(file, entry.key, fmt::format("'{}' is given twice in model '{}'", key, out.name));
+      ok = false;
+      continue;
+    }
+    std::optional<double> value = overridden(out.name + "." + key, globals_, dimension_of(key));
+    if (!value) value = evaluate(entry.value, file, globals_, dimension_of(key), diagnostics_);
+    assign(key, value, extent(entry.value), file);
+  }
+  for (const auto& key : keys) {  // --set MODEL.key for a key the model leaves out
+    if (given.count(key)) continue;
+    if (ParsedOverride* o = find_override(out.name + "." + key)) {
+      o->used = true;
+      assign(key, evaluate(o->value, o->file, globals_, dimension_of(key), diagnostics_),
+             extent(o->value), o->file);
+    }
+  }
+  if (!has_gbw && ok) {
+    error(file, model.name, fmt::format("model '{}' needs a gain-bandwidth product", out.name),
+          "add for example: gbw 10M");
+    return std::nullopt;
+  }
+  if (!ok) return std::nullopt;
+  return out;
+}
+
+}  // namespace detail
+
+std::optional<Circuit> elaborate_file(const std::string& path, FileReader& reader,
+                                      SourceManager& sources, Diagnostics& diagnostics,
+                                      const ElaborateOptions& options) {
+  return detail::Elaborator(reader, sources, diagnostics, options).run(path);
+}
+
+Circuit load_circuit(const std::string& path, const ElaborateOptions& options,
+                     std::string* warnings) {
+  SourceManager sources;
+  Diagnostics diagnostics(sources);
+  // `REV:path` reads that revision from git, includes too (tacet diff, check).
+  std::unique_ptr<FileReader> reader;
+  if (auto revision = split_revision(path))
+    reader = std::make_unique<RevisionFileReader>(revision->first);
+  else
+    reader = std::make_unique<DiskFileReader>();
+  auto circuit = elaborate_file(path, *reader, sources, diagnostics, options);
+  if (!circuit) throw InputError(diagnostics.render_all());
+  if (warnings) *warnings = diagnostics.render_all();
+  return std::move(*circuit);
+}
+
+}  // namespace tacet

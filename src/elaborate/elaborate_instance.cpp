@@ -1,0 +1,468 @@
+// Elaboration of elements and block instances: connections, values, options.
+
+#include <fmt/format.h>
+
+#include <string_view>
+
+#include "elaborate/elaborator.hpp"
+
+namespace tacet::detail {
+
+namespace {
+
+struct KindInfo {
+  const char* keyword;
+  ElementKind kind;
+};
+
+const KindInfo kKinds[] = {
+    {"res", ElementKind::resistor}, {"cap", ElementKind::capacitor}, {"ind", ElementKind::inductor},
+    {"vsrc", ElementKind::vsource}, {"isrc", ElementKind::isource},  {"vcvs", ElementKind::vcvs},
+    {"vccs", ElementKind::vccs},    {"opamp", ElementKind::opamp},
+};
+
+/// An option an element kind accepts, and the dimension of its value.
+struct OptionSpec {
+  const char* key;
+  Dimension dimension;
+  bool flag;  ///< written bare, without a value
+};
+
+std::vector<OptionSpec> options_for(ElementKind kind) {
+  switch (kind) {
+    case ElementKind::resistor:
+      return {{"tol", Dimension::ratio, false}, {"noiseless", Dimension::none, true}};
+    case ElementKind::capacitor:
+    case ElementKind::inductor: return {{"tol", Dimension::ratio, false}};
+    case ElementKind::vsource:
+      return {{"dc", Dimension::voltage, false},        {"ac", Dimension::voltage, false},
+              {"phase", Dimension::angle, false},       {"level", Dimension::any, false},
+              {"load", Dimension::resistance, false},   {"band_low", Dimension::frequency, false},
+              {"band_high", Dimension::frequency, false}};
+    case ElementKind::isource:
+      return {{"dc", Dimension::current, false}, {"ac", Dimension::current, false},
+              {"phase", Dimension::angle, false}};
+    case ElementKind::vcvs: return {{"gain", Dimension::gain, false}};
+    case ElementKind::vccs: return {{"gm", Dimension::conductance, false}};
+    case ElementKind::opamp:
+      return {{"rails", Dimension::voltage, false}, {"noiseless", Dimension::none, true}};
+  }
+  return {};
+}
+
+Dimension value_dimension(ElementKind kind) {
+  switch (kind) {
+    case ElementKind::resistor: return Dimension::resistance;
+    case ElementKind::capacitor: return Dimension::capacitance;
+    case ElementKind::inductor: return Dimension::inductance;
+    default: return Dimension::none;
+  }
+}
+
+const char* value_noun(ElementKind kind) {
+  switch (kind) {
+    case ElementKind::resistor: return "resistance";
+    case ElementKind::capacitor: return "capacitance";
+    default: return "inductance";
+  }
+}
+
+}  // namespace
+
+void Elaborator::instantiate(const ast::Instance& instance, int file, const InstanceContext& context) {
+  const std::string& keyword = instance.keyword.text;
+  if (keyword == "use") return expand_block(instance, file, context);
+  for (const auto& k : kKinds)
+    if (keyword == k.keyword) return build_element(instance, file, context, k.kind);
+  error(file, instance.keyword, fmt::format("unknown element kind '{}'", keyword));
+}
+
+int Elaborator::resolve_node(const std::string& name, const InstanceContext& context,
+                             SourceLocation where) {
+  if (name == "gnd") return 0;
+  if (auto it = context.ports.find(name); it != context.ports.end()) return it->second;
+  if (name == "0" && !circuit_.find_node(context.prefix + name))
+    diagnostics_.warning(where, "node '0' is an ordinary node here, not the reference",
+                         "the reference node is called gnd");
+  return circuit_.node(context.prefix + name, where);
+}
+
+bool Elaborator::check_connections(const ast::Instance& instance, int file, ElementKind kind) {
+  const auto& c = instance.connections;
+  const std::string& name = instance.name.text;
+  auto wrong = [&](const std::string& message, const std::string& hint) {
+    error(file, c, message, hint);
+    return false;
+  };
+  auto marks = [](const std::vector<ast::Terminal>& ts, char sign) {
+    return std::count_if(ts.begin(), ts.end(), [&](const ast::Terminal& t) { return t.polarity == sign; });
+  };
+  if (kind == ElementKind::opamp) {
+    if (!c.second.empty() || c.first.size() != 3 || marks(c.first, '+') != 1 || marks(c.first, '-') != 1)
+      return wrong(fmt::format("op amp '{}' needs three connections: +input, -input and output", name),
+                   "mark the inputs with + and -, in any order: (+in, -fb, out)");
+    return true;
+  }
+  for (const auto* list : {&c.first, &c.second})
+    for (const auto& t : *list)
+      if (t.polarity != 0) {
+        error(file, t, fmt::format("'{}{}': only op-amp inputs are marked + or -", t.polarity, t.node));
+        return false;
+      }
+  if (kind == ElementKind::vcvs || kind == ElementKind::vccs) {
+    if (c.first.size() != 2 || c.second.size() != 2)
+      return wrong(fmt::format("'{}' needs an output pair and a controlling pair", name),
+                   "write (out_p, out_n; ctl_p, ctl_n)");
+    return true;
+  }
+  if (c.first.size() != 2 || !c.second.empty())
+    return wrong(fmt::format("'{}' needs exactly two connections", name), "write (a, b)");
+  return true;
+}
+
+std::vector<int> Elaborator::connect(const ast::Instance& instance, const InstanceContext& context,
+                                     ElementKind kind, int file) {
+  const auto& c = instance.connections;
+  auto node = [&](const ast::Terminal& t) { return resolve_node(t.node, context, {file, t.offset}); };
+  std::vector<int> nodes;
+  if (kind == ElementKind::opamp) {
+    int plus = 0, minus = 0, out = 0;
+    for (const auto& t : c.first) (t.polarity == '+' ? plus : t.polarity == '-' ? minus : out) = node(t);
+    return {plus, minus, out};
+  }
+  for (const auto& t : c.first) nodes.push_back(node(t));
+  for (const auto& t : c.second) nodes.push_back(node(t));
+  return nodes;
+}
+
+std::optional<double> Elaborator::value_of(const ast::Expr& expr, int file, const Scope& scope,
+                                           Dimension dimension) {
+  return evaluate(expr, file, scope, dimension, diagnostics_);
+}
+
+std::optional<Rails> Elaborator::rails_of(const ast::Expr& expr, int file, const Scope& scope) {
+  // rails=+15/-15 reads as high/low, not as a division.
+  const auto* chain = boost::get<ast::x3::forward_ast<ast::Chain>>(&unwrap(expr));
+  if (!chain || chain->get().rest.size() != 1 || chain->get().rest[0].op != '/') {
+    error(file, extent(expr), "rails= takes the high and the low rail", "write rails=+15/-15");
+    return std::nullopt;
+  }
+  auto high = value_of(chain->get().first, file, scope, Dimension::voltage);
+  auto low = value_of(chain->get().rest[0].operand, file, scope, Dimension::voltage);
+  if (!high || !low) return std::nullopt;
+  if (*high <= *low) {
+    error(file, extent(expr), fmt::format("rails inverted: high {} V is not above low {} V", *high, *low),
+          "write the high rail first: rails=+15/-15");
+    return std::nullopt;
+  }
+  return Rails{*high, *low};
+}
+
+std::optional<SignalLevel> Elaborator::level_of(const ast::Expr& expr, int file,
+                                                const Scope& scope) {
+  // The unit says what the number means (rms, peak or power), so the level is
+  // a number written with its unit, optionally negated (to be refused below).
+  const ast::Expr* inner = &unwrap(expr);
+  double sign = 1;
+  if (const auto* unary = boost::get<ast::x3::forward_ast<ast::Unary>>(inner)) {
+    if (unary->get().op == '-') sign = -1;
+    inner = &unwrap(unary->get().operand);
+  }
+  struct Tail {
+    std::string_view text;
+    LevelUnit unit;
+    const char* si_unit;
+    Dimension dimension;
+  };
+  static const Tail kTails[] = {{"Vrms", LevelUnit::rms, "V", Dimension::voltage},
+                                {"Vpk", LevelUnit::peak, "V", Dimension::voltage},
+                                {"W", LevelUnit::power, "W", Dimension::power}};
+  const auto* quantity = boost::get<ast::Quantity>(inner);
+  for (const auto& tail : kTails) {
+    if (!quantity || !std::string_view(quantity->suffix).ends_with(tail.text)) continue;
+    ast::Quantity plain = *quantity;
+    plain.suffix.resize(plain.suffix.size() - tail.text.size());
+    plain.suffix += tail.si_unit;
+    auto v = value_of(ast::Expr(plain), file, scope, tail.dimension);
+    if (!v) return std::nullopt;
+    if (sign * *v <= 0) {
+      error(file, extent(expr), fmt::format("level= must be above zero, not {:g} {}", sign * *v,
+                                            tail.unit == LevelUnit::power ? "W" : tail.text));
+      return std::nullopt;
+    }
+    return SignalLevel{tail.unit, sign * *v, 0};
+  }
+  error(file, extent(expr), "level= needs its unit: Vrms, Vpk or W",
+        "write level=2Vrms, level=2.83Vpk or level=200W load=8ohm");
+  return std::nullopt;
+}
+
+bool Elaborator::check_level(const Element& e, const ast::Instance& instance, int file) {
+  const bool power = e.level && e.level->unit == LevelUnit::power;
+  if (power && e.level->load <= 0) {
+    error(file, instance.name, fmt::format("'{}' gives its level in W and needs load=", e.name),
+          "name the resistance the power is delivered into: load=8ohm");
+    return false;
+  }
+  if (!power && e.level && e.level->load > 0) {
+    error(file, instance.name, fmt::format("'{}': load= goes only with a level in W", e.name));
+    return false;
+  }
+  if ((e.band_low > 0) != (e.band_high > 0)) {
+    error(file, instance.name, fmt::format("'{}' needs both band_low= and band_high=", e.name),
+          "write band_low=20Hz band_high=20kHz");
+    return false;
+  }
+  if (e.band_low > 0 && !(e.band_low < e.band_high)) {
+    error(file, instance.name,
+          fmt::format("'{}': band_low= {:g} Hz must be below band_high= {:g} Hz", e.name,
+                      e.band_low, e.band_high));
+    return false;
+  }
+  return true;
+}
+
+void Elaborator::build_element(const ast::Instance& instance, int file,
+                               const InstanceContext& context, ElementKind kind) {
+  Element e;
+  e.kind = kind;
+  e.name = context.prefix + instance.name.text;
+  e.where = {file, instance.name.offset};
+  if (!check_unique(element_names_, "element", instance.name, file, e.name)) return;
+  if (!check_connections(instance, file, kind)) return;
+  e.nodes = connect(instance, context, kind, file);
+  const Scope& scope = *context.scope;
+  bool ok = true;
+
+  // The value or model after the connections.
+  const bool takes_value = kind == ElementKind::resistor || kind == ElementKind::capacitor ||
+                           kind == ElementKind::inductor;
+  if (takes_value && instance.value) {
+    auto v = overridden(e.name, scope, value_dimension(kind));
+    if (!v) v = value_of(*instance.value, file, scope, value_dimension(kind));
+    if (!v) {
+      ok = false;
+    } else if (*v <= 0) {
+      error(file, extent(*instance.value),
+            fmt::format("{} of '{}' must be greater than zero, not {}", value_noun(kind), e.name, *v),
+            kind == ElementKind::resistor && *v == 0 ? "for a short, connect the nodes directly" : "");
+      ok = false;
+    } else {
+      e.value = *v;
+    }
+  }
+  if (kind == ElementKind::opamp && instance.value) {
+    const auto* id = boost::get<ast::Identifier>(&unwrap(*instance.value));
+    auto it = id ? model_index_.find(id->text) : model_index_.end();
+    if (!id) {
+      error(file, extent(*instance.value), "expected an op-amp model name");
+      ok = false;
+    } else if (it == model_index_.end()) {
+      std::vector<std::string> names;
+      for (const auto& [n, i] : model_index_) names.push_back(n);
+      std::string near = nearest_word(id->text, names);
+      error(file, *id, fmt::format("no model named '{}'", id->text),
+            near.empty() ? "declare it with 'model NAME opamp { gbw ... }' or include a library"
+                         : fmt::format("did you mean '{}'?", near));
+      ok = false;
+    } else if (it->second < 0) {
+      ok = false;  // the model's own errors are already reported
+    } else {
+      e.model = it->second;
+    }
+  }
+
+  // Options: known keys once each, values with their dimension, then --set NAME.key.
+  const auto specs = options_for(kind);
+  std::set<std::string> given;
+  double load = 0;  // load= may come before level=
+  auto apply = [&](const OptionSpec& spec, std::optional<double> v, const ast::Located& at, int at_file) {
+    if (!v) return void(ok = false);
+    const std::string key = spec.key;
+    if (key == "tol" && (*v < 0 || *v >= 1)) {
+      error(at_file, at, fmt::format("tolerance of '{}' must be from 0 up to 100%", e.name));
+      ok = false;
+    } else if (key == "tol") {
+      e.tolerance = *v;
+    } else if (key == "dc") {
+      e.dc = *v;
+    } else if (key == "ac") {
+      e.ac_magnitude = *v;
+    } else if (key == "phase") {
+      e.ac_phase = *v;
+    } else if (key == "load" && *v <= 0) {
+      error(at_file, at, fmt::format("load of '{}' must be greater than zero", e.name));
+      ok = false;
+    } else if (key == "load") {
+      load = *v;
+    } else if (key == "band_low" || key == "band_high") {
+      (key == "band_low" ? e.band_low : e.band_high) = *v;
+    } else {  // gain, gm
+      e.value = *v;
+    }
+  };
+  for (const auto& option : instance.options) {
+    const std::string& key = option.key.text;
+    auto spec = std::find_if(specs.begin(), specs.end(), [&](const OptionSpec& s) { return key == s.key; });
+    if (spec == specs.end()) {
+      std::vector<std::string> keys;
+      for (const auto& s : specs) keys.emplace_back(s.key);
+      error(file, option.key, fmt::format("'{}' takes no option '{}'", instance.keyword.text, key),
+            choice_hint(key, keys, "options"));
+      ok = false;
+      continue;
+    }
+    if (!given.insert(key).second) {
+      error(file, option.key, fmt::format("option '{}' is given twice", key));
+      ok = false;
+      continue;
+    }
+    if (spec->flag != !option.value) {
+      error(file, option, spec->flag ? fmt::format("'{}' is a flag and takes no value", key)
+                                     : fmt::format("option '{}' needs a value", key),
+            spec->flag ? fmt::format("write just '{}'", key) : fmt::format("write {}=...", key));
+      ok = false;
+      continue;
+    }
+    if (spec->flag) {
+      e.noiseless = true;
+    } else if (key == "rails") {
+      ParsedOverride* o = find_override(e.name + ".rails");  // --set U1.rails= wins
+      if (o) o->used = true;
+      auto rails = o ? rails_of(o->value, o->file, scope) : rails_of(*option.value, file, scope);
+      if (rails) e.rails = rails; else ok = false;
+    } else if (key == "level") {
+      ParsedOverride* o = find_override(e.name + ".level");  // --set Vin.level= wins
+      if (o) o->used = true;
+      e.level = o ? level_of(o->value, o->file, scope) : level_of(*option.value, file, scope);
+      if (!e.level) ok = false;
+    } else {
+      auto v = overridden(e.name + "." + key, scope, spec->dimension);
+      if (!v) v = value_of(*option.value, file, scope, spec->dimension);
+      apply(*spec, v, extent(*option.value), file);
+    }
+  }
+  for (const auto& spec : specs) {  // --set NAME.key for an option not written
+    if (given.count(spec.key) || spec.flag) continue;
+    ParsedOverride* o = find_override(e.name + "." + spec.key);
+    if (!o) continue;
+    o->used = true;
+    if (std::string(spec.key) == "rails") {
+      auto rails = rails_of(o->value, o->file, scope);
+      if (rails) e.rails = rails; else ok = false;
+    } else if (std::string(spec.key) == "level") {
+      e.level = level_of(o->value, o->file, scope);
+      if (!e.level) ok = false;
+    } else {
+      apply(spec, evaluate(o->value, o->file, scope, spec.dimension, diagnostics_), extent(o->value), o->file);
+      given.insert(spec.key);
+    }
+  }
+  if (e.level) e.level->load = load;
+  if (kind == ElementKind::vsource && ok && !check_level(e, instance, file)) ok = false;
+  if ((kind == ElementKind::vcvs || kind == ElementKind::vccs) && ok) {
+    const char* key = kind == ElementKind::vcvs ? "gain" : "gm";
+    if (!given.count(key)) {
+      error(file, instance.name, fmt::format("'{}' needs {}=", e.name, key),
+            kind == ElementKind::vcvs ? "write gain=10" : "write gm=1m");
+      ok = false;
+    }
+  }
+  if (kind == ElementKind::vcvs || kind == ElementKind::vccs) {
+    if (auto v = overridden(e.name, scope, kind == ElementKind::vcvs ? Dimension::gain : Dimension::conductance))
+      e.value = *v;
+  } else if (kind == ElementKind::vsource || kind == ElementKind::isource) {
+    if (auto v = overridden(e.name, scope, kind == ElementKind::vsource ? Dimension::voltage : Dimension::current))
+      e.ac_magnitude = *v;
+  }
+  if (ok) circuit_.elements.push_back(std::move(e));
+}
+
+void Elaborator::expand_block(const ast::Instance& use, int file, const InstanceContext& context) {
+  const std::string full = context.prefix + use.name.text;
+  if (!check_unique(element_names_, "instance", use.name, file, full)) return;
+  const auto* id = use.value ? boost::get<ast::Identifier>(&unwrap(*use.value)) : nullptr;
+  auto it = id ? blocks_.find(id->text) : blocks_.end();
+  if (it == blocks_.end()) {
+    std::vector<std::string> names;
+    for (const auto& [n, b] : blocks_) names.push_back(n);
+    std::string near = id ? nearest_word(id->text, names) : "";
+    error(file, id ? static_cast<const ast::Located&>(*id) : static_cast<const ast::Located&>(use.name),
+          fmt::format("no block named '{}'", id ? id->text : ""),
+          near.empty() ? "declare it with 'block NAME (ports) { ... }'" : fmt::format("did you mean '{}'?", near));
+    return;
+  }
+  const ast::Block& block = *it->second.node;
+  const int block_file = it->second.file;
+  if (std::find(context.block_stack.begin(), context.block_stack.end(), block.name.text) !=
+      context.block_stack.end()) {
+    error(file, *id, fmt::format("block '{}' uses itself", block.name.text));
+    return;
+  }
+  if (!use.connections.second.empty() || use.connections.first.size() != block.ports.size()) {
+    error(file, use.connections,
+          fmt::format("block '{}' has {} ports, but '{}' connects {}", block.name.text,
+                      block.ports.size(), use.name.text,
+                      use.connections.first.size() + use.connections.second.size()));
+    return;
+  }
+  InstanceContext inner;
+  inner.prefix = full + ".";
+  inner.block_stack = context.block_stack;
+  inner.block_stack.push_back(block.name.text);
+  for (std::size_t i = 0; i < block.ports.size(); ++i) {
+    const auto& t = use.connections.first[i];
+    if (t.polarity != 0) {
+      error(file, t, "block connections are not marked + or -");
+      return;
+    }
+    inner.ports[block.ports[i].node] = resolve_node(t.node, context, {file, t.offset});
+  }
+
+  // Arguments: every argument names a parameter; a parameter without a default must be given.
+  Scope scope;
+  scope.parent = &globals_;
+  bool ok = true;
+  std::vector<std::string> param_names;
+  for (const auto& p : block.parameters) param_names.push_back(p.key.text);
+  for (const auto& arg : use.options) {
+    if (std::find(param_names.begin(), param_names.end(), arg.key.text) == param_names.end()) {
+      error(file, arg.key, fmt::format("block '{}' has no parameter '{}'", block.name.text, arg.key.text),
+            choice_hint(arg.key.text, param_names, "parameters"));
+      ok = false;
+    } else if (!arg.value) {
+      error(file, arg, fmt::format("argument '{}' needs a value", arg.key.text),
+            fmt::format("write {}=...", arg.key.text));
+      ok = false;
+    } else if (scope.params.count(arg.key.text)) {
+      error(file, arg.key, fmt::format("argument '{}' is given twice", arg.key.text));
+      ok = false;
+    } else {
+      auto v = overridden(full + "." + arg.key.text, *context.scope, Dimension::any);
+      if (!v) v = value_of(*arg.value, file, *context.scope, Dimension::any);
+      if (v) scope.params[arg.key.text] = {*v, {file, arg.key.offset}}; else ok = false;
+    }
+  }
+  for (const auto& p : block.parameters) {
+    if (scope.params.count(p.key.text)) continue;
+    // A default may refer to the parameters before it (g=2*r) and to the file's params.
+    std::optional<double> v = overridden(full + "." + p.key.text, scope, Dimension::any);
+    if (!v && p.value) v = value_of(*p.value, block_file, scope, Dimension::any);
+    if (!v && !p.value) {
+      error(file, use.name, fmt::format("'{}' needs a value for parameter '{}' of block '{}'",
+                                        use.name.text, p.key.text, block.name.text),
+            fmt::format("write {}=...", p.key.text));
+    }
+    if (v) scope.params[p.key.text] = {*v, {block_file, p.key.offset}}; else ok = false;
+  }
+  if (!ok) return;
+  inner.scope = &scope;
+  for (const auto& statement : block.body) {
+    if (const auto* param = boost::get<ast::Param>(&statement))
+      declare_param(*param, block_file, scope, inner.prefix);
+    else
+      instantiate(boost::get<ast::Instance>(statement), block_file, inner);
+  }
+}
+
+}  // namespace tacet::detail

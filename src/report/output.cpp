@@ -1,0 +1,64 @@
+#include "tacet/report/output.hpp"
+
+#include <cstdio>
+#include <filesystem>
+#include <fstream>
+#include <iostream>
+#include <random>
+
+#include <fmt/format.h>
+
+#include "tacet/common/errors.hpp"
+
+namespace tacet {
+
+const char* to_string(OutputFormat format) {
+  switch (format) {
+    case OutputFormat::table: return "table";
+    case OutputFormat::csv: return "csv";
+    case OutputFormat::json: return "json";
+  }
+  return "table";
+}
+
+std::optional<OutputFormat> parse_output_format(const std::string& text) {
+  for (auto f : {OutputFormat::table, OutputFormat::csv, OutputFormat::json})
+    if (text == to_string(f)) return f;
+  return std::nullopt;
+}
+
+std::string report_header(const ReportContext& context) {
+  return (context.title.empty() ? "" : context.title + "\n") + context.file + "\n";
+}
+
+void write_output(const std::string& path, const std::string& text) {
+  if (path.empty()) {
+    std::cout << text << std::flush;
+    return;
+  }
+  namespace fs = std::filesystem;
+  const fs::path target(path);
+  const fs::path folder = target.has_parent_path() ? target.parent_path() : fs::path(".");
+  std::random_device entropy;
+  const fs::path temporary =
+      folder / fmt::format(".{}.tmp{:08x}", target.filename().string(), entropy());
+  {
+    std::ofstream out(temporary, std::ios::binary);
+    out << text;
+    out.close();
+    if (!out) {
+      std::error_code ignored;
+      fs::remove(temporary, ignored);
+      throw InputError(fmt::format("error: cannot write '{}'\n", path));
+    }
+  }
+  std::error_code ec;
+  fs::rename(temporary, target, ec);
+  if (ec) {
+    std::error_code ignored;
+    fs::remove(temporary, ignored);
+    throw InputError(fmt::format("error: cannot write '{}': {}\n", path, ec.message()));
+  }
+}
+
+}  // namespace tacet

@@ -1,0 +1,165 @@
+// Writers for the noise analysis: table, csv and json.
+
+#include "tacet/report/write_noise.hpp"
+
+#include <array>
+#include <cmath>
+
+#include <fmt/format.h>
+#include "tacet/report/json_output.hpp"
+
+#include "tacet/common/format.hpp"
+#include "tacet/report/text_table.hpp"
+
+namespace tacet {
+namespace {
+
+using json = json_output::Json;
+using json_output::number;
+
+const char* unit_of(const NoiseResult& r) { return probe_unit(r.probe); }
+
+// 6.225e-7, "V" -> "622.5 nV"; unit "" -> "622.5n" (for columns whose header has the unit).
+std::string si_cell(double v, const std::string& unit) {
+  if (!std::isfinite(v)) return "inf";
+  const std::string text = format_si(v, 4);
+  if (unit.empty()) return text;
+  const auto prefix = text.find_first_not_of("0123456789.-+");
+  return prefix == std::string::npos ? text + " " + unit
+                                     : text.substr(0, prefix) + " " + text.substr(prefix) + unit;
+}
+
+std::string db_cell(double rms) {
+  const double db = 20 * std::log10(rms);
+  return std::isfinite(db) ? fmt::format("{:.1f}", db) : std::string("-inf");
+}
+
+std::string total_line(const char* what, double rms, const std::string& unit) {
+  return fmt::format("{:<18}{} rms  ({} dB re 1 {} rms)\n", what, si_cell(rms, unit),
+                     db_cell(rms), unit);
+}
+
+std::string totals(const NoiseResult& r) {
+  std::string out = total_line("output noise", r.total_rms, unit_of(r));
+  if (r.input_referred_rms)
+    out += total_line("input-referred", *r.input_referred_rms, r.input_unit);
+  if (r.signal) {
+    out += fmt::format("{:<18}{} rms  ({} rms at {} x gain at {} Hz)\n", "signal at probe",
+                       si_cell(r.signal->signal_rms, unit_of(r)),
+                       si_cell(r.signal->level, r.input_unit), r.input,
+                       format_si(r.signal->reference));
+    out += fmt::format("{:<18}{} dB\n", "signal-to-noise",
+                       std::isfinite(r.signal->ratio_db) ? fmt::format("{:.1f}", r.signal->ratio_db)
+                                                         : std::string("inf"));
+  }
+  return out;
+}
+
+std::string percent(double share) { return fmt::format("{:.2f} %", 100 * share); }
+
+std::string contributor_rows(const NoiseResult& r, std::size_t top) {
+  if (r.contributors.empty()) return "no noise sources (every part is noiseless)\n";
+  Table table({"source", "mechanism", "rms", "share"}, Table::Align::left);
+  for (std::size_t k = 0; k < r.contributors.size() && k < top; ++k) {
+    const auto& c = r.contributors[k];
+    table.add({c.source, to_string(c.mechanism), si_cell(c.rms, unit_of(r)), percent(c.share)});
+  }
+  std::string out = table.render();
+  if (r.contributors.size() > top) {
+    double rest = 0;
+    for (std::size_t k = top; k < r.contributors.size(); ++k) rest += r.contributors[k].share;
+    out += fmt::format("and {} more, {} together\n", r.contributors.size() - top, percent(rest));
+  }
+  return out;
+}
+
+std::string mechanism_line(const NoiseResult& r) {
+  std::array<double, 4> share{};
+  for (const auto& c : r.contributors) share[static_cast<std::size_t>(c.mechanism)] += c.share;
+  std::string out = "by mechanism:";
+  for (auto m : {NoiseMechanism::thermal, NoiseMechanism::en, NoiseMechanism::in_plus,
+                 NoiseMechanism::in_minus})
+    out += fmt::format(" {} {}{}", to_string(m), percent(share[static_cast<std::size_t>(m)]),
+                       m == NoiseMechanism::in_minus ? "" : ",");
+  return out + "\n";
+}
+
+std::string point_rows(const NoiseResult& r) {
+  const std::string unit = std::string(unit_of(r)) + "/rtHz";
+  std::vector<std::string> header{"f [Hz]", "density [" + unit + "]"};
+  const bool input = !r.input.empty();
+  if (input) {
+    header.push_back("input density [" + r.input_unit + "/rtHz]");
+    header.push_back("gain [dB]");
+  }
+  Table table(header);
+  for (std::size_t k = 0; k < r.frequencies.size(); ++k) {
+    std::vector<std::string> row{format_si_fixed(r.frequencies[k]), si_cell(r.density[k], "")};
+    if (input) {
+      row.push_back(si_cell(r.input_density[k], ""));
+      row.push_back(db_cell(std::abs(r.gain[k])));
+    }
+    table.add(std::move(row));
+  }
+  return table.render();
+}
+
+}  // namespace
+
+std::string noise_table(const NoiseResult& r, const ReportContext& context, std::size_t top) {
+  std::string out = report_header(context);
+  out += fmt::format("Noise at {} over {}Hz..{}Hz, {:.2f} C ({:.2f} K){}\n\n", r.probe.text,
+                     format_si(r.band.from), format_si(r.band.to), r.temperature_kelvin - 273.15,
+                     r.temperature_kelvin, r.input.empty() ? "" : "; input " + r.input);
+  out += totals(r) + "\n" + contributor_rows(r, top) + mechanism_line(r) + "\n";
+  return out + point_rows(r);
+}
+
+std::string noise_csv(const NoiseResult& r) {
+  const std::string unit = unit_of(r);
+  std::string out = "f_Hz,density_" + unit + "_rtHz";
+  const bool input = !r.input.empty();
+  if (input) out += ",input_density_" + r.input_unit + "_rtHz,gain_re,gain_im";
+  out += "\n";
+  auto cell = [](double v) { return std::isfinite(v) ? format_exact(v) : std::string(); };
+  for (std::size_t k = 0; k < r.frequencies.size(); ++k) {
+    out += cell(r.frequencies[k]) + "," + cell(r.density[k]);
+    if (input)
+      out += "," + cell(r.input_density[k]) + "," + cell(r.gain[k].real()) + "," +
+             cell(r.gain[k].imag());
+    out += "\n";
+  }
+  return out;
+}
+
+std::string noise_json(const NoiseResult& r, const ReportContext& context) {
+  json d = json_output::header("noise", context);
+  d["probe"] = r.probe.text;
+  d["unit"] = unit_of(r);
+  d["band"] = {{"from", number(r.band.from)}, {"to", number(r.band.to)}};
+  d["temperature_K"] = number(r.temperature_kelvin);
+  d["total_rms"] = number(r.total_rms);
+  if (!r.input.empty()) {
+    d["input"] = r.input;
+    d["input_referred_rms"] = number(r.input_referred_rms);
+  }
+  if (r.signal)
+    d["signal"] = {{"level", number(r.signal->level)}, {"reference", number(r.signal->reference)},
+                   {"signal_rms", number(r.signal->signal_rms)},
+                   {"snr_db", number(r.signal->ratio_db)}};
+  json points = json::array();
+  for (std::size_t k = 0; k < r.frequencies.size(); ++k) {
+    json point{{"f", number(r.frequencies[k])}, {"density", number(r.density[k])}};
+    if (!r.input.empty()) point["input_density"] = number(r.input_density[k]);
+    points.push_back(point);
+  }
+  d["points"] = points;
+  json contributors = json::array();
+  for (const auto& c : r.contributors)
+    contributors.push_back({{"source", c.source}, {"mechanism", to_string(c.mechanism)},
+                            {"rms", number(c.rms)}, {"share", number(c.share)}});
+  d["contributors"] = contributors;
+  return json_output::text(d);
+}
+
+}  // namespace tacet

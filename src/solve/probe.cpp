@@ -1,0 +1,114 @@
+// Probes: from the user's text to a node pair or an element, and from there
+// to a linear functional of the MNA unknowns.
+
+#include "tacet/solve/probe.hpp"
+
+#include <fmt/format.h>
+
+#include "tacet/common/spelling.hpp"
+#include "tacet/common/errors.hpp"
+
+namespace tacet {
+namespace {
+
+std::string trimmed(const std::string& text) {
+  const auto first = text.find_first_not_of(" \t");
+  if (first == std::string::npos) return {};
+  const auto last = text.find_last_not_of(" \t");
+  return text.substr(first, last - first + 1);
+}
+
+[[noreturn]] void unknown_name(const char* what, const std::string& name, const std::string& probe,
+                               const std::vector<std::string>& candidates) {
+  std::string message = fmt::format("error: unknown {} '{}' in probe '{}'", what, name, probe);
+  const std::string near = nearest_word(name, candidates);
+  if (!near.empty()) message += fmt::format("\nhint: did you mean '{}'?", near);
+  throw InputError(message);
+}
+
+int resolve_node(const std::string& name, const std::string& probe, const Circuit& circuit) {
+  if (name.empty())
+    throw InputError(fmt::format("error: probe '{}' has an empty node name", probe));
+  if (const auto node = circuit.find_node(name)) return *node;
+  unknown_name("node", name, probe, circuit.node_names);
+}
+
+std::size_t resolve_element(const std::string& name, const std::string& probe,
+                            const Circuit& circuit) {
+  if (const auto element = circuit.find_element(name)) return *element;
+  std::vector<std::string> names;
+  names.reserve(circuit.elements.size());
+  for (const auto& e : circuit.elements) names.push_back(e.name);
+  unknown_name("element", name, probe, names);
+}
+
+}  // namespace
+
+Probe resolve_probe(const std::string& text, const Circuit& circuit) {
+  Probe probe;
+  probe.text = trimmed(text);
+  const std::string& t = probe.text;
+  if (t.empty())
+    throw InputError(
+        "error: empty probe: name a node ('out'), a pair ('out,ref') or a current ('i(R1)')");
+  if (t.size() > 3 && t.rfind("i(", 0) == 0 && t.back() == ')') {
+    probe.kind = ProbeKind::current;
+    probe.element = resolve_element(trimmed(t.substr(2, t.size() - 3)), t, circuit);
+    return probe;
+  }
+  const auto comma = t.find(',');
+  probe.plus = resolve_node(trimmed(t.substr(0, comma)), t, circuit);
+  if (comma != std::string::npos)
+    probe.minus = resolve_node(trimmed(t.substr(comma + 1)), t, circuit);
+  return probe;
+}
+
+const char* probe_unit(const Probe& probe) { return probe.kind == ProbeKind::current ? "A" : "V"; }
+
+std::complex<double> probe_functional(const Probe& probe, const MnaSystem& mna,
+                                      std::complex<double> s, std::vector<ProbeTerm>& terms) {
+  terms.clear();
+  auto add = [&](int node, std::complex<double> coefficient) {
+    const int unknown = mna.node_unknown(node);
+    if (unknown >= 0) terms.push_back({unknown, coefficient});
+  };
+  auto across = [&](int a, int b, std::complex<double> y) { add(a, y), add(b, -y); };
+  if (probe.kind == ProbeKind::voltage) {
+    across(probe.plus, probe.minus, 1.0);
+    return 0.0;
+  }
+  const Element& e = mna.circuit().elements[probe.element];
+  const auto& n = e.nodes;
+  switch (e.kind) {
+    case ElementKind::resistor:
+      across(n[0], n[1], 1.0 / e.value);
+      break;
+    case ElementKind::capacitor:
+      across(n[0], n[1], s * e.value);
+      break;
+    case ElementKind::vccs:
+      across(n[2], n[3], e.value);
+      break;
+    case ElementKind::isource:
+      return e.ac_phasor();
+    case ElementKind::opamp:
+      // The branch current flows into the gain source; the pin gets its negative.
+      terms.push_back({mna.branch_unknown(probe.element), -1.0});
+      break;
+    case ElementKind::inductor:
+    case ElementKind::vsource:
+    case ElementKind::vcvs:
+      terms.push_back({mna.branch_unknown(probe.element), 1.0});
+      break;
+  }
+  return 0.0;
+}
+
+std::complex<double> probe_value(const Probe& probe, const MnaSystem& mna, std::complex<double> s,
+                                 const std::complex<double>* x, std::vector<ProbeTerm>& scratch) {
+  std::complex<double> value = probe_functional(probe, mna, s, scratch);
+  for (const auto& term : scratch) value += term.coefficient * x[term.unknown];
+  return value;
+}
+
+}  // namespace tacet

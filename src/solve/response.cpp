@@ -1,0 +1,67 @@
+#include "tacet/solve/response.hpp"
+
+#include <cmath>
+#include <numbers>
+
+#include <fmt/format.h>
+
+#include "tacet/common/errors.hpp"
+#include "tacet/common/format.hpp"
+
+namespace tacet {
+
+FrequencyResponse::FrequencyResponse(const Circuit& circuit, SolverKind solver)
+    : mna_(circuit), lu_(make_sparse_lu(solver)) {
+  lu_->analyse(mna_.pattern());
+  values_.resize(static_cast<std::size_t>(mna_.pattern().nonzeros()));
+  excitation_.resize(static_cast<std::size_t>(mna_.size()));
+  x_.resize(excitation_.size());
+  y_.resize(excitation_.size());
+  scratch_.reserve(8);
+  mna_.excitation(excitation_.data());
+  mna_.assemble(0.0, values_.data());  // the constant entries, once
+}
+
+void FrequencyResponse::factor_at(double f) {
+  if (f == factored_) return;
+  solved_ = -1;
+  mna_.assemble_varying(std::complex<double>(0, 2 * std::numbers::pi * f), values_.data());
+  if (lu_->factor(values_.data()) == FactorStatus::singular) {
+    factored_ = -1;
+    throw_singular(mna_, lu_->singular_column(), f);
+  }
+  factored_ = f;
+}
+
+void FrequencyResponse::solve_at(double f) {
+  factor_at(f);
+  if (f == solved_) return;
+  x_ = excitation_;
+  lu_->solve(x_.data());
+  solved_ = f;
+}
+
+const std::vector<std::complex<double>>& FrequencyResponse::adjoint(const Probe& probe) {
+  const std::complex<double> s(0, 2 * std::numbers::pi * factored_);
+  std::fill(y_.begin(), y_.end(), std::complex<double>{});
+  probe_functional(probe, mna_, s, scratch_);
+  for (const ProbeTerm& term : scratch_) y_[static_cast<std::size_t>(term.unknown)] += term.coefficient;
+  lu_->solve_transposed(y_.data());
+  return y_;
+}
+
+std::complex<double> FrequencyResponse::value(const Probe& probe) {
+  const std::complex<double> s(0, 2 * std::numbers::pi * solved_);
+  const auto v = probe_value(probe, mna_, s, x_.data(), scratch_);
+  if (!std::isfinite(v.real()) || !std::isfinite(v.imag()))
+    throw SolveError(fmt::format("error: circuit cannot be solved at {}Hz: probe '{}' is not finite",
+                                 format_si(solved_), probe.text));
+  return v;
+}
+
+std::complex<double> FrequencyResponse::at(const Probe& probe, double f) {
+  solve_at(f);
+  return value(probe);
+}
+
+}  // namespace tacet

@@ -1,0 +1,24 @@
+// The backend factory; each backend lives in its own file.
+
+#include "tacet/solve/sparse_solver.hpp"
+
+namespace tacet {
+
+std::unique_ptr<SparseLu> make_klu_lu();
+std::unique_ptr<SparseLu> make_eigen_lu();
+
+const char* to_string(SolverKind kind) {
+  switch (kind) {
+    case SolverKind::klu:
+      return "klu";
+    case SolverKind::eigen:
+      return "eigen";
+  }
+  return "?";
+}
+
+std::unique_ptr<SparseLu> make_sparse_lu(SolverKind kind) {
+  return kind == SolverKind::eigen ? make_eigen_lu() : make_klu_lu();
+}
+
+}  // namespace tacet
