@@ -40,7 +40,14 @@ TEST_CASE("output into a missing folder is an input error", "[output]") {
 }
 
 TEST_CASE("output formats round-trip through their names", "[output]") {
-  for (auto f : {OutputFormat::table, OutputFormat::csv, OutputFormat::json})
+  for (auto f : {OutputFormat::table, OutputFormat::csv, OutputFormat::json, OutputFormat::svg})
     CHECK(parse_output_format(to_string(f)) == f);
   CHECK_FALSE(parse_output_format("xml"));
+}
+
+TEST_CASE("format names read as a list with 'or' before the last", "[output]") {
+  CHECK(format_names({OutputFormat::table}) == "table");
+  CHECK(format_names({OutputFormat::table, OutputFormat::json}) == "table or json");
+  CHECK(format_names({OutputFormat::table, OutputFormat::csv, OutputFormat::json}) ==
+        "table, csv or json");
 }

@@ -3,6 +3,7 @@
 
 #include <iostream>
 #include <memory>
+#include <utility>
 
 #include <fmt/format.h>
 
@@ -37,23 +38,17 @@ HeadroomOptions headroom_options(const BiasCommandOptions& o) {
 }
 
 void run(const BiasCommandOptions& o) {
-  const OutputFormat format = output_format(o.common);
   const HeadroomOptions headroom_opts = headroom_options(o);
-  ReportContext context;
-  const Circuit circuit = load(o.common, context);
-  const BiasResult bias = run_bias(circuit);
-  const HeadroomResult headroom = run_headroom(circuit, bias, headroom_opts);
-  std::string text;
-  switch (format) {
-    case OutputFormat::table: text = bias_table(bias, headroom, context); break;
-    case OutputFormat::csv: text = bias_csv(bias); break;
-    case OutputFormat::json: text = bias_json(bias, headroom, context); break;
-  }
-  write_output(o.common.output, text);
+  const BiasReport report =
+      analyse_and_write(o.common, bias_writers(), [&](const Circuit& circuit) {
+        BiasResult bias = run_bias(circuit);
+        HeadroomResult headroom = run_headroom(circuit, bias, headroom_opts);
+        return BiasReport{std::move(bias), std::move(headroom)};
+      });
   // The table opens with the cautions; csv and json readers may not look, so
   // a person at the terminal still sees them.
-  if (format != OutputFormat::table)
-    for (const auto& caution : headroom.cautions) std::cerr << caution << "\n";
+  if (output_format(o.common) != OutputFormat::table)
+    for (const auto& caution : report.headroom.cautions) std::cerr << caution << "\n";
 }
 
 }  // namespace
@@ -62,7 +57,7 @@ void setup_bias(CLI::App& app) {
   auto options = std::make_shared<BiasCommandOptions>();
   CLI::App* bias = app.add_subcommand(
       "bias", "DC operating point, worst-case offsets against the rails, headroom at the level");
-  add_common_options(*bias, options->common);
+  add_common_options(*bias, options->common, bias_writers().formats());
   bias->add_option("--band", options->band,
                    "Headroom band FROM..TO (20..20k); default: band_low=/band_high= on the source");
   bias->add_option("--per-decade", options->per_decade, "Headroom grid: points per decade")

@@ -15,17 +15,15 @@ void setup_check(CLI::App& app) {
   auto options = std::make_shared<CommonOptions>();
   CLI::App* check = app.add_subcommand(
       "check", "Measure every spec line of the netlist: PASS/FAIL with the margin; exit 1 if any fails");
-  add_common_options(*check, *options);
+  add_common_options(*check, *options, check_writers().formats());
   check->callback([options] {
-    const OutputFormat format = output_format(*options);
-    ReportContext context;
-    const Circuit circuit = load(*options, context);
-    if (circuit.specs.empty())
-      throw InputError("error: " + options->file + " has no spec lines to check\n"
-                       "hint: write for example: spec gain_1k gain (out) at=1kHz min=19.9dB max=20.1dB\n");
-    const CheckResult result = run_check(circuit);
-    write_output(options->output, format == OutputFormat::json ? check_json(result, context)
-                                                               : check_table(result, context));
+    const CheckResult result =
+        analyse_and_write(*options, check_writers(), [&](const Circuit& circuit) {
+          if (circuit.specs.empty())
+            throw InputError("error: " + options->file + " has no spec lines to check\n"
+                             "hint: write for example: spec gain_1k gain (out) at=1kHz min=19.9dB max=20.1dB\n");
+          return run_check(circuit);
+        });
     if (result.failed() > 0) throw SpecFailed();
   });
 }

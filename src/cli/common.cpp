@@ -1,5 +1,6 @@
 #include "common.hpp"
 
+#include <algorithm>
 #include <charconv>
 #include <cmath>
 #include <iostream>
@@ -11,10 +12,19 @@
 
 namespace tacet::cli {
 
-void add_common_options(CLI::App& command, CommonOptions& options) {
-  command.add_option("file", options.file, "The netlist (.tacet)")->required();
-  command.add_option("--format", options.format, "Output format: table, csv or json")
+void add_format_option(CLI::App& command, CommonOptions& options,
+                       const std::vector<OutputFormat>& formats) {
+  options.command = "tacet " + command.get_name();
+  options.formats = formats;
+  options.format = to_string(formats.front());
+  command.add_option("--format", options.format, "Output format: " + format_names(formats))
       ->capture_default_str();
+}
+
+void add_common_options(CLI::App& command, CommonOptions& options,
+                        const std::vector<OutputFormat>& formats) {
+  command.add_option("file", options.file, "The netlist (.tacet)")->required();
+  add_format_option(command, options, formats);
   command.add_option("--output", options.output,
                      "Write to this file (atomically) instead of stdout");
   command.add_option("--set", options.set,
@@ -64,9 +74,11 @@ Band parse_band(const std::string& option, const std::string& text) {
 }
 
 OutputFormat output_format(const CommonOptions& options) {
-  auto format = parse_output_format(options.format);
-  if (!format)
-    throw InputError(fmt::format("error: --format '{}' is not one of table, csv, json\n", options.format));
+  const auto format = parse_output_format(options.format);
+  if (!format || std::find(options.formats.begin(), options.formats.end(), *format) ==
+                     options.formats.end())
+    throw InputError(fmt::format("error: {} has no --format '{}'\nhint: --format {}\n", options.command,
+                                 options.format, format_names(options.formats)));
   return *format;
 }
 

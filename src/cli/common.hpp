@@ -11,25 +11,53 @@
 #include "tacet/circuit/circuit.hpp"
 #include "tacet/analysis/noise.hpp"
 #include "tacet/report/output.hpp"
+#include "tacet/report/writers.hpp"
 #include "tacet/language/units.hpp"
 
 namespace tacet::cli {
 
 struct CommonOptions {
   std::string file;                 ///< the netlist
-  std::string format = "table";     ///< table | csv | json
+  std::string format;               ///< as typed; default: the command's first format
   std::string output;               ///< empty: stdout
   std::vector<std::string> set;     ///< NAME=VALUE overrides
   std::string ambient;              ///< temperature, e.g. 40C; empty: the netlist's
+  std::string command;              ///< "tacet ac", for messages
+  std::vector<OutputFormat> formats;  ///< what the command's writers have
 };
 
-void add_common_options(CLI::App& command, CommonOptions& options);
+/// The netlist argument, --format (from `formats`, the analysis' Writers),
+/// --output, --set and --ambient.
+void add_common_options(CLI::App& command, CommonOptions& options,
+                        const std::vector<OutputFormat>& formats);
+
+/// --format alone, its help and default from `formats`; for commands whose
+/// other flags differ (diff).
+void add_format_option(CLI::App& command, CommonOptions& options,
+                       const std::vector<OutputFormat>& formats);
 
 /// Parses and elaborates the netlist with the overrides; throws InputError.
 /// Warnings go to stderr. Fills `context` for the report header.
 Circuit load(const CommonOptions& options, ReportContext& context);
 
+/// The --format asked for; a format the command has no writer for (or no
+/// format at all) is an InputError naming the ones it has.
 OutputFormat output_format(const CommonOptions& options);
+
+/// The shape of every command that analyses one netlist: --format is checked
+/// before any work, then the netlist is loaded, `analyse(circuit)` runs and the
+/// report is written. Returns the result for what follows the report (an exit
+/// status, cautions on stderr).
+template <class Result, class Analyse>
+Result analyse_and_write(const CommonOptions& options, const Writers<Result>& writers,
+                         Analyse&& analyse) {
+  const OutputFormat format = output_format(options);
+  ReportContext context;
+  const Circuit circuit = load(options, context);
+  Result result = analyse(circuit);
+  write_output(options.output, writers.write(format, result, context));
+  return result;
+}
 
 /// The sweep flags of the analyses that sweep frequency, as typed.
 struct SweepFlags {

@@ -77,8 +77,7 @@ void run(const DiffCommandOptions& o) {
     throw InputError("error: --fail-above with % compares noise totals, which need --band\n"
                      "hint: --band 20..20k --fail-above 5%\n");
   const DiffResult result = run_diff(old_circuit, new_circuit, options);
-  write_output(o.common.output, format == OutputFormat::json ? diff_json(result, context)
-                                                             : diff_table(result, context));
+  write_output(o.common.output, diff_writers().write(format, result, context));
   if (exceeds(result, thresholds)) throw SpecFailed();
 }
 
@@ -97,7 +96,7 @@ void setup_diff(CLI::App& app) {
                    "Exit 1 when a probe's gain changes more than this (0.1dB), its phase (1deg) or a "
                    "noise total (5%)");
   diff->add_option("--band", options->band, "Compare the noise totals over this band: 20..20k");
-  diff->add_option("--format", options->common.format, "Output format: table or json")->capture_default_str();
+  add_format_option(*diff, options->common, diff_writers().formats());
   diff->add_option("--output", options->common.output, "Write to this file (atomically) instead of stdout");
   diff->add_option("--set", options->common.set, "Override on both sides; repeatable");
   diff->add_option("--ambient", options->common.ambient, "Ambient temperature (25C, 300K)");

@@ -37,18 +37,9 @@ NoiseOptions options_from(const NoiseCommandOptions& o) {
 }
 
 void run(const NoiseCommandOptions& o) {
-  const OutputFormat format = output_format(o.common);
   const NoiseOptions options = options_from(o);
-  ReportContext context;
-  const Circuit circuit = load(o.common, context);
-  const NoiseResult result = run_noise(circuit, options);
-  std::string text;
-  switch (format) {
-    case OutputFormat::table: text = noise_table(result, context); break;
-    case OutputFormat::csv: text = noise_csv(result); break;
-    case OutputFormat::json: text = noise_json(result, context); break;
-  }
-  write_output(o.common.output, text);
+  analyse_and_write(o.common, noise_writers(),
+                    [&](const Circuit& circuit) { return run_noise(circuit, options); });
 }
 
 }  // namespace
@@ -57,7 +48,7 @@ void setup_noise(CLI::App& app) {
   auto options = std::make_shared<NoiseCommandOptions>();
   CLI::App* noise = app.add_subcommand(
       "noise", "Noise at a probe: density, band total, contributors, input-referred");
-  add_common_options(*noise, options->common);
+  add_common_options(*noise, options->common, noise_writers().formats());
   noise->add_option("--probe", options->probe, "A node (out), a node pair (out,ref) or i(R1)")
       ->required();
   noise->add_option("--input", options->input,

@@ -17,14 +17,24 @@ const char* to_string(OutputFormat format) {
     case OutputFormat::table: return "table";
     case OutputFormat::csv: return "csv";
     case OutputFormat::json: return "json";
+    case OutputFormat::svg: return "svg";
   }
   return "table";
 }
 
 std::optional<OutputFormat> parse_output_format(const std::string& text) {
-  for (auto f : {OutputFormat::table, OutputFormat::csv, OutputFormat::json})
+  for (auto f : {OutputFormat::table, OutputFormat::csv, OutputFormat::json, OutputFormat::svg})
     if (text == to_string(f)) return f;
   return std::nullopt;
+}
+
+std::string format_names(const std::vector<OutputFormat>& formats) {
+  std::string out;
+  for (std::size_t k = 0; k < formats.size(); ++k) {
+    if (k > 0) out += k + 1 == formats.size() ? " or " : ", ";
+    out += to_string(formats[k]);
+  }
+  return out;
 }
 
 std::string report_header(const ReportContext& context) {

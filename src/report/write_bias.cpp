@@ -163,8 +163,18 @@ json headroom_json(const HeadroomResult& h) {
 
 }  // namespace
 
-std::string bias_table(const BiasResult& bias, const HeadroomResult& headroom,
-                       const ReportContext& context) {
+const Writers<BiasReport>& bias_writers() {
+  static const Writers<BiasReport> writers{
+      {OutputFormat::table, bias_table},
+      {OutputFormat::csv, bias_csv},
+      {OutputFormat::json, bias_json},
+  };
+  return writers;
+}
+
+std::string bias_table(const BiasReport& report, const ReportContext& context) {
+  const BiasResult& bias = report.bias;
+  const HeadroomResult& headroom = report.headroom;
   std::string out = report_header(context);
   out += lines(headroom.cautions, "");
   out += "DC operating point (capacitors open, inductors shorted); low and high bound each "
@@ -176,16 +186,16 @@ std::string bias_table(const BiasResult& bias, const HeadroomResult& headroom,
   return out + node_table(bias);
 }
 
-std::string bias_csv(const BiasResult& bias) {
+std::string bias_csv(const BiasReport& report) {
   std::string out = "node,nominal,worst,rss\n";
-  for (const auto& n : bias.nodes)
+  for (const auto& n : report.bias.nodes)
     out += fmt::format("{},{},{},{}\n", n.name, format_exact(n.nominal), format_exact(n.worst),
                        format_exact(n.rss));
   return out;
 }
 
-std::string bias_json(const BiasResult& bias, const HeadroomResult& headroom,
-                      const ReportContext& context) {
+std::string bias_json(const BiasReport& report, const ReportContext& context) {
+  const BiasResult& bias = report.bias;
   json document = json_output::header("bias", context);
   json nodes = json::object(), offset = json::object(), opamps = json::array();
   for (const auto& n : bias.nodes) {
@@ -197,7 +207,7 @@ std::string bias_json(const BiasResult& bias, const HeadroomResult& headroom,
   document["offset"] = offset;
   document["opamps"] = opamps;
   document["warnings"] = bias.warnings;
-  document["headroom"] = headroom_json(headroom);
+  document["headroom"] = headroom_json(report.headroom);
   return json_output::text(document);
 }
 

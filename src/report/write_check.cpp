@@ -69,6 +69,14 @@ std::string where_text(const SpecResult& r) {
 
 }  // namespace
 
+const Writers<CheckResult>& check_writers() {
+  static const Writers<CheckResult> writers{
+      {OutputFormat::table, check_table},
+      {OutputFormat::json, check_json},
+  };
+  return writers;
+}
+
 std::string check_table(const CheckResult& result, const ReportContext& context) {
   using Align = Table::Align;
   // Names and words to the left, numbers to the right, the note last.

@@ -23,6 +23,14 @@ std::string verdict(const std::optional<SpecResult>& r) {
 
 }  // namespace
 
+const Writers<DiffResult, DiffContext>& diff_writers() {
+  static const Writers<DiffResult, DiffContext> writers{
+      {OutputFormat::table, diff_table},
+      {OutputFormat::json, diff_json},
+  };
+  return writers;
+}
+
 std::string diff_table(const DiffResult& result, const DiffContext& context) {
   std::string out = side_line("old:", context.old_side) + side_line("new:", context.new_side);
   out += "\ncircuit:\n";

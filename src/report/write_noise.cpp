@@ -106,6 +106,16 @@ std::string point_rows(const NoiseResult& r) {
 
 }  // namespace
 
+const Writers<NoiseResult>& noise_writers() {
+  static const Writers<NoiseResult> writers{
+      {OutputFormat::table,
+       [](const NoiseResult& r, const ReportContext& c) { return noise_table(r, c); }},
+      {OutputFormat::csv, noise_csv},
+      {OutputFormat::json, noise_json},
+  };
+  return writers;
+}
+
 std::string noise_table(const NoiseResult& r, const ReportContext& context, std::size_t top) {
   std::string out = report_header(context);
   out += fmt::format("Noise at {} over {}Hz..{}Hz, {:.2f} C ({:.2f} K){}\n\n", r.probe.text,

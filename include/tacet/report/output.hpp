@@ -3,13 +3,18 @@
 
 #include <optional>
 #include <string>
+#include <vector>
 
 namespace tacet {
 
-enum class OutputFormat { table, csv, json };
+/// Every format some analysis may write; which ones a given analysis has is
+/// its Writers table (writers.hpp).
+enum class OutputFormat { table, csv, json, svg };
 const char* to_string(OutputFormat format);
 /// nullopt for an unknown name.
 std::optional<OutputFormat> parse_output_format(const std::string& text);
+/// "table", "table or json", "table, csv or json": for help texts and messages.
+std::string format_names(const std::vector<OutputFormat>& formats);
 
 /// What every report header names: the netlist and its title.
 struct ReportContext {

@@ -8,8 +8,12 @@
 
 #include "tacet/analysis/ac.hpp"
 #include "tacet/report/output.hpp"
+#include "tacet/report/writers.hpp"
 
 namespace tacet {
+
+/// table, csv, json.
+const Writers<AcResult>& ac_writers();
 
 std::string ac_table(const AcResult& result, const ReportContext& context);
 

@@ -8,17 +8,26 @@
 #include "tacet/analysis/bias.hpp"
 #include "tacet/analysis/headroom.hpp"
 #include "tacet/report/output.hpp"
+#include "tacet/report/writers.hpp"
 
 namespace tacet {
+
+/// What `tacet bias` reports: the operating point and the headroom at the level.
+struct BiasReport {
+  BiasResult bias;
+  HeadroomResult headroom;
+};
+
+/// table, csv, json.
+const Writers<BiasReport>& bias_writers();
 
 /// Op amps (nominal output, worst-case band, limits, ok, largest offsets),
 /// warnings, the headroom at the level (or a line saying none is declared),
 /// cautions, then every node's nominal, worst and rss.
-std::string bias_table(const BiasResult& bias, const HeadroomResult& headroom,
-                       const ReportContext& context);
+std::string bias_table(const BiasReport& report, const ReportContext& context);
 
 /// node,nominal,worst,rss (V), one row per node.
-std::string bias_csv(const BiasResult& bias);
+std::string bias_csv(const BiasReport& report);
 
 /// {"analysis":"bias","file","title","nodes":{NAME:V},"offset":{NAME:{"worst","rss"}},
 ///  "opamps":[{"name","out","nominal","low","high","limit_low","limit_high","ok",
@@ -30,7 +39,6 @@ std::string bias_csv(const BiasResult& bias);
 ///                         "slew":{"needed","available","f","ok"}}],
 ///              "warnings":[...],"cautions":[...]}}
 /// Limits without rails, and ok when nothing was checked, are null.
-std::string bias_json(const BiasResult& bias, const HeadroomResult& headroom,
-                      const ReportContext& context);
+std::string bias_json(const BiasReport& report, const ReportContext& context);
 
 }  // namespace tacet

@@ -6,8 +6,12 @@
 
 #include "tacet/analysis/check.hpp"
 #include "tacet/report/output.hpp"
+#include "tacet/report/writers.hpp"
 
 namespace tacet {
+
+/// table, json.
+const Writers<CheckResult>& check_writers();
 
 std::string check_table(const CheckResult& result, const ReportContext& context);
 /// {"analysis":"check","file","title","specs":[{"name","kind","pass","value","limit","margin","unit"}],"failed"}

@@ -5,6 +5,7 @@
 
 #include "tacet/analysis/diff.hpp"
 #include "tacet/report/output.hpp"
+#include "tacet/report/writers.hpp"
 
 namespace tacet {
 
@@ -12,6 +13,9 @@ struct DiffContext {
   ReportContext old_side;
   ReportContext new_side;
 };
+
+/// table, json.
+const Writers<DiffResult, DiffContext>& diff_writers();
 
 std::string diff_table(const DiffResult& result, const DiffContext& context);
 /// {"analysis":"diff","old":{file,title},"new":{...},"circuit":[{"change","what","name","before","after"}],

@@ -13,8 +13,12 @@
 
 #include "tacet/analysis/noise.hpp"
 #include "tacet/report/output.hpp"
+#include "tacet/report/writers.hpp"
 
 namespace tacet {
+
+/// table, csv, json.
+const Writers<NoiseResult>& noise_writers();
 
 /// `top`: how many contributors get a row; the rest are summed on one line.
 std::string noise_table(const NoiseResult& result, const ReportContext& context,

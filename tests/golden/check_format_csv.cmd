@@ -1,0 +1,4 @@
+check
+@/check_rc.tacet
+--format
+csv
