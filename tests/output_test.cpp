@@ -5,6 +5,7 @@
 #include <sstream>
 
 #include "tacet/common/errors.hpp"
+#include "tacet/common/input_files.hpp"
 #include "tacet/report/output.hpp"
 
 using namespace tacet;
@@ -50,4 +51,68 @@ TEST_CASE("format names read as a list with 'or' before the last", "[output]") {
   CHECK(format_names({OutputFormat::table, OutputFormat::json}) == "table or json");
   CHECK(format_names({OutputFormat::table, OutputFormat::csv, OutputFormat::json}) ==
         "table, csv or json");
+}
+
+// ---- nothing lost: what --output may and may not replace --------------------
+
+namespace {
+
+struct Folder {
+  fs::path path;
+  explicit Folder(const std::string& name) : path(fs::temp_directory_path() / name) {
+    fs::remove_all(path);
+    fs::create_directories(path);
+  }
+  ~Folder() {
+    std::error_code ignored;
+    fs::permissions(path, fs::perms::owner_all, ignored);
+    fs::remove_all(path, ignored);
+  }
+  int entries() const {
+    int n = 0;
+    for ([[maybe_unused]] const auto& e : fs::directory_iterator(path)) ++n;
+    return n;
+  }
+};
+
+}  // namespace
+
+TEST_CASE("output refuses to replace a file this run read as input", "[output]") {
+  Folder folder("tacet_output_input");
+  const fs::path netlist = folder.path / "stage.tacet";
+  std::ofstream(netlist) << "title \"x\"\n";
+  note_input_file(netlist.string());
+  CHECK_THROWS_AS(write_output(netlist.string(), "results\n"), InputError);
+  // Through a symlink or another spelling of the same path, too.
+  fs::create_symlink(netlist, folder.path / "link.tacet");
+  CHECK_THROWS_AS(write_output((folder.path / "link.tacet").string(), "x"), InputError);
+  CHECK_THROWS_AS(write_output((folder.path / "." / "stage.tacet").string(), "x"), InputError);
+  CHECK(slurp(netlist) == "title \"x\"\n");
+}
+
+TEST_CASE("output writes through a symlink and keeps the link", "[output]") {
+  Folder folder("tacet_output_symlink");
+  const fs::path target = folder.path / "real.csv";
+  std::ofstream(target) << "old\n";
+  fs::create_symlink(target, folder.path / "link.csv");
+  write_output((folder.path / "link.csv").string(), "new\n");
+  CHECK(fs::is_symlink(folder.path / "link.csv"));
+  CHECK(slurp(target) == "new\n");
+  CHECK(folder.entries() == 2);
+}
+
+TEST_CASE("output to a device writes into it instead of replacing it", "[output]") {
+  write_output("/dev/null", "discarded\n");
+  CHECK(fs::is_character_file("/dev/null"));
+}
+
+TEST_CASE("output refuses a read-only file and a folder, and leaves no temporary", "[output]") {
+  Folder folder("tacet_output_readonly");
+  const fs::path locked = folder.path / "locked.json";
+  std::ofstream(locked) << "keep\n";
+  fs::permissions(locked, fs::perms::owner_read | fs::perms::group_read | fs::perms::others_read);
+  CHECK_THROWS_AS(write_output(locked.string(), "x"), InputError);
+  CHECK(slurp(locked) == "keep\n");
+  CHECK_THROWS_AS(write_output(folder.path.string(), "x"), InputError);
+  CHECK(folder.entries() == 1);
 }
