@@ -1,5 +1,6 @@
 #include "tacet/elaborate/elaborate.hpp"
 
+#include <algorithm>
 #include <fmt/format.h>
 
 #include "elaborate/elaborator.hpp"
@@ -37,32 +38,58 @@ std::optional<Circuit> Elaborator::run(const std::string& path) {
 // ---- files ----------------------------------------------------------------
 
 void Elaborator::load_file(const std::string& path, SourceLocation included_from) {
-  for (const auto& open : include_stack_) {
-    if (open != path) continue;
-    std::string chain;
-    for (const auto& p : include_stack_) chain += p + " -> ";
-    diagnostics_.error(included_from, fmt::format("include cycle: {}{}", chain, path),
-                       "a file may not include itself, directly or through others");
-    return;
-  }
-  if (loaded_.count(path)) return;  // a library included twice is read once
+  const std::string identity = reader_.identity(path);
+  if (report_include_cycle(path, identity, included_from)) return;
+  if (loaded_.count(identity)) return;  // a library included twice is read once
   auto text = reader_.read(path);
   if (!text) {
-    std::string hint = included_from.file >= 0 ? "include paths are relative to the including file" : "";
-    if (auto revision = split_revision(path))
-      hint = fmt::format("git show {}:./{} found nothing: check the revision and the path (relative to "
-                         "this folder)", revision->first, revision->second);
-    diagnostics_.error(included_from, fmt::format("cannot read '{}'", path), hint);
+    report_unreadable(path, included_from);
     return;
   }
-  loaded_.insert(path);
-  int file = sources_.add(path, std::move(*text));
+  loaded_.insert(identity);
+  const int file = sources_.add(path, std::move(*text));
+  if (!ends_with_netlist_suffix(path)) sources_.set_quotable(file, false);
+  if (auto problem = check_encoding(sources_.file(file).text)) {
+    sources_.set_quotable(file, false);
+    diagnostics_.add({Severity::error, SourceLocation{file, problem->offset}, problem->length,
+                      problem->message, "save the file as UTF-8 text"});
+    return;
+  }
   auto netlist = parse_netlist(sources_.file(file).text, file, diagnostics_);
   if (!netlist) return;
   netlists_.push_back(std::make_unique<ast::Netlist>(std::move(*netlist)));
   include_stack_.push_back(path);
+  include_identities_.push_back(identity);
   collect(*netlists_.back(), file);
   include_stack_.pop_back();
+  include_identities_.pop_back();
+}
+
+bool Elaborator::report_include_cycle(const std::string& path, const std::string& identity,
+                                      SourceLocation included_from) {
+  if (std::find(include_identities_.begin(), include_identities_.end(), identity) ==
+      include_identities_.end())
+    return false;
+  std::string chain;
+  for (const auto& p : include_stack_) chain += p + " -> ";
+  diagnostics_.error(included_from, fmt::format("include cycle: {}{}", chain, path),
+                     "a file may not include itself, directly or through others");
+  return true;
+}
+
+void Elaborator::report_unreadable(const std::string& path, SourceLocation included_from) {
+  std::string hint = included_from.file >= 0 ? "include paths are relative to the including file" : "";
+  if (auto revision = split_revision(path))
+    hint = fmt::format("git show {}:./{} found nothing: check the revision and the path (relative to "
+                       "this folder)", revision->first, revision->second);
+  const std::string why = reader_.why_unreadable(path);
+  diagnostics_.error(included_from,
+                     fmt::format("cannot read '{}'{}", path, why.empty() ? "" : ": " + why), hint);
+}
+
+bool Elaborator::ends_with_netlist_suffix(const std::string& path) {
+  constexpr std::string_view suffix = ".tacet";
+  return path.size() >= suffix.size() && path.compare(path.size() - suffix.size(), suffix.size(), suffix) == 0;
 }
 
 void Elaborator::collect(const ast::Netlist& netlist, int file) {
@@ -128,8 +155,8 @@ void Elaborator::declare_param(const ast::Param& param, int file, Scope& scope,
 void Elaborator::declare_ambient(const ast::Ambient& ambient, int file) {
   auto t = evaluate(ambient.value, file, globals_, Dimension::temperature, diagnostics_);
   if (!t) return;
-  if (*t < -273.15) {
-    error(file, extent(ambient.value), "temperature below absolute zero");
+  if (const std::string problem = ambient_problem(*t); !problem.empty()) {
+    error(file, extent(ambient.value), problem);
     return;
   }
   circuit_.ambient_celsius = *t;
@@ -322,9 +349,9 @@ Circuit load_circuit(const std::string& path, const ElaborateOptions& options,
   // `REV:path` reads that revision from git, includes too (tacet diff, check).
   std::unique_ptr<FileReader> reader;
   if (auto revision = split_revision(path))
-    reader = std::make_unique<RevisionFileReader>(revision->first);
+    reader = std::make_unique<RevisionFileReader>(revision->first, options.confine_includes);
   else
-    reader = std::make_unique<DiskFileReader>();
+    reader = std::make_unique<DiskFileReader>(options.confine_includes);
   auto circuit = elaborate_file(path, *reader, sources, diagnostics, options);
   if (!circuit) throw InputError(diagnostics.render_all());
   if (warnings) *warnings = diagnostics.render_all();

@@ -48,6 +48,10 @@ class Elaborator {
  private:
   // elaborate.cpp: files and declarations
   void load_file(const std::string& path, SourceLocation included_from);
+  bool report_include_cycle(const std::string& path, const std::string& identity,
+                            SourceLocation included_from);
+  void report_unreadable(const std::string& path, SourceLocation included_from);
+  static bool ends_with_netlist_suffix(const std::string& path);
   void collect(const ast::Netlist& netlist, int file);
   void declare_param(const ast::Param& param, int file, Scope& scope, const std::string& prefix);
   void declare_supply(const ast::Supply& supply, int file);
@@ -92,7 +96,8 @@ class Elaborator {
   Circuit circuit_;
   Scope globals_;
   std::vector<std::unique_ptr<ast::Netlist>> netlists_;  // keeps nodes alive
-  std::vector<std::string> include_stack_;
+  std::vector<std::string> include_stack_;       ///< the paths as written, for messages
+  std::vector<std::string> include_identities_;  ///< the same files by FileReader::identity
   std::set<std::string> loaded_;
   std::vector<From<ast::Instance>> top_instances_;
   std::map<std::string, From<ast::Block>> blocks_;

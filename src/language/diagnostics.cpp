@@ -60,23 +60,55 @@ int Diagnostics::error_count() const {
   }));
 }
 
+namespace {
+
+/// Lines longer than this are shown as a window around the column, so a
+/// megabyte-long line costs a screenful, not a megabyte per diagnostic.
+constexpr std::size_t kShownLineBytes = 160;
+
+struct ShownLine {
+  std::string text;
+  std::size_t column_byte = 0;
+};
+
+ShownLine window_around(std::string_view line, std::size_t column_byte) {
+  if (line.size() <= kShownLineBytes) return {std::string(line), column_byte};
+  std::size_t begin = column_byte > kShownLineBytes / 2 ? column_byte - kShownLineBytes / 2 : 0;
+  while (begin > 0 && is_utf8_continuation(line[begin])) --begin;
+  std::size_t end = std::min(line.size(), begin + kShownLineBytes);
+  while (end < line.size() && is_utf8_continuation(line[end])) ++end;
+  const std::string before = begin > 0 ? "..." : "";
+  const std::string after = end < line.size() ? "..." : "";
+  return {before + std::string(line.substr(begin, end - begin)) + after,
+          column_byte - begin + before.size()};
+}
+
+}  // namespace
+
 std::string Diagnostics::render(const Diagnostic& d) const {
   std::string out;
   if (d.where.file < 0) {
-    out = std::string(severity_word(d.severity)) + ": " + d.message + '\n';
+    out = printable(std::string(severity_word(d.severity)) + ": " + d.message) + '\n';
   } else {
     const SourceFile& file = sources_->file(d.where.file);
     const LineColumn at = sources_->line_column(d.where);
     const std::string_view line = sources_->line_text(d.where);
     const std::size_t line_begin = static_cast<std::size_t>(line.data() - file.text.data());
     const std::size_t column_byte = std::min<std::size_t>(d.where.offset, file.text.size()) - line_begin;
-    out = file.path + ':' + std::to_string(at.line) + ':' + std::to_string(at.column) + ": " +
-          severity_word(d.severity) + ": " + d.message + '\n';
-    out.append(line);
-    out += '\n';
-    out += caret_line(line, column_byte, d.length);
+    out = printable(file.path + ':' + std::to_string(at.line) + ':' + std::to_string(at.column) +
+                    ": " + severity_word(d.severity) + ": " + d.message) +
+          '\n';
+    if (file.quotable) {
+      const ShownLine shown = window_around(line, column_byte);
+      const std::string text = printable(shown.text);
+      const std::size_t room = text.size() - std::min(text.size(), shown.column_byte);
+      out += text;
+      out += '\n';
+      out += caret_line(text, shown.column_byte,
+                        static_cast<std::uint32_t>(std::min<std::size_t>(d.length, std::max<std::size_t>(room, 1))));
+    }
   }
-  if (!d.hint.empty()) out += "hint: " + d.hint + '\n';
+  if (!d.hint.empty()) out += printable("hint: " + d.hint) + '\n';
   return out;
 }
 

@@ -23,6 +23,9 @@ struct Override {
 struct ElaborateOptions {
   std::vector<Override> overrides;
   std::optional<double> ambient_celsius;  ///< --ambient, wins over the netlist's
+  /// --confine-includes: every file read must lie in this folder once symlinks
+  /// are resolved; empty: anywhere the user can read.
+  std::string confine_includes;
 };
 
 /// Parses `path` (through `reader`, so tests can stay in memory) and everything

@@ -23,7 +23,29 @@ struct SourceLocation {
 struct SourceFile {
   std::string path;  ///< as the user or the including file wrote it, resolved
   std::string text;
+  /// Whether a diagnostic may quote this file's lines. Off for a file that does
+  /// not look like a netlist (its name does not end in .tacet, or its bytes are
+  /// not text): a mistyped include must not print another file's contents.
+  bool quotable = true;
 };
+
+/// The largest file `include` reads: far beyond any netlist, small enough that
+/// a wrong path (a disk image, a log) fails at once.
+inline constexpr std::size_t kLargestSourceFile = 64U << 20;
+
+/// What is wrong with the bytes of a netlist, or nullopt when it is valid
+/// UTF-8 without NUL or control characters (tab, line feed and carriage return
+/// are fine). `offset` is the first offending byte.
+struct EncodingProblem {
+  std::uint32_t offset = 0;
+  std::uint32_t length = 1;
+  std::string message;
+};
+std::optional<EncodingProblem> check_encoding(std::string_view text);
+
+/// `text` with every byte check_encoding would refuse replaced by '?', so a
+/// quoted line cannot carry a NUL or an escape sequence to the terminal.
+std::string printable(std::string_view text);
 
 /// Whether a byte continues a UTF-8 sequence (10xxxxxx).
 inline bool is_utf8_continuation(char c) { return (static_cast<unsigned char>(c) & 0xC0U) == 0x80U; }
@@ -43,6 +65,8 @@ class SourceManager {
  public:
   /// Keeps the text; returns the id that SourceLocation::file refers to.
   int add(std::string path, std::string text);
+  /// Marks a file whose lines diagnostics must not quote.
+  void set_quotable(int id, bool quotable) { files_.at(static_cast<std::size_t>(id)).quotable = quotable; }
   const SourceFile& file(int id) const { return files_.at(static_cast<std::size_t>(id)); }
   int size() const { return static_cast<int>(files_.size()); }
   LineColumn line_column(SourceLocation where) const;
@@ -59,11 +83,29 @@ class FileReader {
   virtual ~FileReader() = default;
   /// The file's text, or nullopt when it cannot be read.
   virtual std::optional<std::string> read(const std::string& path) = 0;
+  /// Why the last read of `path` failed, in words for the error message
+  /// ("it is a folder"); empty when there is nothing more to say.
+  virtual std::string why_unreadable(const std::string& /*path*/) { return {}; }
+  /// What identifies the file whatever the path spelling: its real path on a
+  /// disk, so a library reached through a symlinked folder is read once.
+  virtual std::string identity(const std::string& path) { return path; }
 };
 
+/// Reads regular files only (a folder, a device or a pipe is refused before
+/// it is opened, so `include "/dev/zero"` cannot read forever), up to
+/// kLargestSourceFile. With a confinement folder, every file must lie inside
+/// it after symlinks are resolved (`--confine-includes`, for netlists from
+/// untrusted pull requests).
 class DiskFileReader final : public FileReader {
  public:
+  DiskFileReader() = default;
+  explicit DiskFileReader(std::string confine_to);
   std::optional<std::string> read(const std::string& path) override;
+  std::string why_unreadable(const std::string& path) override;
+  std::string identity(const std::string& path) override;
+
+ private:
+  std::string confine_to_;  ///< real path of the folder; empty: anywhere
 };
 
 class MemoryFileReader final : public FileReader {
@@ -81,8 +123,11 @@ class MemoryFileReader final : public FileReader {
 /// revision: resolve_relative keeps the `REV:` prefix on included paths.
 class RevisionFileReader final : public FileReader {
  public:
-  explicit RevisionFileReader(std::string revision) : revision_(std::move(revision)) {}
+  explicit RevisionFileReader(std::string revision, std::string confine_to = {})
+      : revision_(std::move(revision)), disk_(std::move(confine_to)) {}
   std::optional<std::string> read(const std::string& path) override;
+  std::string why_unreadable(const std::string& path) override;
+  std::string identity(const std::string& path) override;
 
  private:
   std::string revision_;
@@ -90,7 +135,8 @@ class RevisionFileReader final : public FileReader {
 };
 
 /// Splits "REV:path" into its revision and path; nullopt for a plain path
-/// (no ':' before the first '/', or a path that exists on disk).
+/// (no ':', or a path that exists on disk). A revision that starts with '-'
+/// is never one: it would reach git as an option.
 std::optional<std::pair<std::string, std::string>> split_revision(const std::string& spec);
 
 /// `relative` as seen from the folder of `including_file` (absolute paths stay).
