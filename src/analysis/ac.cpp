@@ -55,6 +55,13 @@ std::string Sweep::validate() const {
     return fmt::format("--per-decade {} must be at least 1", per_decade);
   if (kind == SweepKind::linear && points < 2)
     return fmt::format("--points {} must be at least 2", points);
+  const double count = kind == SweepKind::linear
+                           ? static_cast<double>(points)
+                           : std::ceil(std::log10(to / from) * per_decade) + 1;
+  if (count > static_cast<double>(kMostSweepPoints))
+    return fmt::format("{} {} asks for {:.0f} points; one sweep has at most {}",
+                       kind == SweepKind::linear ? "--points" : "--per-decade",
+                       kind == SweepKind::linear ? points : per_decade, count, kMostSweepPoints);
   return {};
 }
 

@@ -7,6 +7,13 @@
 
 namespace tacet {
 
+std::string ambient_problem(double celsius) {
+  if (!(celsius > kColdestCelsius)) return "temperature at or below absolute zero";
+  if (!(celsius <= kHottestCelsius))
+    return "temperature above 1000 C (1273.15 K), beyond anything tacet models";
+  return {};
+}
+
 const char* to_keyword(ElementKind kind) {
   switch (kind) {
     case ElementKind::resistor:

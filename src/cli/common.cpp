@@ -31,6 +31,9 @@ void add_common_options(CLI::App& command, CommonOptions& options,
                      "Override a param, an element value (R1=12k, F1.R1=12k) or a model "
                      "parameter (quiet_bipolar.en=2n); repeatable");
   command.add_option("--ambient", options.ambient, "Ambient temperature (25C, 300K)");
+  command.add_option("--confine-includes", options.confine_includes,
+                     "Refuse to read any file outside this folder (symlinks resolved); for "
+                     "netlists from untrusted sources");
 }
 
 double parse_quantity(const std::string& option, const std::string& text, Dimension dimension) {
@@ -95,17 +98,19 @@ void add_sweep_options(CLI::App& command, SweepFlags& flags) {
 
 Sweep parse_sweep(const SweepFlags& flags) {
   Sweep sweep;
-  if (!flags.at.empty()) {
+  if (flags.at) {
+    if (flags.at->empty())
+      throw InputError("error: --at must list at least one frequency\nhint: write --at 100,1k,10k\n");
     sweep.kind = SweepKind::list;
-    sweep.at = parse_quantity_list("--at", flags.at, Dimension::frequency);
+    sweep.at = parse_quantity_list("--at", *flags.at, Dimension::frequency);
   } else {
     sweep.from = parse_quantity("--from", flags.from, Dimension::frequency);
     sweep.to = parse_quantity("--to", flags.to, Dimension::frequency);
-    if (flags.points != 0) {
+    if (flags.points) {
       sweep.kind = SweepKind::linear;
-      sweep.points = flags.points;
-    } else if (flags.per_decade != 0) {
-      sweep.per_decade = flags.per_decade;
+      sweep.points = *flags.points;
+    } else if (flags.per_decade) {
+      sweep.per_decade = *flags.per_decade;
     }
   }
   if (std::string problem = sweep.validate(); !problem.empty())
@@ -121,8 +126,12 @@ Circuit load(const CommonOptions& options, ReportContext& context) {
       throw InputError(fmt::format("error: --set '{}' is not NAME=VALUE\nhint: write --set R1=12k\n", assignment));
     elaborate.overrides.push_back({assignment.substr(0, eq), assignment.substr(eq + 1)});
   }
-  if (!options.ambient.empty())
+  if (!options.ambient.empty()) {
     elaborate.ambient_celsius = parse_quantity("--ambient", options.ambient, Dimension::temperature);
+    if (const std::string problem = ambient_problem(*elaborate.ambient_celsius); !problem.empty())
+      throw InputError(fmt::format("error: --ambient {}: {}\n", options.ambient, problem));
+  }
+  elaborate.confine_includes = options.confine_includes;
   std::string warnings;
   Circuit circuit = load_circuit(options.file, elaborate, &warnings);
   std::cerr << warnings;

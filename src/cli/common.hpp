@@ -2,6 +2,7 @@
 // Flags every analysis shares (--format --output --set --ambient) and the
 // first stages of the pipeline that every subcommand runs alike.
 
+#include <optional>
 #include <string>
 #include <vector>
 
@@ -24,6 +25,7 @@ struct CommonOptions {
   std::string ambient;              ///< temperature, e.g. 40C; empty: the netlist's
   std::string command;              ///< "tacet ac", for messages
   std::vector<OutputFormat> formats;  ///< what the command's writers have
+  std::string confine_includes;     ///< folder every file read must lie in; empty: anywhere
 };
 
 /// The netlist argument, --format (from `formats`, the analysis' Writers),
@@ -63,9 +65,9 @@ Result analyse_and_write(const CommonOptions& options, const Writers<Result>& wr
 struct SweepFlags {
   std::string from = "10";
   std::string to = "100k";
-  int per_decade = 0;  ///< 0: the default of Sweep
-  int points = 0;      ///< non-zero: a linear sweep
-  std::string at;      ///< non-empty: a list
+  std::optional<int> per_decade;  ///< given: a log sweep with this density
+  std::optional<int> points;      ///< given: a linear sweep
+  std::optional<std::string> at;  ///< given: a list (an empty one is an error)
 };
 
 /// --from --to --per-decade --points --at, with their exclusions.

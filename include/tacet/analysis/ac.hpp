@@ -15,6 +15,11 @@ namespace tacet {
 enum class SweepKind { log, linear, list };
 const char* to_string(SweepKind kind);
 
+/// The most points one sweep may have: far more than any plot or spec needs,
+/// few enough that a typo (--points 2000000000) is refused instead of
+/// exhausting memory.
+inline constexpr long long kMostSweepPoints = 1000000;
+
 struct Sweep {
   SweepKind kind = SweepKind::log;
   double from = 10;      ///< Hz, first point of a log or linear sweep

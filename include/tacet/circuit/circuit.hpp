@@ -88,6 +88,13 @@ struct Element {
   std::complex<double> ac_phasor() const;
 };
 
+/// The ambient temperatures tacet models, in degrees Celsius: above absolute
+/// zero, and no hotter than any circuit board survives. Empty when `celsius`
+/// is inside, else the words that say why not.
+inline constexpr double kColdestCelsius = -273.15;
+inline constexpr double kHottestCelsius = 1000.0;
+std::string ambient_problem(double celsius);
+
 struct Circuit {
   std::string title;
   double ambient_celsius = 25.0;
