@@ -1,0 +1,4 @@
+show
+@/rc_lowpass.tacet
+--ambient
+1e308K

@@ -1,0 +1,2 @@
+show
+@/include_folder.tacet

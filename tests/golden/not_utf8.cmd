@@ -1,0 +1,2 @@
+show
+@/not_utf8.tacet

@@ -1,0 +1,3 @@
+show
+--
+--output=@/written:by-git

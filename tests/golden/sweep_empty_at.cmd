@@ -1,0 +1,5 @@
+ac
+@/rc_lowpass.tacet
+--probe
+out
+--at=

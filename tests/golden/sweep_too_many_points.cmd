@@ -1,0 +1,6 @@
+ac
+@/rc_lowpass.tacet
+--probe
+out
+--points
+2000000000

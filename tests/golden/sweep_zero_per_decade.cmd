@@ -1,0 +1,6 @@
+ac
+@/rc_lowpass.tacet
+--probe
+out
+--per-decade
+0
