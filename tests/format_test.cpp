@@ -34,3 +34,15 @@ TEST_CASE("dB and degrees of a phasor", "[format]") {
   CHECK(to_degrees({-1, 0}) == Approx(180));
   CHECK(std::isinf(to_db({0, 0})));
 }
+
+TEST_CASE("SI formatting uses the language's prefixes f to T and e-notation beyond them", "[format]") {
+  // The prefixes are those of SI (BIPM, The International System of Units, 9th ed., table 7).
+  CHECK(format_si(1e12) == "1T");               // 1 THz printed 1000GHz before
+  CHECK(format_si(2.2e-15) == "2.2f");
+  CHECK(format_si(9.99e-306) == "9.99e-306");   // was "9.99e-306f"
+  CHECK(format_si(1e299) == "1e299");           // was "1e+299G"
+  CHECK(format_si(-3e16) == "-3e16");
+  CHECK(format_si_fixed(1e-20) == "1.000e-20"); // was "0.000f"
+  CHECK(format_si(4.9e-324) == "4.941e-324");    // a subnormal threw std::out_of_range
+  CHECK(format_si(999.96e12, 4) == "1e15");
+}
