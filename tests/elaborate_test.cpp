@@ -424,3 +424,36 @@ TEST_CASE("the Greek mu is a micro prefix like the micro sign", "[elaborate]") {
   CHECK(r.circuit->elements[0].value == Approx(10e-6));
   CHECK(r.circuit->elements[1].value == Approx(10e-6));
 }
+
+TEST_CASE("blocks nested beyond 64 levels are refused before the stack is exhausted", "[elaborate]") {
+  std::string text = "vsrc V (in, gnd) ac=1\nuse top (in, gnd) b0\n";
+  for (int i = 0; i < 10000; ++i)
+    text += "block b" + std::to_string(i) + " (a, b) {\n  use X (a, b) b" + std::to_string(i + 1) + "\n}\n";
+  text += "block b10000 (a, b) {\n  res R (a, b) 1k\n}\n";
+  const auto result = testing::elaborate_text(text);
+  CHECK_FALSE(result.circuit);
+  CHECK(result.diagnostics.find("error: blocks nested more than 64 deep") != std::string::npos);
+}
+
+TEST_CASE("a byte that is not UTF-8 is reported at its line and column, unquoted", "[elaborate]") {
+  // UTF-8 is RFC 3629; 0xFF never occurs in it.
+  const auto result = testing::elaborate_text("title \"x\"\nres R1 (a, gnd) 1k\xFF\n");
+  CHECK_FALSE(result.circuit);
+  CHECK(result.diagnostics ==
+        "main.tacet:2:19: error: byte 0xFF is not UTF-8 (netlists are read as UTF-8)\n"
+        "hint: save the file as UTF-8 text\n");
+}
+
+TEST_CASE("a NUL byte is an error, not the end of every message after it", "[elaborate]") {
+  const auto result = testing::elaborate_text(std::string("res R1 (a, gnd) 1k\nres R2\0 (a, gnd) 1k\n", 41));
+  CHECK_FALSE(result.circuit);
+  CHECK(result.diagnostics.find("main.tacet:2:7: error: a NUL byte: a netlist is text") == 0);
+}
+
+TEST_CASE("an included file that is not a .tacet netlist is never quoted", "[elaborate]") {
+  const auto result =
+      testing::elaborate_text("include \"secrets.txt\"\n", {{"secrets.txt", "password hunter2\n"}});
+  CHECK_FALSE(result.circuit);
+  CHECK(result.diagnostics.find("secrets.txt:1:1: error:") != std::string::npos);
+  CHECK(result.diagnostics.find("hunter2") == std::string::npos);
+}

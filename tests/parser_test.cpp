@@ -655,3 +655,39 @@ TEST_CASE("a lone expression must be the whole text", "[parser]") {
         "^~~~~\n");
   CHECK_FALSE(parse_expression_text("(1 +").expression.has_value());
 }
+
+// ---- bounded depth: no input may exhaust the parser's stack ------------------
+
+TEST_CASE("an expression nested a hundred levels parses, one level more is refused", "[parser]") {
+  auto nested = [](int levels) {
+    return "param x = " + std::string(static_cast<std::size_t>(levels - 1), '(') + "1" +
+           std::string(static_cast<std::size_t>(levels - 1), ')') + "\n";
+  };
+  parse_good(nested(100));
+  const auto outcome = parse_text(nested(101));
+  CHECK_FALSE(outcome.netlist);
+  CHECK(outcome.diagnostics.find("error: expression nested more than 100 levels deep") !=
+        std::string::npos);
+}
+
+TEST_CASE("ten thousand nested parentheses, signs, powers or calls are an error, not a crash",
+          "[parser]") {
+  const std::size_t n = 10000;
+  for (const std::string& text :
+       {"param x = " + std::string(n, '(') + "1" + std::string(n, ')') + "\n",
+        "param x = " + std::string(n, '-') + "1\n",
+        "param x = " + [&] { std::string s; for (std::size_t i = 0; i < n; ++i) s += "2^"; return s; }() + "1\n",
+        "param x = " + [&] { std::string s; for (std::size_t i = 0; i < n; ++i) s += "sqrt("; return s; }() + "1" + std::string(n, ')') + "\n"}) {
+    const auto outcome = parse_text(text);
+    CHECK_FALSE(outcome.netlist);
+    CHECK(outcome.diagnostics.find("levels deep") != std::string::npos);
+  }
+}
+
+TEST_CASE("a line of a megabyte is quoted as a window around the error", "[parser]") {
+  const std::string text = "res R1 (a, b) 1k" + std::string(1 << 20, ' ') + "bogus=\n";
+  const auto outcome = parse_text(text);
+  CHECK_FALSE(outcome.netlist);
+  CHECK(outcome.diagnostics.size() < 1000);
+  CHECK(outcome.diagnostics.find("...") != std::string::npos);
+}

@@ -399,6 +399,11 @@ void Elaborator::expand_block(const ast::Instance& use, int file, const Instance
     error(file, *id, fmt::format("block '{}' uses itself", block.name.text));
     return;
   }
+  if (context.block_stack.size() >= kDeepestBlockNesting) {
+    error(file, *id, fmt::format("blocks nested more than {} deep", kDeepestBlockNesting),
+          "a chain of blocks this deep is a generated netlist gone wrong; flatten it");
+    return;
+  }
   if (!use.connections.second.empty() || use.connections.first.size() != block.ports.size()) {
     error(file, use.connections,
           fmt::format("block '{}' has {} ports, but '{}' connects {}", block.name.text,

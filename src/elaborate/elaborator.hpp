@@ -32,6 +32,10 @@ struct ParsedOverride {
 
 /// Where an instance is being expanded: the dotted prefix ("F1.", "" at top),
 /// the nodes its ports stand for, and the params it sees.
+/// How deep `use` may nest blocks inside blocks: every level is a frame of
+/// the recursive expansion, so the depth is bounded before the stack is.
+inline constexpr std::size_t kDeepestBlockNesting = 64;
+
 struct InstanceContext {
   std::string prefix;
   std::map<std::string, int> ports;

@@ -22,7 +22,13 @@ struct ParseState {
   iterator_type begin = nullptr;
   iterator_type end = nullptr;
   iterator_type statement_start = nullptr;
+  int nesting = 0;  ///< expression levels open at the current position
 };
+
+/// The deepest expression a netlist may write: parentheses, calls, signs and
+/// powers each open a level. Far beyond any real value, and far below the
+/// depth at which the recursive-descent parser would exhaust the stack.
+inline constexpr int kDeepestExpression = 100;
 struct state_tag;
 
 /// A syntax error found by a check of our own (unknown keyword, malformed

@@ -268,7 +268,42 @@ inline auto const sum_operation_def = x3::char_("+-") > product_value;
 inline auto const product_value_def = product[collapse_chain];
 inline auto const product_def = unary >> *product_operation;
 inline auto const product_operation_def = x3::char_("*/") > unary;
-inline auto const unary_def = negation | power_value;
+/// Every way an expression nests (a parenthesis, a call's arguments, a sign, a
+/// power) passes through `unary`, so counting here bounds the recursion.
+template <class Subject>
+struct nesting_directive : x3::unary_parser<Subject, nesting_directive<Subject>> {
+  using base_type = x3::unary_parser<Subject, nesting_directive<Subject>>;
+  static bool const is_pass_through_unary = true;
+  constexpr explicit nesting_directive(Subject const& inner) : base_type(inner) {}
+
+  template <class Iterator, class Context, class RContext, class Attribute>
+  bool parse(Iterator& first, Iterator const& last, Context const& context, RContext& rcontext,
+             Attribute& attribute) const {
+    ParseState& state = x3::get<state_tag>(context);
+    if (state.nesting >= kDeepestExpression)
+      throw syntax_error{first, 1,
+                         "expression nested more than " + std::to_string(kDeepestExpression) +
+                             " levels deep",
+                         "split it into params"};
+    struct Level {
+      int& nesting;
+      explicit Level(int& n) : nesting(++n) {}
+      ~Level() { --nesting; }
+    } level(state.nesting);
+    return this->subject.parse(first, last, context, rcontext, attribute);
+  }
+};
+struct nesting_gen {
+  template <class Subject>
+  constexpr nesting_directive<typename x3::extension::as_parser<Subject>::value_type> operator[](
+      Subject const& inner) const {
+    return nesting_directive<typename x3::extension::as_parser<Subject>::value_type>(
+        x3::as_parser(inner));
+  }
+};
+inline constexpr nesting_gen nested{};
+
+inline auto const unary_def = nested[negation | power_value];
 inline auto const negation_def = x3::char_("+-") > unary;
 inline auto const power_value_def = power[collapse_chain];
 inline auto const power_def = primary >> x3::repeat(0, 1)[power_operation];
