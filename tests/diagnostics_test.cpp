@@ -148,3 +148,26 @@ TEST_CASE("a hint names the nearest choice, else lists them all", "[diagnostics]
   CHECK(tacet::choice_hint("zzzzzz", options, "options") == "options: tol noiseless");
   CHECK(tacet::choice_hint("zzzzzz", {}, "options").empty());
 }
+
+TEST_CASE("after a hundred diagnostics the rest are counted, not kept", "[diagnostics]") {
+  SourceManager sources;
+  const int id = sources.add("a.tacet", "res R1 (a, b) 1k\n");
+  Diagnostics diagnostics(sources);
+  for (int i = 0; i < 5000; ++i) diagnostics.error({id, 0}, "duplicate", {}, 3);
+  CHECK(diagnostics.error_count() == 5000);
+  CHECK(diagnostics.all().size() == Diagnostics::kMostKept);
+  const std::string text = diagnostics.render_all();
+  CHECK(text.find("note: 4900 more errors and 0 other messages not shown") != std::string::npos);
+}
+
+TEST_CASE("a very long quoted name is shown by its ends", "[diagnostics]") {
+  const std::string name(200000, 'x');
+  const std::string text = render_one("res " + name + "\n", 4, 5, "no element named '" + name + "'");
+  CHECK(text.size() < 600);
+  CHECK(text.find("'xxxxxxxxxxxxxxxxxxxxxxxxxxxxxxxx...xxxxxxxxxxxxxxxx'") != std::string::npos);
+}
+
+TEST_CASE("the nearest-name hint skips names far longer than any identifier", "[diagnostics]") {
+  CHECK(tacet::nearest_word(std::string(200000, 'r'), {"res", "cap"}).empty());
+  CHECK(tacet::nearest_word("res", {std::string(200000, 'r')}).empty());
+}

@@ -51,10 +51,17 @@ std::string nearest_word(std::string_view word, const std::vector<std::string>& 
   for (const auto& candidate : candidates) {
     if (lower(candidate) == folded) return candidate;  // only the case differs
   }
+  // No name is this long by intent; a hint would cost its length squared per candidate.
+  constexpr std::size_t kLongestHinted = 64;
+  if (word.size() > kLongestHinted) return {};
   const int limit = std::max(1, static_cast<int>(word.size() / 3));
   std::string best;
   int best_distance = limit + 1;
   for (const auto& candidate : candidates) {
+    // The distance is at least the difference in length: skip the table.
+    const auto gap = candidate.size() > word.size() ? candidate.size() - word.size()
+                                                    : word.size() - candidate.size();
+    if (gap > static_cast<std::size_t>(limit) || candidate.size() > kLongestHinted) continue;
     // A swap of neighbouring letters ('rse' for 'res') is one slip, not two.
     const int distance = edit_table(word, candidate, true);
     if (distance < best_distance) {

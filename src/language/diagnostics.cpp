@@ -3,7 +3,6 @@
 
 #include <algorithm>
 #include <cctype>
-#include <numeric>
 #include <string>
 #include <vector>
 
@@ -54,10 +53,16 @@ void Diagnostics::warning(SourceLocation where, std::string message, std::string
 
 bool Diagnostics::has_errors() const { return error_count() > 0; }
 
-int Diagnostics::error_count() const {
-  return static_cast<int>(std::count_if(list_.begin(), list_.end(), [](const Diagnostic& d) {
-    return d.severity == Severity::error;
-  }));
+int Diagnostics::error_count() const { return errors_; }
+
+void Diagnostics::add(Diagnostic d) {
+  const bool is_error = d.severity == Severity::error;
+  if (is_error) ++errors_;
+  if (list_.size() < kMostKept) {
+    list_.push_back(std::move(d));
+  } else {
+    ++(is_error ? dropped_errors_ : dropped_others_);
+  }
 }
 
 namespace {
@@ -70,6 +75,35 @@ struct ShownLine {
   std::string text;
   std::size_t column_byte = 0;
 };
+
+/// A message quotes names from the input ('R1'); one of 200k characters is
+/// shown by its ends, so a message stays a line.
+std::string shorten_quoted(const std::string& message) {
+  constexpr std::size_t kLongestQuoted = 64;
+  std::string out;
+  std::size_t at = 0;
+  while (at < message.size()) {
+    const auto open = message.find('\'', at);
+    const auto close = open == std::string::npos ? open : message.find('\'', open + 1);
+    if (close == std::string::npos) break;
+    out.append(message, at, open + 1 - at);
+    std::string_view quoted(message.data() + open + 1, close - open - 1);
+    if (quoted.size() > kLongestQuoted) {
+      std::size_t head = kLongestQuoted / 2, tail = quoted.size() - kLongestQuoted / 4;
+      while (head > 0 && is_utf8_continuation(quoted[head])) --head;
+      while (tail < quoted.size() && is_utf8_continuation(quoted[tail])) ++tail;
+      out.append(quoted.substr(0, head));
+      out += "...";
+      out.append(quoted.substr(tail));
+    } else {
+      out.append(quoted);
+    }
+    out += '\'';
+    at = close + 1;
+  }
+  out.append(message, std::min(at, message.size()), std::string::npos);
+  return out;
+}
 
 ShownLine window_around(std::string_view line, std::size_t column_byte) {
   if (line.size() <= kShownLineBytes) return {std::string(line), column_byte};
@@ -88,7 +122,7 @@ ShownLine window_around(std::string_view line, std::size_t column_byte) {
 std::string Diagnostics::render(const Diagnostic& d) const {
   std::string out;
   if (d.where.file < 0) {
-    out = printable(std::string(severity_word(d.severity)) + ": " + d.message) + '\n';
+    out = printable(std::string(severity_word(d.severity)) + ": " + shorten_quoted(d.message)) + '\n';
   } else {
     const SourceFile& file = sources_->file(d.where.file);
     const LineColumn at = sources_->line_column(d.where);
@@ -96,7 +130,7 @@ std::string Diagnostics::render(const Diagnostic& d) const {
     const std::size_t line_begin = static_cast<std::size_t>(line.data() - file.text.data());
     const std::size_t column_byte = std::min<std::size_t>(d.where.offset, file.text.size()) - line_begin;
     out = printable(file.path + ':' + std::to_string(at.line) + ':' + std::to_string(at.column) +
-                    ": " + severity_word(d.severity) + ": " + d.message) +
+                    ": " + severity_word(d.severity) + ": " + shorten_quoted(d.message)) +
           '\n';
     if (file.quotable) {
       const ShownLine shown = window_around(line, column_byte);
@@ -113,8 +147,14 @@ std::string Diagnostics::render(const Diagnostic& d) const {
 }
 
 std::string Diagnostics::render_all() const {
-  return std::accumulate(list_.begin(), list_.end(), std::string{},
-                         [this](std::string all, const Diagnostic& d) { return all + render(d); });
+  std::string all;
+  for (const auto& d : list_) all += render(d);
+  if (dropped_errors_ > 0 || dropped_others_ > 0)
+    all += "note: " + std::to_string(dropped_errors_) + " more error" +
+           (dropped_errors_ == 1 ? "" : "s") + " and " + std::to_string(dropped_others_) +
+           " other message" + (dropped_others_ == 1 ? "" : "s") +
+           " not shown; mend the first ones and run again\n";
+  return all;
 }
 
 }  // namespace tacet

@@ -33,7 +33,10 @@ class Diagnostics {
              std::uint32_t length = 1);
   void warning(SourceLocation where, std::string message, std::string hint = {},
                std::uint32_t length = 1);
-  void add(Diagnostic d) { list_.push_back(std::move(d)); }
+  /// Keeps the first kMostKept diagnostics; later ones are only counted, so
+  /// a file with ten thousand mistakes costs what a hundred do to report.
+  void add(Diagnostic d);
+  static constexpr std::size_t kMostKept = 100;
 
   bool has_errors() const;
   int error_count() const;
@@ -42,12 +45,15 @@ class Diagnostics {
 
   /// One diagnostic as printed: location line, source line, caret line, hint.
   std::string render(const Diagnostic& d) const;
-  /// Every diagnostic, in the order reported.
+  /// Every diagnostic kept, in the order reported, then how many were not.
   std::string render_all() const;
 
  private:
   const SourceManager* sources_;
   std::vector<Diagnostic> list_;
+  int errors_ = 0;          ///< every error reported, kept or not
+  int dropped_errors_ = 0;  ///< errors beyond kMostKept
+  int dropped_others_ = 0;
 };
 
 }  // namespace tacet
