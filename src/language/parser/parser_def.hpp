@@ -30,7 +30,9 @@ namespace tacet::parser {
 
 inline auto const comment = x3::lexeme['#' >> *(x3::char_ - x3::eol)];
 inline auto const continuation = x3::lexeme['\\' >> x3::eol];
-inline auto const skipper = x3::blank | comment | continuation;
+// char_(" \t"), not x3::blank: the standard-encoding classifiers assert (and are
+// undefined in release) on a byte above 0x7F, such as the first of a no-break space.
+inline auto const skipper = x3::char_(" \t") | comment | continuation;
 /// Inside a model's braces a line end is plain space.
 inline auto const model_skipper = skipper | x3::eol;
 
