@@ -326,7 +326,7 @@ Circuit load_circuit(const std::string& path, const ElaborateOptions& options,
   else
     reader = std::make_unique<DiskFileReader>();
   auto circuit = elaborate_file(path, *reader, sources, diagnostics, options);
-  if (!circuit) throw InputError(diagnostics.render_all());
+  if (!circuit) throw InputError::diagnostics(diagnostics.render_all());
   if (warnings) *warnings = diagnostics.render_all();
   return std::move(*circuit);
 }

@@ -59,7 +59,7 @@ void write_output(const std::string& path, const std::string& text) {
     if (!out) {
       std::error_code ignored;
       fs::remove(temporary, ignored);
-      throw InputError(fmt::format("error: cannot write '{}'\n", path));
+      throw InputError::cannot_write(path);
     }
   }
   std::error_code ec;
@@ -67,7 +67,7 @@ void write_output(const std::string& path, const std::string& text) {
   if (ec) {
     std::error_code ignored;
     fs::remove(temporary, ignored);
-    throw InputError(fmt::format("error: cannot write '{}': {}\n", path, ec.message()));
+    throw InputError::cannot_write(path, ec.message());
   }
 }
 
