@@ -25,8 +25,7 @@ int main(int argc, char** argv) {
     const int code = app.exit(e);
     return code == 0 ? 0 : static_cast<int>(tacet::ExitStatus::bad_input);
   } catch (const tacet::Error& e) {
-    const std::string message = e.what();
-    if (!message.empty()) std::cerr << message << (message.back() != '\n' ? "\n" : "");
+    std::cerr << e.what();  // every message ends its own lines (common/errors.hpp)
     return static_cast<int>(e.status());
   } catch (const std::exception& e) {
     std::cerr << "internal error: " << e.what() << "\n";

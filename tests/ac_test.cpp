@@ -251,21 +251,21 @@ TEST_CASE("run_ac rejects a bad sweep with InputError", "[ac]") {
   AcOptions options;
   options.sweep = Sweep{SweepKind::log, 20e3, 10e3, 10, 0, {}};
   CHECK_THROWS_MATCHES(run_ac(rc_lowpass(1, 1), options), InputError,
-                       Catch::Message("error: --from 20k must be below --to 10k"));
+                       Catch::Message("error: --from 20k must be below --to 10k\n"));
 }
 
 TEST_CASE("run_ac rejects an unknown probe with a hint, before any solve", "[ac]") {
   CHECK_THROWS_MATCHES(
       run_ac(rc_lowpass(1, 1), at_frequencies({1.0}, {"oit"})), InputError,
-      Catch::Message("error: unknown node 'oit' in probe 'oit'\nhint: did you mean 'out'?"));
+      Catch::Message("error: unknown node 'oit' in probe 'oit'\nhint: did you mean 'out'?\n"));
   CHECK_THROWS_MATCHES(
       run_ac(rc_lowpass(1, 1), at_frequencies({1.0}, {"otu"})), InputError,
-      Catch::Message("error: unknown node 'otu' in probe 'otu'\nhint: did you mean 'out'?"));
+      Catch::Message("error: unknown node 'otu' in probe 'otu'\nhint: did you mean 'out'?\n"));
   CHECK_THROWS_MATCHES(
       run_ac(rc_lowpass(1, 1), at_frequencies({1.0}, {"i(R2)"})), InputError,
-      Catch::Message("error: unknown element 'R2' in probe 'i(R2)'\nhint: did you mean 'R1'?"));
+      Catch::Message("error: unknown element 'R2' in probe 'i(R2)'\nhint: did you mean 'R1'?\n"));
   CHECK_THROWS_MATCHES(run_ac(rc_lowpass(1, 1), at_frequencies({1.0}, {"out,zzzzzz"})), InputError,
-                       Catch::Message("error: unknown node 'zzzzzz' in probe 'out,zzzzzz'"));
+                       Catch::Message("error: unknown node 'zzzzzz' in probe 'out,zzzzzz'\n"));
 }
 
 TEST_CASE("a numerically singular circuit names the unknown and the frequency", "[ac]") {
@@ -277,7 +277,7 @@ TEST_CASE("a numerically singular circuit names the unknown and the frequency", 
   CHECK_THROWS_MATCHES(
       run_ac(b.circuit, at_frequencies({1e3}, {"a"})), SolveError,
       Catch::Message("error: circuit cannot be solved at 1kHz: the equations do not "
-                     "determine node a (singular matrix)"));
+                     "determine node a (singular matrix)\n"));
 }
 
 TEST_CASE("hierarchical node and element names are probed as plain names", "[ac]") {

@@ -259,15 +259,15 @@ TEST_CASE("the signal-to-noise ratio takes the gain at the geometric centre of t
 TEST_CASE("rejects a probe at an unknown node", "[noise][errors]") {
   const auto circuit = rc_lowpass(1e3, 1e-9);
   CHECK_THROWS_WITH(run_noise(circuit, noise_at({1e3}, "otu", 10, 1e3)),
-                    "error: unknown node 'otu' in probe 'otu'\nhint: did you mean 'out'?");
+                    "error: unknown node 'otu' in probe 'otu'\nhint: did you mean 'out'?\n");
 }
 
 TEST_CASE("rejects a band whose F1 is not below F2 or not above 0", "[noise][errors]") {
   const auto circuit = rc_lowpass(1e3, 1e-9);
   CHECK_THROWS_WITH(run_noise(circuit, noise_at({1e3}, "out", 20e3, 20)),
-                    "error: --band 20k..20: F1 must be below F2");
+                    "error: --band 20k..20: F1 must be below F2\n");
   CHECK_THROWS_WITH(run_noise(circuit, noise_at({1e3}, "out", 0, 20)),
-                    "error: --band 0..20: F1 must be a finite frequency above 0 Hz");
+                    "error: --band 0..20: F1 must be a finite frequency above 0 Hz\n");
   CHECK_THROWS_AS(run_noise(circuit, noise_at({1e3}, "out", 5, 5)), InputError);
 }
 
@@ -277,18 +277,18 @@ TEST_CASE("rejects an input that is not a source", "[noise][errors]") {
   options.input = "R1";
   CHECK_THROWS_WITH(run_noise(circuit, options),
                     "error: --input 'R1' is a res, not a source\n"
-                    "hint: name a vsrc or isrc; the sources are Vin");
+                    "hint: name a vsrc or isrc; the sources are Vin\n");
   options.input = "Vni";
   CHECK_THROWS_WITH(run_noise(circuit, options),
                     "error: --input 'Vni' is not an element of the circuit\n"
-                    "hint: did you mean 'Vin'?");
+                    "hint: did you mean 'Vin'?\n");
 }
 
 TEST_CASE("rejects a signal level without an input source", "[noise][errors]") {
   auto options = noise_at({1e3}, "out", 10, 1e3);
   options.level = 1e-3;
   CHECK_THROWS_WITH(run_noise(rc_lowpass(1e3, 1e-9), options),
-                    "error: --level needs --input: the source that carries the signal");
+                    "error: --level needs --input: the source that carries the signal\n");
 }
 
 TEST_CASE("without --band the band is the sweep's first to last point", "[noise]") {

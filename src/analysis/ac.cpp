@@ -86,7 +86,7 @@ std::vector<double> Sweep::frequencies() const {
 
 AcResult run_ac(const Circuit& circuit, const AcOptions& options) {
   if (auto problem = options.sweep.validate(); !problem.empty())
-    throw InputError("error: " + problem);
+    throw InputError::usage(problem);
   AcResult result;
   for (const auto& text : options.probes)
     result.traces.push_back({resolve_probe(text, circuit), {}});

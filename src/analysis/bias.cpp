@@ -145,8 +145,8 @@ std::string busiest_resistor(const Circuit& circuit, const MnaSystem& mna, const
 void require_finite(const Vector& x, const MnaSystem& mna) {
   for (std::size_t u = 0; u < x.size(); ++u)
     if (!std::isfinite(x[u].real()))
-      throw SolveError(fmt::format("error: circuit cannot be solved at DC: {} is not finite",
-                                   mna.unknown_name(static_cast<int>(u))));
+      throw SolveError::unsolvable_at(
+          0, fmt::format("{} is not finite", mna.unknown_name(static_cast<int>(u))));
 }
 
 void keep_largest(std::vector<OffsetContribution>& all) {

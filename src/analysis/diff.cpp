@@ -85,7 +85,7 @@ AcResult response_of(const Circuit& circuit, const AcOptions& options, const cha
     try {
       resolve_probe(probe, circuit);
     } catch (const InputError& e) {
-      throw InputError(fmt::format("{} revision: {}", side, e.what()));
+      throw e.on_side(std::string(side) + " revision");
     }
   }
   return run_ac(circuit, options);
@@ -212,8 +212,7 @@ DiffResult run_diff(const Circuit& old_circuit, const Circuit& new_circuit, cons
     result.dc = dc_changes(run_bias(old_circuit), run_bias(new_circuit));
   } catch (const SolveError& e) {
     // An AC-coupled circuit without DC paths has no DC point to compare.
-    std::string message = e.what();
-    result.dc_note = message.substr(0, message.find('\n'));
+    result.dc_note = e.sentence();
   }
   if (!old_circuit.specs.empty() || !new_circuit.specs.empty()) {
     const CheckResult before = run_check(old_circuit);

@@ -49,10 +49,10 @@ Band band_of(const Circuit& circuit, const HeadroomOptions& options,
     band.high = std::max(band.high, e.band_high);
   }
   if (band.low > 0) return band;
-  throw InputError(fmt::format(
-      "error: the headroom at the level of '{}' needs a band\n"
-      "hint: add band_low=20Hz band_high=20kHz to '{}', or give --band 20..20k\n",
-      sources.front().name, sources.front().name));
+  const std::string& name = sources.front().name;
+  throw InputError::usage(
+      fmt::format("the headroom at the level of '{}' needs a band", name),
+      fmt::format("add band_low=20Hz band_high=20kHz to '{}', or give --band 20..20k", name));
 }
 
 // The limits of one op amp's pins; NaN where there are no rails.
@@ -179,7 +179,7 @@ std::string HeadroomOptions::validate() const {
 HeadroomResult run_headroom(const Circuit& circuit, const BiasResult& bias,
                             const HeadroomOptions& options) {
   if (auto problem = options.validate(); !problem.empty())
-    throw InputError("error: " + problem + "\n");
+    throw InputError::usage(problem);
   HeadroomResult result;
   result.sources = level_sources(circuit);
   for (const auto& source : result.sources)

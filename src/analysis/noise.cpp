@@ -88,17 +88,17 @@ InputPort resolve_input(const std::string& name, const Circuit& circuit, const M
   const auto index = circuit.find_element(name);
   if (!index) {
     const std::string near = nearest_word(name, sources);
-    throw InputError(fmt::format("error: --input '{}' is not an element of the circuit\nhint: {}",
-                                 name, near.empty() ? listed : "did you mean '" + near + "'?"));
+    throw InputError::usage(fmt::format("--input '{}' is not an element of the circuit", name),
+                            near.empty() ? listed : "did you mean '" + near + "'?");
   }
   const Element& e = circuit.elements[*index];
   if (e.kind == ElementKind::vsource) return {mna.branch_unknown(*index), -1};
   // An isource draws its current out of its first node into its second.
   if (e.kind == ElementKind::isource)
     return {mna.node_unknown(e.nodes[1]), mna.node_unknown(e.nodes[0])};
-  throw InputError(fmt::format("error: --input '{}' is a {}, not a source\nhint: name a vsrc or "
-                               "isrc; {}",
-                               name, to_keyword(e.kind), listed));
+  throw InputError::usage(
+      fmt::format("--input '{}' is a {}, not a source", name, to_keyword(e.kind)),
+      "name a vsrc or isrc; " + listed);
 }
 
 Band band_of(const NoiseOptions& options) {
@@ -210,7 +210,7 @@ std::string NoiseOptions::validate() const {
 }
 
 NoiseResult run_noise(const Circuit& circuit, const NoiseOptions& options) {
-  if (auto problem = options.validate(); !problem.empty()) throw InputError("error: " + problem);
+  if (auto problem = options.validate(); !problem.empty()) throw InputError::usage(problem);
   NoiseResult result;
   result.probe = resolve_probe(options.probe, circuit);
   result.input = options.input;

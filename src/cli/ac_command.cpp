@@ -2,8 +2,6 @@
 
 #include <memory>
 
-#include <fmt/format.h>
-
 #include "commands.hpp"
 #include "common.hpp"
 #include "tacet/analysis/ac.hpp"
@@ -26,7 +24,8 @@ void run(const AcCommandOptions& o) {
   options.probes = o.probes;
   analyse_and_write(o.common, ac_writers(), [&](const Circuit& circuit) {
     if (o.probes.empty())
-      throw InputError("error: tacet ac needs at least one --probe\nhint: --probe out, --probe out,ref or --probe i(R1)\n");
+      throw InputError::usage("tacet ac needs at least one --probe",
+                              "--probe out, --probe out,ref or --probe i(R1)");
     return run_ac(circuit, options);
   });
 }

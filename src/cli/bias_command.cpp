@@ -5,8 +5,6 @@
 #include <memory>
 #include <utility>
 
-#include <fmt/format.h>
-
 #include "commands.hpp"
 #include "common.hpp"
 #include "tacet/analysis/bias.hpp"
@@ -33,7 +31,7 @@ HeadroomOptions headroom_options(const BiasCommandOptions& o) {
     options.band_high = band.to;
   }
   if (std::string problem = options.validate(); !problem.empty())
-    throw InputError(fmt::format("error: {}\n", problem));
+    throw InputError::usage(problem);
   return options;
 }
 

@@ -20,8 +20,9 @@ void setup_check(CLI::App& app) {
     const CheckResult result =
         analyse_and_write(*options, check_writers(), [&](const Circuit& circuit) {
           if (circuit.specs.empty())
-            throw InputError("error: " + options->file + " has no spec lines to check\n"
-                             "hint: write for example: spec gain_1k gain (out) at=1kHz min=19.9dB max=20.1dB\n");
+            throw InputError::usage(
+                options->file + " has no spec lines to check",
+                "write for example: spec gain_1k gain (out) at=1kHz min=19.9dB max=20.1dB");
           return run_check(circuit);
         });
     if (result.failed() > 0) throw SpecFailed();

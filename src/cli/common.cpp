@@ -38,8 +38,7 @@ void add_common_options(CLI::App& command, CommonOptions& options,
 
 double parse_quantity(const std::string& option, const std::string& text, Dimension dimension) {
   auto fail = [&](const std::string& hint) {
-    throw InputError(fmt::format("error: {} '{}' is not {}\n{}", option, text, describe(dimension),
-                                 hint.empty() ? "" : "hint: " + hint + "\n"));
+    throw InputError::bad_value(option, text, describe(dimension), hint);
   };
   double number = 0;
   const char* begin = text.data();
@@ -69,10 +68,10 @@ std::vector<double> parse_quantity_list(const std::string& option, const std::st
 Band parse_band(const std::string& option, const std::string& text) {
   const auto dots = text.find("..");
   if (dots == std::string::npos || dots == 0 || dots + 2 == text.size())
-    throw InputError(fmt::format("error: {} '{}' is not F1..F2\nhint: write {} 20..20k\n", option, text, option));
+    throw InputError::bad_value(option, text, "F1..F2", fmt::format("write {} 20..20k", option));
   const Band band{parse_quantity(option, text.substr(0, dots), Dimension::frequency),
                   parse_quantity(option, text.substr(dots + 2), Dimension::frequency)};
-  if (auto problem = band.validate(); !problem.empty()) throw InputError(fmt::format("error: {}\n", problem));
+  if (auto problem = band.validate(); !problem.empty()) throw InputError::usage(problem);
   return band;
 }
 
@@ -80,8 +79,7 @@ OutputFormat output_format(const CommonOptions& options) {
   const auto format = parse_output_format(options.format);
   if (!format || std::find(options.formats.begin(), options.formats.end(), *format) ==
                      options.formats.end())
-    throw InputError(fmt::format("error: {} has no --format '{}'\nhint: --format {}\n", options.command,
-                                 options.format, format_names(options.formats)));
+    throw InputError::no_format(options.command, options.format, format_names(options.formats));
   return *format;
 }
 
@@ -100,7 +98,7 @@ Sweep parse_sweep(const SweepFlags& flags) {
   Sweep sweep;
   if (flags.at) {
     if (flags.at->empty())
-      throw InputError("error: --at must list at least one frequency\nhint: write --at 100,1k,10k\n");
+      throw InputError::usage("--at must list at least one frequency", "write --at 100,1k,10k");
     sweep.kind = SweepKind::list;
     sweep.at = parse_quantity_list("--at", *flags.at, Dimension::frequency);
   } else {
@@ -114,7 +112,7 @@ Sweep parse_sweep(const SweepFlags& flags) {
     }
   }
   if (std::string problem = sweep.validate(); !problem.empty())
-    throw InputError(fmt::format("error: {}\n", problem));
+    throw InputError::usage(problem);
   return sweep;
 }
 
@@ -123,13 +121,13 @@ Circuit load(const CommonOptions& options, ReportContext& context) {
   for (const auto& assignment : options.set) {
     auto eq = assignment.find('=');
     if (eq == std::string::npos || eq == 0 || eq + 1 == assignment.size())
-      throw InputError(fmt::format("error: --set '{}' is not NAME=VALUE\nhint: write --set R1=12k\n", assignment));
+      throw InputError::bad_value("--set", assignment, "NAME=VALUE", "write --set R1=12k");
     elaborate.overrides.push_back({assignment.substr(0, eq), assignment.substr(eq + 1)});
   }
   if (!options.ambient.empty()) {
     elaborate.ambient_celsius = parse_quantity("--ambient", options.ambient, Dimension::temperature);
     if (const std::string problem = ambient_problem(*elaborate.ambient_celsius); !problem.empty())
-      throw InputError(fmt::format("error: --ambient {}: {}\n", options.ambient, problem));
+      throw InputError::usage(fmt::format("--ambient {}: {}", options.ambient, problem));
   }
   elaborate.confine_includes = options.confine_includes;
   std::string warnings;

@@ -44,8 +44,9 @@ Thresholds parse_thresholds(const std::vector<std::string>& texts) {
     else if (!text.empty() && text.back() == '%')
       t.noise = std::abs(parse_quantity("--fail-above", text, Dimension::ratio));
     else
-      throw InputError(fmt::format("error: --fail-above '{}' needs a unit: dB for gain, deg for phase, "
-                                   "% for a noise total\nhint: --fail-above 0.1dB --fail-above 1deg\n", text));
+      throw InputError::usage(fmt::format("--fail-above '{}' needs a unit: dB for gain, deg for "
+                                          "phase, % for a noise total", text),
+                              "--fail-above 0.1dB --fail-above 1deg");
   }
   return t;
 }
@@ -74,8 +75,8 @@ void run(const DiffCommandOptions& o) {
   options.ac.probes = o.probes;
   if (!o.band.empty()) options.band = parse_band("--band", o.band);
   if (thresholds.noise && !options.band)
-    throw InputError("error: --fail-above with % compares noise totals, which need --band\n"
-                     "hint: --band 20..20k --fail-above 5%\n");
+    throw InputError::usage("--fail-above with % compares noise totals, which need --band",
+                            "--band 20..20k --fail-above 5%");
   const DiffResult result = run_diff(old_circuit, new_circuit, options);
   write_output(o.common.output, diff_writers().write(format, result, context));
   if (exceeds(result, thresholds)) throw SpecFailed();

@@ -3,8 +3,6 @@
 
 #include <memory>
 
-#include <fmt/format.h>
-
 #include "commands.hpp"
 #include "common.hpp"
 #include "tacet/common/errors.hpp"

@@ -353,7 +353,7 @@ Circuit load_circuit(const std::string& path, const ElaborateOptions& options,
   else
     reader = std::make_unique<DiskFileReader>(options.confine_includes);
   auto circuit = elaborate_file(path, *reader, sources, diagnostics, options);
-  if (!circuit) throw InputError(diagnostics.render_all());
+  if (!circuit) throw InputError::diagnostics(diagnostics.render_all());
   if (warnings) *warnings = diagnostics.render_all();
   return std::move(*circuit);
 }

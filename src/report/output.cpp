@@ -88,7 +88,7 @@ void write_in_place(const std::string& path, const std::string& text) {
   std::ofstream out(path, std::ios::binary);
   out << text;
   out.close();
-  if (!out) throw InputError(fmt::format("error: cannot write '{}'\n", path));
+  if (!out) throw InputError::cannot_write(path);
 }
 
 /// A regular file (or a new one) is replaced atomically: a temporary file in
@@ -102,17 +102,17 @@ void replace_atomically(const std::string& path, const fs::path& target, const s
   auto fail = [&](const std::string& why) {
     std::error_code ignored;
     fs::remove(temporary, ignored);
-    throw InputError(fmt::format("error: cannot write '{}'{}\n", path, why));
+    throw InputError::cannot_write(path, why);
   };
   {
     std::ofstream out(temporary, std::ios::binary);
     out << text;
     out.close();
-    if (!out) fail("");
+    if (!out) fail({});
   }
   std::error_code ec;
   fs::rename(temporary, target, ec);
-  if (ec) fail(": " + ec.message());
+  if (ec) fail(ec.message());
 }
 
 }  // namespace
@@ -123,8 +123,8 @@ void write_output(const std::string& path, const std::string& text) {
     return;
   }
   if (is_input_file(path))
-    throw InputError(fmt::format(
-        "error: --output '{}' is an input of this run; writing there would replace it\n", path));
+    throw InputError::usage(fmt::format("--output '{}' is an input of this run", path),
+                            "write the results to another file: this one would be replaced");
   std::error_code ec;
   // A symlink is written through to its target, which keeps the link.
   fs::path target = fs::symlink_status(path, ec).type() == fs::file_type::symlink
@@ -133,7 +133,7 @@ void write_output(const std::string& path, const std::string& text) {
   const auto status = fs::status(target, ec);
   if (fs::exists(status) && !fs::is_regular_file(status)) {
     if (fs::is_directory(status))
-      throw InputError(fmt::format("error: cannot write '{}': it is a folder\n", path));
+      throw InputError::cannot_write(path, "it is a folder");
     write_in_place(path, text);
     return;
   }
@@ -141,7 +141,7 @@ void write_output(const std::string& path, const std::string& text) {
   // whom access() would let through.
   const bool read_only = (status.permissions() & fs::perms::owner_write) == fs::perms::none;
   if (fs::exists(status) && (read_only || ::access(target.c_str(), W_OK) != 0))
-    throw InputError(fmt::format("error: cannot write '{}': the file is read-only\n", path));
+    throw InputError::cannot_write(path, "the file is read-only");
   replace_atomically(path, target, text);
 }
 

@@ -99,16 +99,15 @@ void check_connected_to_gnd(const Circuit& circuit, AnalysisKind kind) {
   if (floating.empty()) return;
   const bool one = floating.size() == 1;
   const std::string who = fmt::format("{} {}", one ? "node" : "nodes", quoted_list(floating));
+  const char* has = one ? "has" : "have";
   if (kind == AnalysisKind::ac)
-    throw SolveError(fmt::format(
-        "error: circuit cannot be solved: {} {} no connection to gnd\n"
-        "hint: every node needs a path to gnd through resistors, capacitors, inductors or "
-        "voltage sources; op-amp inputs and current sources are no such path\n",
-        who, one ? "has" : "have"));
-  throw SolveError(fmt::format(
-      "error: circuit cannot be solved at DC: {} {} no DC path to gnd\n"
-      "hint: at DC capacitors are open; give the node a resistor to a biased node or to gnd\n",
-      who, one ? "has" : "have"));
+    throw SolveError::unsolvable(
+        fmt::format("{} {} no connection to gnd", who, has),
+        "every node needs a path to gnd through resistors, capacitors, inductors or voltage "
+        "sources; op-amp inputs and current sources are no such path");
+  throw SolveError::unsolvable_at(
+      0, fmt::format("{} {} no DC path to gnd", who, has),
+      "at DC capacitors are open; give the node a resistor to a biased node or to gnd");
 }
 
 struct VoltageBranch {
@@ -157,30 +156,32 @@ std::vector<std::size_t> forest_path(const std::vector<std::vector<VoltageBranch
   return path;
 }
 
+// The reason a voltage loop makes the circuit unsolvable, for one analysis kind.
+SolveError loop_error(AnalysisKind kind, const std::string& reason) {
+  return kind == AnalysisKind::dc ? SolveError::unsolvable_at(0, reason)
+                                  : SolveError::unsolvable(reason);
+}
+
 [[noreturn]] void report_loop(const Circuit& circuit, AnalysisKind kind,
                               const VoltageBranch& closing, const std::vector<std::size_t>& path) {
-  const std::string where = kind == AnalysisKind::dc ? " at DC" : "";
   const auto& closer = circuit.elements[closing.element].name;
   if (closing.a == closing.b)
-    throw SolveError(
-        fmt::format("error: circuit cannot be solved{}: '{}' sets a voltage between node "
-                    "'{}' and itself",
-                    where, closer, circuit.node_names[closing.a]));
+    throw loop_error(kind, fmt::format("'{}' sets a voltage between node '{}' and itself", closer,
+                                       circuit.node_names[closing.a]));
   if (path.size() == 1)
-    throw SolveError(
-        fmt::format("error: circuit cannot be solved{}: '{}' and '{}' both set the voltage between "
-                    "nodes '{}' and "
-                    "'{}'",
-                    where, circuit.elements[path[0]].name, closer, circuit.node_names[closing.a],
-                    circuit.node_names[closing.b]));
+    throw loop_error(kind, fmt::format("'{}' and '{}' both set the voltage between nodes '{}' "
+                                       "and '{}'",
+                                       circuit.elements[path[0]].name, closer,
+                                       circuit.node_names[closing.a],
+                                       circuit.node_names[closing.b]));
   std::vector<std::string> names;
   // The path runs from the closing branch's second node back to its first, so
   // path then closer reads once around the loop.
   for (const std::size_t element : path) names.push_back(circuit.elements[element].name);
   names.push_back(closer);
-  throw SolveError(fmt::format(
-      "error: circuit cannot be solved{}: {} form a loop of elements that each set a voltage{}",
-      where, quoted_list(names), kind == AnalysisKind::dc ? " (inductors are shorts at DC)" : ""));
+  const char* dc_note = kind == AnalysisKind::dc ? " (inductors are shorts at DC)" : "";
+  throw loop_error(kind, fmt::format("{} form a loop of elements that each set a voltage{}",
+                                     quoted_list(names), dc_note));
 }
 
 void check_no_voltage_loop(const Circuit& circuit, AnalysisKind kind) {
@@ -403,10 +404,10 @@ int MnaSystem::slot(int row, int col) const {
 }
 
 void throw_singular(const MnaSystem& mna, int column, double f) {
-  throw SolveError(fmt::format(
-      "error: circuit cannot be solved at {}: {}", f == 0 ? std::string("DC") : format_si(f) + "Hz",
-      column >= 0 ? fmt::format("the equations do not determine {} (singular matrix)", mna.unknown_name(column))
-                  : std::string("the matrix is singular")));
+  throw SolveError::unsolvable_at(
+      f, column >= 0 ? fmt::format("the equations do not determine {} (singular matrix)",
+                                   mna.unknown_name(column))
+                     : std::string("the matrix is singular"));
 }
 
 }  // namespace tacet

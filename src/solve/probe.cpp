@@ -20,15 +20,13 @@ std::string trimmed(const std::string& text) {
 
 [[noreturn]] void unknown_name(const char* what, const std::string& name, const std::string& probe,
                                const std::vector<std::string>& candidates) {
-  std::string message = fmt::format("error: unknown {} '{}' in probe '{}'", what, name, probe);
-  const std::string near = nearest_word(name, candidates);
-  if (!near.empty()) message += fmt::format("\nhint: did you mean '{}'?", near);
-  throw InputError(message);
+  throw InputError::unknown(what, name, fmt::format("probe '{}'", probe),
+                           nearest_word(name, candidates));
 }
 
 int resolve_node(const std::string& name, const std::string& probe, const Circuit& circuit) {
   if (name.empty())
-    throw InputError(fmt::format("error: probe '{}' has an empty node name", probe));
+    throw InputError::usage(fmt::format("probe '{}' has an empty node name", probe));
   if (const auto node = circuit.find_node(name)) return *node;
   unknown_name("node", name, probe, circuit.node_names);
 }
@@ -49,8 +47,8 @@ Probe resolve_probe(const std::string& text, const Circuit& circuit) {
   probe.text = trimmed(text);
   const std::string& t = probe.text;
   if (t.empty())
-    throw InputError(
-        "error: empty probe: name a node ('out'), a pair ('out,ref') or a current ('i(R1)')");
+    throw InputError::usage(
+        "empty probe: name a node ('out'), a pair ('out,ref') or a current ('i(R1)')");
   if (t.size() > 3 && t.rfind("i(", 0) == 0 && t.back() == ')') {
     probe.kind = ProbeKind::current;
     probe.element = resolve_element(trimmed(t.substr(2, t.size() - 3)), t, circuit);

@@ -6,7 +6,6 @@
 #include <fmt/format.h>
 
 #include "tacet/common/errors.hpp"
-#include "tacet/common/format.hpp"
 
 namespace tacet {
 
@@ -54,8 +53,7 @@ std::complex<double> FrequencyResponse::value(const Probe& probe) {
   const std::complex<double> s(0, 2 * std::numbers::pi * solved_);
   const auto v = probe_value(probe, mna_, s, x_.data(), scratch_);
   if (!std::isfinite(v.real()) || !std::isfinite(v.imag()))
-    throw SolveError(fmt::format("error: circuit cannot be solved at {}Hz: probe '{}' is not finite",
-                                 format_si(solved_), probe.text));
+    throw SolveError::unsolvable_at(solved_, fmt::format("probe '{}' is not finite", probe.text));
   return v;
 }
 

@@ -1,0 +1,112 @@
+// Expressions evaluated to numbers: precedence, SI units checked against the
+// value's dimension, params through the scope chain, functions, and the
+// diagnostics for what cannot be evaluated.
+
+#include "tacet/language/expression.hpp"
+
+#include <catch2/catch.hpp>
+
+#include <cmath>
+#include <optional>
+#include <string>
+
+#include "tacet/language/parser.hpp"
+#include "tacet/language/source.hpp"
+
+using namespace tacet;
+
+namespace {
+
+struct Outcome {
+  std::optional<double> value;
+  std::string diagnostics;
+};
+
+Outcome evaluate_text(const std::string& text, Dimension expected, const Scope& scope = {}) {
+  SourceManager sources;
+  const int id = sources.add("expr", text);
+  Diagnostics diagnostics(sources);
+  const auto expr = parse_expression(sources.file(id).text, id, diagnostics);
+  REQUIRE(expr.has_value());
+  Outcome out;
+  out.value = evaluate(*expr, id, scope, expected, diagnostics);
+  out.diagnostics = diagnostics.render_all();
+  return out;
+}
+
+double value_of(const std::string& text, Dimension expected = Dimension::none,
+                const Scope& scope = {}) {
+  const Outcome out = evaluate_text(text, expected, scope);
+  INFO(out.diagnostics);
+  REQUIRE(out.value.has_value());
+  return *out.value;
+}
+
+}  // namespace
+
+TEST_CASE("arithmetic follows the usual precedence and ^ groups to the right", "[expression]") {
+  CHECK(value_of("1 + 2 * 3 ^ 2") == 19);
+  CHECK(value_of("2 ^ 3 ^ 2") == 512);
+  CHECK(value_of("(1 + 2) * 3") == 9);
+  // ^ binds tighter than a leading minus, as in mathematics (and Python's **).
+  CHECK(value_of("-2 ^ 2 + 10 / 4") == Approx(-1.5));
+}
+
+TEST_CASE("SI prefixes and units scale the number when the unit fits the value", "[expression]") {
+  CHECK(value_of("4.7k", Dimension::resistance) == Approx(4700));
+  CHECK(value_of("10nF", Dimension::capacitance) == Approx(10e-9));
+  CHECK(value_of("2 * 1.5kHz", Dimension::frequency) == Approx(3000));
+  // Decibels of a field quantity: ratio = 10^(dB/20) (IEC 60027-3); the sign
+  // belongs to the decibels, so -6dB is about one half, not minus two.
+  CHECK(value_of("-6dB", Dimension::gain) == Approx(std::pow(10.0, -6.0 / 20)));
+}
+
+TEST_CASE("a unit that does not fit the value is reported at the quantity", "[expression]") {
+  const Outcome out = evaluate_text("1 + 10nF", Dimension::resistance);
+  CHECK_FALSE(out.value);
+  CHECK(out.diagnostics.find("expr:1:5: error: unit 'nF' is") == 0);
+}
+
+TEST_CASE("names are looked up in the scope, then its parent, and the nearer one wins",
+          "[expression]") {
+  Scope file;
+  file.params["rg"] = {1e3, {}};
+  file.params["gain"] = {10, {}};
+  Scope block;
+  block.parent = &file;
+  block.params["gain"] = {2, {}};
+  CHECK(value_of("rg * (gain - 1)", Dimension::resistance, block) == Approx(1e3));
+  CHECK(value_of("rg * (gain - 1)", Dimension::resistance, file) == Approx(9e3));
+  CHECK(value_of("2 * pi", Dimension::none) == Approx(2 * 3.14159265358979323846));
+}
+
+TEST_CASE("an unknown name suggests the nearest visible one", "[expression]") {
+  Scope scope;
+  scope.params["r_gain"] = {1e3, {}};
+  const Outcome out = evaluate_text("r_gian * 2", Dimension::resistance, scope);
+  CHECK_FALSE(out.value);
+  CHECK(out.diagnostics ==
+        "expr:1:1: error: unknown name 'r_gian'\n"
+        "r_gian * 2\n"
+        "^~~~~~\n"
+        "hint: did you mean 'r_gain'?\n");
+}
+
+TEST_CASE("functions evaluate, and refuse arguments outside their domain", "[expression]") {
+  // Two resistors in parallel: R1 R2 / (R1 + R2) (Kirchhoff's laws).
+  CHECK(value_of("par(10k, 10k)", Dimension::resistance) == Approx(5e3));
+  CHECK(value_of("sqrt(16) + max(1, 2)") == Approx(6));
+  CHECK(value_of("db(10)") == Approx(20));
+  CHECK_FALSE(evaluate_text("sqrt(-1)", Dimension::none).value);
+  CHECK_FALSE(evaluate_text("log10(0)", Dimension::none).value);
+  CHECK_FALSE(evaluate_text("max(1)", Dimension::none).value);
+}
+
+TEST_CASE("division by zero and overflow are errors, never an infinite value", "[expression]") {
+  const Outcome zero = evaluate_text("1k / (2 - 2)", Dimension::resistance);
+  CHECK_FALSE(zero.value);
+  CHECK(zero.diagnostics.find("error: division by zero") != std::string::npos);
+  const Outcome overflow = evaluate_text("10 ^ 400", Dimension::none);
+  CHECK_FALSE(overflow.value);
+  CHECK(overflow.diagnostics.find("error: value overflows") != std::string::npos);
+}

@@ -1,0 +1,5 @@
+diff
+@/rc_lowpass.tacet
+@/rc_lowpass.tacet
+--probe
+otu
