@@ -42,10 +42,6 @@ class DcSolver {
   std::unique_ptr<SparseLu> lu_;
 };
 
-const OpAmpModel& model_of(const Circuit& circuit, const Element& e) {
-  return circuit.models.at(static_cast<std::size_t>(e.model));
-}
-
 // A current `amps` leaving `node` (into an op-amp pin or a source): KCL row -= amps.
 void draw_current(const MnaSystem& mna, Vector& rhs, int node, double amps) {
   const int u = mna.node_unknown(node);
@@ -57,14 +53,19 @@ Vector nominal_rhs(const Circuit& circuit, const DcSolver& dc) {
   Vector rhs = dc.zero_rhs();
   for (std::size_t i = 0; i < circuit.elements.size(); ++i) {
     const auto& e = circuit.elements[i];
-    if (e.kind == ElementKind::vsource)
-      rhs[static_cast<std::size_t>(mna.branch_unknown(i))] += e.dc;
-    if (e.kind == ElementKind::isource) {
-      draw_current(mna, rhs, e.nodes[0], e.dc);
-      draw_current(mna, rhs, e.nodes[1], -e.dc);
+    switch (traits(e.kind).drive) {
+      case Drive::none:
+        break;
+      case Drive::voltage:
+        rhs[static_cast<std::size_t>(mna.branch_unknown(i))] += e.dc;
+        break;
+      case Drive::current:
+        draw_current(mna, rhs, e.nodes[0], e.dc);
+        draw_current(mna, rhs, e.nodes[1], -e.dc);
+        break;
     }
     if (e.kind == ElementKind::opamp) {
-      const double ib = model_of(circuit, e).ib;
+      const double ib = circuit.model_of(e).ib;
       draw_current(mna, rhs, e.nodes[0], ib);
       draw_current(mna, rhs, e.nodes[1], ib);
     }
@@ -83,7 +84,7 @@ std::vector<DcError> dc_errors(const Circuit& circuit) {
   for (std::size_t i = 0; i < circuit.elements.size(); ++i) {
     const auto& e = circuit.elements[i];
     if (e.kind != ElementKind::opamp) continue;
-    const auto& m = model_of(circuit, e);
+    const auto& m = circuit.model_of(e);
     if (m.vos != 0) errors.push_back({i, DcErrorKind::vos, std::abs(m.vos)});
     if (m.ios != 0) errors.push_back({i, DcErrorKind::ios, std::abs(m.ios)});
     if (m.ib != 0) errors.push_back({i, DcErrorKind::ib, m.ib});
@@ -166,7 +167,7 @@ void check_rails(const Circuit& circuit, OpAmpBias& amp, std::vector<std::string
         "{}: no rails (no supply line, no rails= on the instance): output not checked", amp.name));
     return;
   }
-  const double swing = model_of(circuit, e).swing;
+  const double swing = circuit.model_of(e).swing;
   amp.limit_low = amp.rails->low + swing;
   amp.limit_high = amp.rails->high - swing;
   amp.ok = amp.low >= amp.limit_low && amp.high <= amp.limit_high;

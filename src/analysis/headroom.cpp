@@ -58,7 +58,7 @@ Band band_of(const Circuit& circuit, const HeadroomOptions& options,
 // The limits of one op amp's pins; NaN where there are no rails.
 void set_limits(const Circuit& circuit, const Element& e, OpAmpHeadroom& amp) {
   const auto rails = rails_for(circuit, e);
-  const auto& m = circuit.models.at(static_cast<std::size_t>(e.model));
+  const auto& m = circuit.model_of(e);
   amp.has_cm_range = m.vcm_low.has_value() || m.vcm_high.has_value();
   amp.slew.available = m.slew;
   if (!rails) return;
@@ -89,20 +89,20 @@ void track_slew(SlewHeadroom& slew, double peak, double f) {
 }
 
 /// A level source as the solver sees it: its branch row and its peak.
-struct Drive {
+struct LevelDrive {
   int row = 0;
   double peak = 0;  ///< V
 };
 
-std::vector<Drive> drives_of(const Circuit& circuit, const MnaSystem& mna, const std::vector<LevelSource>& sources) {
-  std::vector<Drive> drives;
+std::vector<LevelDrive> drives_of(const Circuit& circuit, const MnaSystem& mna, const std::vector<LevelSource>& sources) {
+  std::vector<LevelDrive> drives;
   for (const auto& source : sources)
     drives.push_back({mna.branch_unknown(*circuit.find_element(source.name)), source.peak});
   return drives;
 }
 
 // |V| at every node (index = node id), summed over the level sources.
-void signal_peaks(const MnaSystem& mna, SparseLu& lu, const std::vector<Drive>& drives, Vector& x,
+void signal_peaks(const MnaSystem& mna, SparseLu& lu, const std::vector<LevelDrive>& drives, Vector& x,
                   std::vector<double>& peaks) {
   std::fill(peaks.begin(), peaks.end(), 0.0);
   for (const auto& drive : drives) {
@@ -207,7 +207,7 @@ HeadroomResult run_headroom(const Circuit& circuit, const BiasResult& bias,
   const MnaSystem& mna = response.mna();
   Vector x(static_cast<std::size_t>(mna.size()));
   std::vector<double> peaks(circuit.node_count());
-  const std::vector<Drive> drives = drives_of(circuit, mna, result.sources);
+  const std::vector<LevelDrive> drives = drives_of(circuit, mna, result.sources);
   for (const double f : grid.frequencies()) {
     response.factor_at(f);
     signal_peaks(mna, response.lu(), drives, x, peaks);

@@ -48,11 +48,11 @@ std::vector<NoiseSource> noise_sources(const Circuit& circuit, const MnaSystem& 
   for (std::size_t i = 0; i < circuit.elements.size(); ++i) {
     const Element& e = circuit.elements[i];
     if (e.noiseless) continue;
-    if (e.kind == ElementKind::resistor)
+    if (traits(e.kind).thermal_noise)
       add(i, NoiseMechanism::thermal, mna.node_unknown(e.nodes[0]), mna.node_unknown(e.nodes[1]),
           4 * kBoltzmann * kelvin / e.value, 0);
     if (e.kind != ElementKind::opamp) continue;
-    const OpAmpModel& m = circuit.models[static_cast<std::size_t>(e.model)];
+    const OpAmpModel& m = circuit.model_of(e);
     add(i, NoiseMechanism::en, mna.opamp_gain_row(i), -1, m.en * m.en, m.fce);
     add(i, NoiseMechanism::in_plus, mna.node_unknown(e.nodes[0]), -1, m.in * m.in, m.fci);
     add(i, NoiseMechanism::in_minus, mna.node_unknown(e.nodes[1]), -1, m.in * m.in, m.fci);
@@ -82,7 +82,7 @@ struct InputPort {
 InputPort resolve_input(const std::string& name, const Circuit& circuit, const MnaSystem& mna) {
   std::vector<std::string> sources;
   for (const Element& e : circuit.elements)
-    if (e.kind == ElementKind::vsource || e.kind == ElementKind::isource) sources.push_back(e.name);
+    if (traits(e.kind).drive != Drive::none) sources.push_back(e.name);
   const std::string listed = sources.empty() ? "the circuit has none"
                                              : "the sources are " + fmt::format("{}", fmt::join(sources, ", "));
   const auto index = circuit.find_element(name);
@@ -92,10 +92,15 @@ InputPort resolve_input(const std::string& name, const Circuit& circuit, const M
                             near.empty() ? listed : "did you mean '" + near + "'?");
   }
   const Element& e = circuit.elements[*index];
-  if (e.kind == ElementKind::vsource) return {mna.branch_unknown(*index), -1};
-  // An isource draws its current out of its first node into its second.
-  if (e.kind == ElementKind::isource)
-    return {mna.node_unknown(e.nodes[1]), mna.node_unknown(e.nodes[0])};
+  switch (traits(e.kind).drive) {
+    case Drive::voltage:
+      return {mna.branch_unknown(*index), -1};
+    case Drive::current:
+      // A current source draws its current out of its first node into its second.
+      return {mna.node_unknown(e.nodes[1]), mna.node_unknown(e.nodes[0])};
+    case Drive::none:
+      break;
+  }
   throw InputError::usage(
       fmt::format("--input '{}' is a {}, not a source", name, to_keyword(e.kind)),
       "name a vsrc or isrc; " + listed);
@@ -224,7 +229,7 @@ NoiseResult run_noise(const Circuit& circuit, const NoiseOptions& options) {
   if (!options.input.empty()) {
     input = resolve_input(options.input, circuit, mna);
     const auto& source = circuit.elements[*circuit.find_element(options.input)];
-    result.input_unit = source.kind == ElementKind::isource ? "A" : "V";
+    result.input_unit = traits(source.kind).drive == Drive::current ? "A" : "V";
   }
   const auto sources = noise_sources(circuit, mna, result.temperature_kelvin);
   AdjointSolver adjoint(response, result.probe);

@@ -14,28 +14,6 @@ std::string ambient_problem(double celsius) {
   return {};
 }
 
-const char* to_keyword(ElementKind kind) {
-  switch (kind) {
-    case ElementKind::resistor:
-      return "res";
-    case ElementKind::capacitor:
-      return "cap";
-    case ElementKind::inductor:
-      return "ind";
-    case ElementKind::vsource:
-      return "vsrc";
-    case ElementKind::isource:
-      return "isrc";
-    case ElementKind::vcvs:
-      return "vcvs";
-    case ElementKind::vccs:
-      return "vccs";
-    case ElementKind::opamp:
-      return "opamp";
-  }
-  return "?";
-}
-
 std::complex<double> Element::ac_phasor() const {
   constexpr double kRadiansPerDegree = 1.0 / kDegreesPerRadian;
   // Not std::polar: a negative magnitude (an inverted source) is allowed here.
@@ -63,6 +41,10 @@ std::optional<std::size_t> Circuit::find_element(const std::string& name) const 
   for (std::size_t i = 0; i < elements.size(); ++i)
     if (elements[i].name == name) return i;
   return std::nullopt;
+}
+
+const OpAmpModel& Circuit::model_of(const Element& e) const {
+  return models.at(static_cast<std::size_t>(e.model));
 }
 
 }  // namespace tacet

@@ -8,15 +8,15 @@ namespace tacet {
 
 std::string connection_list(const Circuit& c, const Element& e) {
   auto name = [&](int n) { return c.node_names[static_cast<std::size_t>(n)]; };
-  switch (e.kind) {
-    case ElementKind::opamp:
+  switch (traits(e.kind).pins) {
+    case Pins::opamp:
       return fmt::format("(+{}, -{}, {})", name(e.nodes[0]), name(e.nodes[1]), name(e.nodes[2]));
-    case ElementKind::vcvs:
-    case ElementKind::vccs:
+    case Pins::two_pairs:
       return fmt::format("({}, {}; {}, {})", name(e.nodes[0]), name(e.nodes[1]), name(e.nodes[2]),
                          name(e.nodes[3]));
-    default: return fmt::format("({}, {})", name(e.nodes[0]), name(e.nodes[1]));
+    case Pins::pair: break;
   }
+  return fmt::format("({}, {})", name(e.nodes[0]), name(e.nodes[1]));
 }
 
 std::string element_value(const Circuit& c, const Element& e) {
@@ -27,10 +27,10 @@ std::string element_value(const Circuit& c, const Element& e) {
     case ElementKind::inductor: out = format_si(e.value, 6) + "H"; break;
     case ElementKind::vcvs: out = "gain=" + format_si(e.value, 6); break;
     case ElementKind::vccs: out = "gm=" + format_si(e.value, 6) + "S"; break;
-    case ElementKind::opamp: out = c.models[static_cast<std::size_t>(e.model)].name; break;
+    case ElementKind::opamp: out = c.model_of(e).name; break;
     case ElementKind::vsource:
     case ElementKind::isource: {
-      const char* unit = e.kind == ElementKind::vsource ? "V" : "A";
+      const char* unit = traits(e.kind).drive == Drive::voltage ? "V" : "A";
       out = fmt::format("dc={}{} ac={}{}", format_si(e.dc, 6), unit, format_si(e.ac_magnitude, 6), unit);
       if (e.ac_phase != 0) out += fmt::format(" phase={}deg", format_si(e.ac_phase, 6));
       break;

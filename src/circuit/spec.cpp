@@ -32,6 +32,15 @@ std::optional<SpecKind> parse_spec_kind(std::string_view text) {
   return std::nullopt;
 }
 
+const std::vector<std::string>& spec_kind_names() {
+  static const std::vector<std::string> names = [] {
+    std::vector<std::string> out;
+    for (const auto& [k, name] : kKindNames) out.emplace_back(name);
+    return out;
+  }();
+  return names;
+}
+
 const char* to_string(SpecUnit unit) {
   switch (unit) {
     case SpecUnit::db: return "dB";

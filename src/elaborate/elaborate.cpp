@@ -3,6 +3,8 @@
 #include <algorithm>
 #include <fmt/format.h>
 
+#include <stdexcept>
+
 #include "elaborate/elaborator.hpp"
 #include "tacet/common/errors.hpp"
 #include "tacet/language/parser.hpp"
@@ -217,36 +219,49 @@ void Elaborator::report_unused_overrides() {
 
 namespace {
 
+enum class Bound { positive, non_negative, any };
+
+/// An op-amp model parameter: its key, the field it sets and its allowed range.
 struct ModelKey {
-  const char* key;
-  Dimension dimension;
-  double OpAmpModel::*field;
-  bool positive;  // must be > 0 (else >= 0)
+  KeyRule rule;
+  double OpAmpModel::*field = nullptr;
+  std::optional<double> OpAmpModel::*optional_field = nullptr;
+  Bound bound = Bound::non_negative;
 };
 
 const ModelKey kOpAmpKeys[] = {
-    {"gbw", Dimension::frequency, &OpAmpModel::gbw, true},
-    {"aol", Dimension::gain, &OpAmpModel::aol, true},
-    {"fp2", Dimension::frequency, &OpAmpModel::fp2, true},
-    {"rout", Dimension::resistance, &OpAmpModel::rout, false},
-    {"rin", Dimension::resistance, &OpAmpModel::rin, true},
-    {"en", Dimension::voltage_density, &OpAmpModel::en, false},
-    {"fce", Dimension::frequency, &OpAmpModel::fce, false},
-    {"in", Dimension::current_density, &OpAmpModel::in, false},
-    {"fci", Dimension::frequency, &OpAmpModel::fci, false},
-    {"vos", Dimension::voltage, &OpAmpModel::vos, false},
-    {"ib", Dimension::current, &OpAmpModel::ib, false},
-    {"ios", Dimension::current, &OpAmpModel::ios, false},
-    {"swing", Dimension::voltage, &OpAmpModel::swing, false},
-    {"slew", Dimension::slew, &OpAmpModel::slew, true},
+    {{"gbw", Dimension::frequency, KeyForm::value, Need::required}, &OpAmpModel::gbw, nullptr,
+     Bound::positive},
+    {{"aol", Dimension::gain}, &OpAmpModel::aol, nullptr, Bound::positive},
+    {{"fp2", Dimension::frequency}, &OpAmpModel::fp2, nullptr, Bound::positive},
+    {{"rout", Dimension::resistance}, &OpAmpModel::rout},
+    {{"rin", Dimension::resistance}, &OpAmpModel::rin, nullptr, Bound::positive},
+    {{"en", Dimension::voltage_density}, &OpAmpModel::en},
+    {{"fce", Dimension::frequency}, &OpAmpModel::fce},
+    {{"in", Dimension::current_density}, &OpAmpModel::in},
+    {{"fci", Dimension::frequency}, &OpAmpModel::fci},
+    {{"vos", Dimension::voltage}, &OpAmpModel::vos},
+    {{"ib", Dimension::current}, &OpAmpModel::ib, nullptr, Bound::any},  // flows either way
+    {{"ios", Dimension::current}, &OpAmpModel::ios},
+    {{"swing", Dimension::voltage}, &OpAmpModel::swing},
+    {{"slew", Dimension::slew}, &OpAmpModel::slew, nullptr, Bound::positive},
+    {{"vcm_low", Dimension::voltage}, nullptr, &OpAmpModel::vcm_low, Bound::any},
+    {{"vcm_high", Dimension::voltage}, nullptr, &OpAmpModel::vcm_high, Bound::any},
 };
 
-std::vector<std::string> opamp_key_names() {
-  std::vector<std::string> out;
-  for (const auto& k : kOpAmpKeys) out.emplace_back(k.key);
-  out.emplace_back("vcm_low");
-  out.emplace_back("vcm_high");
-  return out;
+KeyTable opamp_key_table() {
+  static const std::vector<KeyRule> rules = [] {
+    std::vector<KeyRule> out;
+    for (const ModelKey& k : kOpAmpKeys) out.push_back(k.rule);
+    return out;
+  }();
+  return rules;
+}
+
+const ModelKey& model_key(std::string_view name) {
+  for (const ModelKey& k : kOpAmpKeys)
+    if (k.rule.name == name) return k;
+  throw std::logic_error("no op-amp key " + std::string(name));  // the table and kOpAmpKeys agree
 }
 
 }  // namespace
@@ -263,6 +278,22 @@ void Elaborator::resolve_models() {
   }
 }
 
+bool Elaborator::set_model_key(OpAmpModel& model, const KeyValue& entry) {
+  const ModelKey& k = model_key(entry.rule->name);
+  const auto value = evaluate(*entry.value, entry.file, globals_, k.rule.dimension, diagnostics_);
+  if (!value) return false;
+  const bool bad = k.bound == Bound::positive ? *value <= 0 : k.bound == Bound::non_negative && *value < 0;
+  if (bad) {
+    error(entry.file, extent(*entry.value),
+          fmt::format("{} of model '{}' must be {} than zero", k.rule.name, model.name,
+                      k.bound == Bound::positive ? "greater" : "no less"));
+    return false;
+  }
+  if (k.field) model.*k.field = *value;
+  else model.*k.optional_field = *value;
+  return true;
+}
+
 std::optional<OpAmpModel> Elaborator::resolve_model(const ast::Model& model, int file) {
   if (model.kind.text != "opamp") {
     error(file, model.kind, fmt::format("unknown model kind '{}'", model.kind.text),
@@ -272,65 +303,19 @@ std::optional<OpAmpModel> Elaborator::resolve_model(const ast::Model& model, int
   OpAmpModel out;
   out.name = model.name.text;
   out.where = {file, model.name.offset};
-  bool ok = true, has_gbw = false;
-  std::set<std::string> given;
-  auto assign = [&](const std::string& key, std::optional<double> value, const ast::Located& at,
-                    int at_file) {
-    if (!value) return void(ok = false);
-    if (key == "vcm_low" || key == "vcm_high") {
-      (key == "vcm_low" ? out.vcm_low : out.vcm_high) = *value;
-      return;
-    }
-    for (const auto& k : kOpAmpKeys) {
-      if (key != k.key) continue;
-      bool bad = k.positive ? *value <= 0 : (*value < 0 && key != "ib");
-      if (bad) {
-        error(at_file, at, fmt::format("{} of model '{}' must be {} than zero", key, out.name,
-                                       k.positive ? "greater" : "no less"));
-        ok = false;
-        return;
-      }
-      out.*k.field = *value;
-      if (key == "gbw") has_gbw = true;
-    }
-  };
-  auto dimension_of = [](const std::string& key) {
-    for (const auto& k : kOpAmpKeys)
-      if (key == k.key) return k.dimension;
-    return Dimension::voltage;  // vcm_low, vcm_high
-  };
-  const auto keys = opamp_key_names();
-  for (const auto& entry : model.entries) {
-    const std::string& key = entry.key.text;
-    if (std::find(keys.begin(), keys.end(), key) == keys.end()) {
-      error(file, entry.key, fmt::format("unknown op-amp parameter '{}'", key),
-            choice_hint(key, keys, "op-amp parameters"));
-      ok = false;
-      continue;
-    }
-    if (!given.insert(key).second) {
-      error(file, entry.key, fmt::format("'{}' is given twice in model '{}'", key, out.name));
-      ok = false;
-      continue;
-    }
-    std::optional<double> value = overridden(out.name + "." + key, globals_, dimension_of(key));
-    if (!value) value = evaluate(entry.value, file, globals_, dimension_of(key), diagnostics_);
-    assign(key, value, extent(entry.value), file);
-  }
-  for (const auto& key : keys) {  // --set MODEL.key for a key the model leaves out
-    if (given.count(key)) continue;
-    if (ParsedOverride* o = find_override(out.name + "." + key)) {
-      o->used = true;
-      assign(key, evaluate(o->value, o->file, globals_, dimension_of(key), diagnostics_),
-             extent(o->value), o->file);
-    }
-  }
-  if (!has_gbw && ok) {
+  bool ok = true;
+  const KeyWording wording{"unknown op-amp parameter '{}'", "op-amp parameters",
+                           fmt::format("'{{}}' is given twice in model '{}'", out.name)};
+  const KeysRead keys = read_keys(written_keys(model.entries), opamp_key_table(), wording, file,
+                                  out.name, [&](const KeyValue& entry) {
+                                    if (!set_model_key(out, entry)) ok = false;
+                                  });
+  if (!keys.ok || !ok) return std::nullopt;
+  if (!keys.missing.empty()) {
     error(file, model.name, fmt::format("model '{}' needs a gain-bandwidth product", out.name),
           "add for example: gbw 10M");
     return std::nullopt;
   }
-  if (!ok) return std::nullopt;
   return out;
 }
 

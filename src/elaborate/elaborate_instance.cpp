@@ -10,61 +10,31 @@ namespace tacet::detail {
 
 namespace {
 
-struct KindInfo {
-  const char* keyword;
-  ElementKind kind;
-};
-
-const KindInfo kKinds[] = {
-    {"res", ElementKind::resistor}, {"cap", ElementKind::capacitor}, {"ind", ElementKind::inductor},
-    {"vsrc", ElementKind::vsource}, {"isrc", ElementKind::isource},  {"vcvs", ElementKind::vcvs},
-    {"vccs", ElementKind::vccs},    {"opamp", ElementKind::opamp},
-};
-
-/// An option an element kind accepts, and the dimension of its value.
-struct OptionSpec {
-  const char* key;
-  Dimension dimension;
-  bool flag;  ///< written bare, without a value
-};
-
-std::vector<OptionSpec> options_for(ElementKind kind) {
-  switch (kind) {
-    case ElementKind::resistor:
-      return {{"tol", Dimension::ratio, false}, {"noiseless", Dimension::none, true}};
-    case ElementKind::capacitor:
-    case ElementKind::inductor: return {{"tol", Dimension::ratio, false}};
-    case ElementKind::vsource:
-      return {{"dc", Dimension::voltage, false},        {"ac", Dimension::voltage, false},
-              {"phase", Dimension::angle, false},       {"level", Dimension::any, false},
-              {"load", Dimension::resistance, false},   {"band_low", Dimension::frequency, false},
-              {"band_high", Dimension::frequency, false}};
-    case ElementKind::isource:
-      return {{"dc", Dimension::current, false}, {"ac", Dimension::current, false},
-              {"phase", Dimension::angle, false}};
-    case ElementKind::vcvs: return {{"gain", Dimension::gain, false}};
-    case ElementKind::vccs: return {{"gm", Dimension::conductance, false}};
-    case ElementKind::opamp:
-      return {{"rails", Dimension::voltage, false}, {"noiseless", Dimension::none, true}};
+Dimension drive_dimension(Drive drive) {
+  switch (drive) {
+    case Drive::voltage: return Dimension::voltage;
+    case Drive::current: return Dimension::current;
+    case Drive::none: break;
   }
-  return {};
+  return Dimension::none;
 }
 
-Dimension value_dimension(ElementKind kind) {
-  switch (kind) {
-    case ElementKind::resistor: return Dimension::resistance;
-    case ElementKind::capacitor: return Dimension::capacitance;
-    case ElementKind::inductor: return Dimension::inductance;
-    default: return Dimension::none;
-  }
-}
-
-const char* value_noun(ElementKind kind) {
-  switch (kind) {
-    case ElementKind::resistor: return "resistance";
-    case ElementKind::capacitor: return "capacitance";
-    default: return "inductance";
-  }
+/// The plain numbers an option sets; tol, load, rails, level and the flag
+/// are read by apply_option itself.
+double* numeric_field(Element& e, std::string_view key) {
+  if (key == traits(e.kind).value_option) return &e.value;  // gain=, gm=
+  struct Field {
+    std::string_view key;
+    double Element::*member;
+  };
+  static constexpr Field kFields[] = {{"dc", &Element::dc},
+                                      {"ac", &Element::ac_magnitude},
+                                      {"phase", &Element::ac_phase},
+                                      {"band_low", &Element::band_low},
+                                      {"band_high", &Element::band_high}};
+  for (const Field& field : kFields)
+    if (key == field.key) return &(e.*field.member);
+  return nullptr;
 }
 
 }  // namespace
@@ -72,8 +42,7 @@ const char* value_noun(ElementKind kind) {
 void Elaborator::instantiate(const ast::Instance& instance, int file, const InstanceContext& context) {
   const std::string& keyword = instance.keyword.text;
   if (keyword == "use") return expand_block(instance, file, context);
-  for (const auto& k : kKinds)
-    if (keyword == k.keyword) return build_element(instance, file, context, k.kind);
+  if (const auto kind = element_kind_of(keyword)) return build_element(instance, file, context, *kind);
   error(file, instance.keyword, fmt::format("unknown element kind '{}'", keyword));
 }
 
@@ -97,7 +66,8 @@ bool Elaborator::check_connections(const ast::Instance& instance, int file, Elem
   auto marks = [](const std::vector<ast::Terminal>& ts, char sign) {
     return std::count_if(ts.begin(), ts.end(), [&](const ast::Terminal& t) { return t.polarity == sign; });
   };
-  if (kind == ElementKind::opamp) {
+  const Pins pins = traits(kind).pins;
+  if (pins == Pins::opamp) {
     if (!c.second.empty() || c.first.size() != 3 || marks(c.first, '+') != 1 || marks(c.first, '-') != 1)
       return wrong(fmt::format("op amp '{}' needs three connections: +input, -input and output", name),
                    "mark the inputs with + and -, in any order: (+in, -fb, out)");
@@ -109,14 +79,18 @@ bool Elaborator::check_connections(const ast::Instance& instance, int file, Elem
         error(file, t, fmt::format("'{}{}': only op-amp inputs are marked + or -", t.polarity, t.node));
         return false;
       }
-  if (kind == ElementKind::vcvs || kind == ElementKind::vccs) {
-    if (c.first.size() != 2 || c.second.size() != 2)
-      return wrong(fmt::format("'{}' needs an output pair and a controlling pair", name),
-                   "write (out_p, out_n; ctl_p, ctl_n)");
-    return true;
+  switch (pins) {
+    case Pins::two_pairs:
+      if (c.first.size() != 2 || c.second.size() != 2)
+        return wrong(fmt::format("'{}' needs an output pair and a controlling pair", name),
+                     "write (out_p, out_n; ctl_p, ctl_n)");
+      return true;
+    case Pins::pair:
+      if (c.first.size() != 2 || !c.second.empty())
+        return wrong(fmt::format("'{}' needs exactly two connections", name), "write (a, b)");
+      return true;
+    case Pins::opamp: break;  // checked above
   }
-  if (c.first.size() != 2 || !c.second.empty())
-    return wrong(fmt::format("'{}' needs exactly two connections", name), "write (a, b)");
   return true;
 }
 
@@ -125,7 +99,7 @@ std::vector<int> Elaborator::connect(const ast::Instance& instance, const Instan
   const auto& c = instance.connections;
   auto node = [&](const ast::Terminal& t) { return resolve_node(t.node, context, {file, t.offset}); };
   std::vector<int> nodes;
-  if (kind == ElementKind::opamp) {
+  if (traits(kind).pins == Pins::opamp) {
     int plus = 0, minus = 0, out = 0;
     for (const auto& t : c.first) (t.polarity == '+' ? plus : t.polarity == '-' ? minus : out) = node(t);
     return {plus, minus, out};
@@ -222,8 +196,78 @@ bool Elaborator::check_level(const Element& e, const ast::Instance& instance, in
   return true;
 }
 
+bool Elaborator::read_element_value(Element& e, const ast::Instance& instance, int file,
+                                    const Scope& scope) {
+  const ElementTraits& t = traits(e.kind);
+  if (!instance.value) return true;
+  switch (t.value_syntax) {
+    case ValueSyntax::none: return true;
+    case ValueSyntax::model_name: return read_model_name(e, *instance.value, file);
+    case ValueSyntax::expression: break;
+  }
+  auto v = overridden(e.name, scope, t.value_dimension);
+  if (!v) v = value_of(*instance.value, file, scope, t.value_dimension);
+  if (!v) return false;
+  if (*v <= 0) {
+    error(file, extent(*instance.value),
+          fmt::format("{} of '{}' must be greater than zero, not {}", t.value_noun, e.name, *v),
+          *v == 0 ? std::string(t.zero_hint) : "");
+    return false;
+  }
+  e.value = *v;
+  return true;
+}
+
+bool Elaborator::read_model_name(Element& e, const ast::Expr& value, int file) {
+  const auto* id = boost::get<ast::Identifier>(&unwrap(value));
+  if (!id) {
+    error(file, extent(value), "expected an op-amp model name");
+    return false;
+  }
+  const auto it = model_index_.find(id->text);
+  if (it == model_index_.end()) {
+    std::vector<std::string> names;
+    for (const auto& [n, i] : model_index_) names.push_back(n);
+    std::string near = nearest_word(id->text, names);
+    error(file, *id, fmt::format("no model named '{}'", id->text),
+          near.empty() ? "declare it with 'model NAME opamp { gbw ... }' or include a library"
+                       : fmt::format("did you mean '{}'?", near));
+    return false;
+  }
+  if (it->second < 0) return false;  // the model's own errors are already reported
+  e.model = it->second;
+  return true;
+}
+
+bool Elaborator::apply_option(Element& e, const KeyValue& option, const Scope& scope, double& load) {
+  const std::string_view key = option.rule->name;
+  if (option.rule->form == KeyForm::flag) return e.noiseless = true;  // noiseless, the only flag
+  if (key == "rails") return (e.rails = rails_of(*option.value, option.file, scope)).has_value();
+  if (key == "level") return (e.level = level_of(*option.value, option.file, scope)).has_value();
+  const auto v = value_of(*option.value, option.file, scope, option.rule->dimension);
+  if (!v) return false;
+  const ast::Located at = extent(*option.value);
+  if (key == "tol") {
+    if (*v < 0 || *v >= 1) {
+      error(option.file, at, fmt::format("tolerance of '{}' must be from 0 up to 100%", e.name));
+      return false;
+    }
+    e.tolerance = *v;
+  } else if (key == "load") {  // kept aside: load= may come before level=
+    if (*v <= 0) {
+      error(option.file, at, fmt::format("load of '{}' must be greater than zero", e.name));
+      return false;
+    }
+    load = *v;
+  } else {
+    *numeric_field(e, key) = *v;
+  }
+  return true;
+}
+
 void Elaborator::build_element(const ast::Instance& instance, int file,
                                const InstanceContext& context, ElementKind kind) {
+  const ElementTraits& t = traits(kind);
   Element e;
   e.kind = kind;
   e.name = context.prefix + instance.name.text;
@@ -232,148 +276,28 @@ void Elaborator::build_element(const ast::Instance& instance, int file,
   if (!check_connections(instance, file, kind)) return;
   e.nodes = connect(instance, context, kind, file);
   const Scope& scope = *context.scope;
-  bool ok = true;
+  bool ok = read_element_value(e, instance, file, scope);
 
-  // The value or model after the connections.
-  const bool takes_value = kind == ElementKind::resistor || kind == ElementKind::capacitor ||
-                           kind == ElementKind::inductor;
-  if (takes_value && instance.value) {
-    auto v = overridden(e.name, scope, value_dimension(kind));
-    if (!v) v = value_of(*instance.value, file, scope, value_dimension(kind));
-    if (!v) {
-      ok = false;
-    } else if (*v <= 0) {
-      error(file, extent(*instance.value),
-            fmt::format("{} of '{}' must be greater than zero, not {}", value_noun(kind), e.name, *v),
-            kind == ElementKind::resistor && *v == 0 ? "for a short, connect the nodes directly" : "");
-      ok = false;
-    } else {
-      e.value = *v;
-    }
-  }
-  if (kind == ElementKind::opamp && instance.value) {
-    const auto* id = boost::get<ast::Identifier>(&unwrap(*instance.value));
-    auto it = id ? model_index_.find(id->text) : model_index_.end();
-    if (!id) {
-      error(file, extent(*instance.value), "expected an op-amp model name");
-      ok = false;
-    } else if (it == model_index_.end()) {
-      std::vector<std::string> names;
-      for (const auto& [n, i] : model_index_) names.push_back(n);
-      std::string near = nearest_word(id->text, names);
-      error(file, *id, fmt::format("no model named '{}'", id->text),
-            near.empty() ? "declare it with 'model NAME opamp { gbw ... }' or include a library"
-                         : fmt::format("did you mean '{}'?", near));
-      ok = false;
-    } else if (it->second < 0) {
-      ok = false;  // the model's own errors are already reported
-    } else {
-      e.model = it->second;
-    }
-  }
-
-  // Options: known keys once each, values with their dimension, then --set NAME.key.
-  const auto specs = options_for(kind);
-  std::set<std::string> given;
-  double load = 0;  // load= may come before level=
-  auto apply = [&](const OptionSpec& spec, std::optional<double> v, const ast::Located& at, int at_file) {
-    if (!v) return void(ok = false);
-    const std::string key = spec.key;
-    if (key == "tol" && (*v < 0 || *v >= 1)) {
-      error(at_file, at, fmt::format("tolerance of '{}' must be from 0 up to 100%", e.name));
-      ok = false;
-    } else if (key == "tol") {
-      e.tolerance = *v;
-    } else if (key == "dc") {
-      e.dc = *v;
-    } else if (key == "ac") {
-      e.ac_magnitude = *v;
-    } else if (key == "phase") {
-      e.ac_phase = *v;
-    } else if (key == "load" && *v <= 0) {
-      error(at_file, at, fmt::format("load of '{}' must be greater than zero", e.name));
-      ok = false;
-    } else if (key == "load") {
-      load = *v;
-    } else if (key == "band_low" || key == "band_high") {
-      (key == "band_low" ? e.band_low : e.band_high) = *v;
-    } else {  // gain, gm
-      e.value = *v;
-    }
-  };
-  for (const auto& option : instance.options) {
-    const std::string& key = option.key.text;
-    auto spec = std::find_if(specs.begin(), specs.end(), [&](const OptionSpec& s) { return key == s.key; });
-    if (spec == specs.end()) {
-      std::vector<std::string> keys;
-      for (const auto& s : specs) keys.emplace_back(s.key);
-      error(file, option.key, fmt::format("'{}' takes no option '{}'", instance.keyword.text, key),
-            choice_hint(key, keys, "options"));
-      ok = false;
-      continue;
-    }
-    if (!given.insert(key).second) {
-      error(file, option.key, fmt::format("option '{}' is given twice", key));
-      ok = false;
-      continue;
-    }
-    if (spec->flag != !option.value) {
-      error(file, option, spec->flag ? fmt::format("'{}' is a flag and takes no value", key)
-                                     : fmt::format("option '{}' needs a value", key),
-            spec->flag ? fmt::format("write just '{}'", key) : fmt::format("write {}=...", key));
-      ok = false;
-      continue;
-    }
-    if (spec->flag) {
-      e.noiseless = true;
-    } else if (key == "rails") {
-      ParsedOverride* o = find_override(e.name + ".rails");  // --set U1.rails= wins
-      if (o) o->used = true;
-      auto rails = o ? rails_of(o->value, o->file, scope) : rails_of(*option.value, file, scope);
-      if (rails) e.rails = rails; else ok = false;
-    } else if (key == "level") {
-      ParsedOverride* o = find_override(e.name + ".level");  // --set Vin.level= wins
-      if (o) o->used = true;
-      e.level = o ? level_of(o->value, o->file, scope) : level_of(*option.value, file, scope);
-      if (!e.level) ok = false;
-    } else {
-      auto v = overridden(e.name + "." + key, scope, spec->dimension);
-      if (!v) v = value_of(*option.value, file, scope, spec->dimension);
-      apply(*spec, v, extent(*option.value), file);
-    }
-  }
-  for (const auto& spec : specs) {  // --set NAME.key for an option not written
-    if (given.count(spec.key) || spec.flag) continue;
-    ParsedOverride* o = find_override(e.name + "." + spec.key);
-    if (!o) continue;
-    o->used = true;
-    if (std::string(spec.key) == "rails") {
-      auto rails = rails_of(o->value, o->file, scope);
-      if (rails) e.rails = rails; else ok = false;
-    } else if (std::string(spec.key) == "level") {
-      e.level = level_of(o->value, o->file, scope);
-      if (!e.level) ok = false;
-    } else {
-      apply(spec, evaluate(o->value, o->file, scope, spec.dimension, diagnostics_), extent(o->value), o->file);
-      given.insert(spec.key);
-    }
-  }
+  const KeyWording wording{fmt::format("'{}' takes no option '{{}}'", instance.keyword.text),
+                           "options", "option '{}' is given twice"};
+  double load = 0;
+  const KeysRead keys = read_keys(written_keys(instance.options), t.options, wording, file, e.name,
+                                  [&](const KeyValue& option) {
+                                    if (!apply_option(e, option, scope, load)) ok = false;
+                                  });
+  ok = ok && keys.ok;
   if (e.level) e.level->load = load;
-  if (kind == ElementKind::vsource && ok && !check_level(e, instance, file)) ok = false;
-  if ((kind == ElementKind::vcvs || kind == ElementKind::vccs) && ok) {
-    const char* key = kind == ElementKind::vcvs ? "gain" : "gm";
-    if (!given.count(key)) {
-      error(file, instance.name, fmt::format("'{}' needs {}=", e.name, key),
-            kind == ElementKind::vcvs ? "write gain=10" : "write gm=1m");
-      ok = false;
-    }
+  if (ok && !check_level(e, instance, file)) ok = false;
+  if (ok && !keys.missing.empty()) {
+    error(file, instance.name, fmt::format("'{}' needs {}=", e.name, keys.missing.front()),
+          fmt::format("write {}={}", keys.missing.front(), t.value_example));
+    ok = false;
   }
-  if (kind == ElementKind::vcvs || kind == ElementKind::vccs) {
-    if (auto v = overridden(e.name, scope, kind == ElementKind::vcvs ? Dimension::gain : Dimension::conductance))
-      e.value = *v;
-  } else if (kind == ElementKind::vsource || kind == ElementKind::isource) {
-    if (auto v = overridden(e.name, scope, kind == ElementKind::vsource ? Dimension::voltage : Dimension::current))
-      e.ac_magnitude = *v;
+  // --set NAME=value: the value of a controlled source, the AC magnitude of a source.
+  if (!t.value_option.empty()) {
+    if (auto v = overridden(e.name, scope, t.value_dimension)) e.value = *v;
+  } else if (t.drive != Drive::none) {
+    if (auto v = overridden(e.name, scope, drive_dimension(t.drive))) e.ac_magnitude = *v;
   }
   if (ok) circuit_.elements.push_back(std::move(e));
 }

@@ -9,50 +9,42 @@ namespace tacet::detail {
 
 namespace {
 
-enum class Need { required, optional };
+constexpr KeyRule kAt{"at", Dimension::frequency, KeyForm::value, Need::required};
+constexpr KeyRule kFrom{"from", Dimension::frequency, KeyForm::value, Need::required};
+constexpr KeyRule kTo{"to", Dimension::frequency, KeyForm::value, Need::required};
+constexpr KeyRule kCurrent{"current", Dimension::none};  // an element name: current=R1
 
-/// What one option of a spec kind is, and whether the kind needs it.
-struct SpecOption {
-  const char* key;
-  Dimension dimension;  ///< `none` marks a name (input=Vin, current=R1)
-  Need need;
-};
+constexpr KeyRule kGainKeys[] = {kAt, {"min", Dimension::gain}, {"max", Dimension::gain}, kCurrent};
+constexpr KeyRule kFlatnessKeys[] = {
+    kFrom, kTo, {"ref", Dimension::frequency},
+    {"max", Dimension::decibel, KeyForm::value, Need::required}, kCurrent};
+constexpr KeyRule kPhaseKeys[] = {kAt, {"min", Dimension::angle}, {"max", Dimension::angle}, kCurrent};
+constexpr KeyRule kCornerKeys[] = {
+    {"ref", Dimension::frequency, KeyForm::value, Need::required},
+    {"min", Dimension::frequency}, {"max", Dimension::frequency}, {"drop", Dimension::decibel},
+    {"from", Dimension::frequency}, {"to", Dimension::frequency}, kCurrent};
+constexpr KeyRule kNoiseKeys[] = {kFrom, kTo,
+                                  {"max", Dimension::voltage, KeyForm::value, Need::required}};
+constexpr KeyRule kSnrKeys[] = {kFrom, kTo,
+                                {"input", Dimension::none, KeyForm::value, Need::required},
+                                {"level", Dimension::voltage, KeyForm::value, Need::required},
+                                {"min", Dimension::decibel, KeyForm::value, Need::required}};
+constexpr KeyRule kOffsetKeys[] = {{"max", Dimension::voltage, KeyForm::value, Need::required}};
+constexpr KeyRule kRailsKeys[] = {{"margin", Dimension::voltage}};
 
-std::vector<SpecOption> options_for(SpecKind kind) {
-  const SpecOption at{"at", Dimension::frequency, Need::required};
-  const SpecOption from{"from", Dimension::frequency, Need::required};
-  const SpecOption to{"to", Dimension::frequency, Need::required};
-  const SpecOption current{"current", Dimension::none, Need::optional};
+KeyTable options_for(SpecKind kind) {
   switch (kind) {
-    case SpecKind::gain:
-      return {at, {"min", Dimension::gain, Need::optional}, {"max", Dimension::gain, Need::optional}, current};
-    case SpecKind::flatness:
-      return {from, to, {"ref", Dimension::frequency, Need::optional},
-              {"max", Dimension::decibel, Need::required}, current};
-    case SpecKind::phase:
-      return {at, {"min", Dimension::angle, Need::optional}, {"max", Dimension::angle, Need::optional}, current};
+    case SpecKind::gain: return kGainKeys;
+    case SpecKind::flatness: return kFlatnessKeys;
+    case SpecKind::phase: return kPhaseKeys;
     case SpecKind::upper_corner:
-    case SpecKind::lower_corner:
-      return {{"ref", Dimension::frequency, Need::required}, {"min", Dimension::frequency, Need::optional},
-              {"max", Dimension::frequency, Need::optional}, {"drop", Dimension::decibel, Need::optional},
-              {"from", Dimension::frequency, Need::optional}, {"to", Dimension::frequency, Need::optional},
-              current};
-    case SpecKind::noise: return {from, to, {"max", Dimension::voltage, Need::required}};
-    case SpecKind::snr:
-      return {from, to, {"input", Dimension::none, Need::required},
-              {"level", Dimension::voltage, Need::required}, {"min", Dimension::decibel, Need::required}};
-    case SpecKind::offset: return {{"max", Dimension::voltage, Need::required}};
-    case SpecKind::rails: return {{"margin", Dimension::voltage, Need::optional}};
+    case SpecKind::lower_corner: return kCornerKeys;
+    case SpecKind::noise: return kNoiseKeys;
+    case SpecKind::snr: return kSnrKeys;
+    case SpecKind::offset: return kOffsetKeys;
+    case SpecKind::rails: return kRailsKeys;
   }
   return {};
-}
-
-std::vector<std::string> kind_names() {
-  std::vector<std::string> out;
-  for (auto k : {SpecKind::gain, SpecKind::flatness, SpecKind::phase, SpecKind::upper_corner,
-                 SpecKind::lower_corner, SpecKind::noise, SpecKind::snr, SpecKind::offset, SpecKind::rails})
-    out.emplace_back(to_string(k));
-  return out;
 }
 
 bool needs_probe(SpecKind kind) { return kind != SpecKind::rails; }
@@ -69,11 +61,11 @@ bool written_in_db(const ast::Expr& expr) {
 }  // namespace
 
 std::optional<std::string> Elaborator::spec_probe(const ast::Spec& spec, int file,
-                                                  const ast::Option* current) {
+                                                  const KeyValue* current) {
   if (current) {
     const auto* id = current->value ? boost::get<ast::Identifier>(&unwrap(*current->value)) : nullptr;
     if (!id) {
-      error(file, *current, "current= takes an element name", "write current=R1");
+      error(file, *current->written, "current= takes an element name", "write current=R1");
       return std::nullopt;
     }
     if (!circuit_.find_element(id->text)) {
@@ -113,11 +105,146 @@ std::optional<std::string> Elaborator::spec_probe(const ast::Spec& spec, int fil
   return probe;
 }
 
+std::optional<double> Elaborator::spec_number(const SpecKeys& given, std::string_view key,
+                                              Dimension dimension, bool& ok) {
+  const auto it = given.find(key);
+  if (it == given.end()) return std::nullopt;
+  auto v = value_of(*it->second.value, it->second.file, globals_, dimension);
+  if (!v) ok = false;
+  return v;
+}
+
+bool Elaborator::read_spec_band(Spec& spec, const SpecKeys& given) {
+  bool ok = true;
+  auto positive = [&](std::string_view key) {
+    const auto v = spec_number(given, key, Dimension::frequency, ok);
+    if (v && *v <= 0) {
+      const KeyValue& option = given.at(key);
+      error(option.file, extent(*option.value), fmt::format("{}= must be above 0 Hz", key));
+      ok = false;
+    }
+    return v.value_or(0);
+  };
+  spec.at = positive("at");
+  spec.from = positive("from");
+  spec.to = positive("to");
+  spec.ref = positive("ref");
+  if (given.count("from") && given.count("to") && ok && spec.from >= spec.to) {
+    const KeyValue& from = given.at("from");
+    error(from.file, extent(*from.value),
+          fmt::format("from={}Hz must be below to={}Hz", spec.from, spec.to),
+          "a band is written from=low to=high");
+    ok = false;
+  }
+  return ok;
+}
+
+bool Elaborator::read_gain_limits(Spec& spec, const ast::Spec& ast_spec, const SpecKeys& given,
+                                  bool& ok) {
+  const auto min = given.find("min"), max = given.find("max");
+  const KeyValue* first = min != given.end() ? &min->second : max != given.end() ? &max->second : nullptr;
+  if (!first) {
+    error(spec.where.file, ast_spec.name,
+          fmt::format("spec '{}' needs min= or max=", spec.name));
+    return false;
+  }
+  const bool db = written_in_db(*first->value);
+  for (const auto& it : {min, max})
+    if (it != given.end() && written_in_db(*it->second.value) != db) {
+      error(it->second.file, extent(*it->second.value), "write both limits in dB, or both as ratios");
+      return false;
+    }
+  spec.unit = db ? SpecUnit::db : SpecUnit::ratio;
+  spec.min = spec_number(given, "min", db ? Dimension::decibel : Dimension::gain, ok);
+  spec.max = spec_number(given, "max", db ? Dimension::decibel : Dimension::gain, ok);
+  return true;
+}
+
+bool Elaborator::read_snr_input(Spec& spec, const SpecKeys& given) {
+  const KeyValue& input = given.at("input");
+  const auto* id = boost::get<ast::Identifier>(&unwrap(*input.value));
+  const auto index = id ? circuit_.find_element(id->text) : std::nullopt;
+  if (!index || traits(circuit_.elements[*index].kind).drive == Drive::none) {
+    error(input.file, extent(*input.value), "input= must name a voltage or current source",
+          "write input=Vin");
+    return false;
+  }
+  spec.input = id->text;
+  return true;
+}
+
+bool Elaborator::read_spec_limits(Spec& spec, const ast::Spec& ast_spec, const SpecKeys& given,
+                                  bool& ok) {
+  auto needs_a_limit = [&] {
+    if (spec.min || spec.max || !ok) return true;
+    error(spec.where.file, ast_spec.name, fmt::format("spec '{}' needs min= or max=", spec.name));
+    return false;
+  };
+  switch (spec.kind) {
+    case SpecKind::gain: return read_gain_limits(spec, ast_spec, given, ok);
+    case SpecKind::phase:
+      spec.unit = SpecUnit::degrees;
+      spec.min = spec_number(given, "min", Dimension::angle, ok);
+      spec.max = spec_number(given, "max", Dimension::angle, ok);
+      return needs_a_limit();
+    case SpecKind::flatness:
+      spec.unit = SpecUnit::db;
+      spec.max = spec_number(given, "max", Dimension::decibel, ok);
+      if (!given.count("ref")) spec.ref = spec.from;
+      return true;
+    case SpecKind::upper_corner:
+    case SpecKind::lower_corner: {
+      const bool upper = spec.kind == SpecKind::upper_corner;
+      spec.unit = SpecUnit::hertz;
+      spec.min = spec_number(given, "min", Dimension::frequency, ok);
+      spec.max = spec_number(given, "max", Dimension::frequency, ok);
+      if (auto drop = spec_number(given, "drop", Dimension::decibel, ok)) spec.drop = std::abs(*drop);
+      if (!given.count("from")) spec.from = upper ? spec.ref : spec.ref * 1e-6;
+      if (!given.count("to")) spec.to = upper ? spec.ref * 1e6 : spec.ref;
+      return needs_a_limit();
+    }
+    case SpecKind::noise:
+    case SpecKind::offset:
+      spec.unit = SpecUnit::volts;
+      spec.max = spec_number(given, "max", Dimension::voltage, ok);
+      return true;
+    case SpecKind::snr:
+      spec.unit = SpecUnit::db;
+      spec.min = spec_number(given, "min", Dimension::decibel, ok);
+      spec.level = spec_number(given, "level", Dimension::voltage, ok).value_or(0);
+      return read_snr_input(spec, given);
+    case SpecKind::rails:
+      spec.unit = SpecUnit::volts;
+      spec.margin = spec_number(given, "margin", Dimension::voltage, ok).value_or(0);
+      spec.min = spec.margin;
+      return true;
+  }
+  return true;
+}
+
+bool Elaborator::attach_spec_probe(Spec& spec, const ast::Spec& ast_spec, const SpecKeys& given,
+                                   int file) {
+  if (!needs_probe(spec.kind)) {
+    if (!ast_spec.probe) return true;
+    error(file, *ast_spec.probe, fmt::format("a {} spec takes no connections", ast_spec.kind.text));
+    return false;
+  }
+  const auto current = given.find("current");
+  auto probe = spec_probe(ast_spec, file, current == given.end() ? nullptr : &current->second);
+  if (!probe) return false;
+  if (spec.kind == SpecKind::offset && probe->find(',') != std::string::npos) {
+    error(file, *ast_spec.probe, "an offset spec measures one node against gnd", "write (out)");
+    return false;
+  }
+  spec.probe = *probe;
+  return true;
+}
+
 void Elaborator::elaborate_spec(const ast::Spec& ast_spec, int file) {
   auto kind = parse_spec_kind(ast_spec.kind.text);
   if (!kind) {
     error(file, ast_spec.kind, fmt::format("unknown kind of spec '{}'", ast_spec.kind.text),
-          choice_hint(ast_spec.kind.text, kind_names(), "kinds"));
+          choice_hint(ast_spec.kind.text, spec_kind_names(), "kinds"));
     return;
   }
   if (!check_unique(spec_names_, "spec", ast_spec.name, file, ast_spec.name.text)) return;
@@ -125,146 +252,23 @@ void Elaborator::elaborate_spec(const ast::Spec& ast_spec, int file) {
   spec.name = ast_spec.name.text;
   spec.kind = *kind;
   spec.where = {file, ast_spec.name.offset};
-  bool ok = true;
 
-  const auto specs = options_for(*kind);
-  std::map<std::string, const ast::Option*> given;
-  for (const auto& option : ast_spec.options) {
-    const std::string& key = option.key.text;
-    auto it = std::find_if(specs.begin(), specs.end(), [&](const SpecOption& s) { return key == s.key; });
-    if (it == specs.end()) {
-      std::vector<std::string> keys;
-      for (const auto& s : specs) keys.emplace_back(s.key);
-      error(file, option.key, fmt::format("a {} spec takes no option '{}'", ast_spec.kind.text, key),
-            choice_hint(key, keys, "options"));
-      ok = false;
-    } else if (!option.value) {
-      error(file, option, fmt::format("option '{}' needs a value", key), fmt::format("write {}=...", key));
-      ok = false;
-    } else if (!given.emplace(key, &option).second) {
-      error(file, option.key, fmt::format("option '{}' is given twice", key));
-      ok = false;
-    }
-  }
-  for (const auto& s : specs)
-    if (s.need == Need::required && !given.count(s.key)) {
-      error(file, ast_spec.name, fmt::format("spec '{}' needs {}=", spec.name, s.key));
-      ok = false;
-    }
-  if (!ok) return;
-
-  auto number = [&](const char* key, Dimension dimension) -> std::optional<double> {
-    auto it = given.find(key);
-    if (it == given.end()) return std::nullopt;
-    auto v = value_of(*it->second->value, file, globals_, dimension);
-    if (!v) ok = false;
-    return v;
-  };
-  auto positive = [&](const char* key, std::optional<double> v) {
-    if (v && *v <= 0) {
-      error(file, extent(*given.at(key)->value), fmt::format("{}= must be above 0 Hz", key));
-      ok = false;
-    }
-    return v.value_or(0);
-  };
-  spec.at = positive("at", number("at", Dimension::frequency));
-  spec.from = positive("from", number("from", Dimension::frequency));
-  spec.to = positive("to", number("to", Dimension::frequency));
-  spec.ref = positive("ref", number("ref", Dimension::frequency));
-  if (given.count("from") && given.count("to") && ok && spec.from >= spec.to) {
-    error(file, extent(*given.at("from")->value),
-          fmt::format("from={}Hz must be below to={}Hz", spec.from, spec.to), "a band is written from=low to=high");
+  SpecKeys given;
+  const KeyWording wording{fmt::format("a {} spec takes no option '{{}}'", ast_spec.kind.text),
+                           "options", "option '{}' is given twice"};
+  const KeysRead keys = read_keys(written_keys(ast_spec.options), options_for(*kind), wording, file,
+                                  "", [&](const KeyValue& option) {
+                                    given.emplace(option.rule->name, option);
+                                  });
+  bool ok = keys.ok;
+  for (const std::string_view key : keys.missing) {
+    error(file, ast_spec.name, fmt::format("spec '{}' needs {}=", spec.name, key));
     ok = false;
   }
-
-  // Limits, in the unit the spec reports.
-  switch (*kind) {
-    case SpecKind::gain: {
-      const ast::Option* first = given.count("min") ? given.at("min") : given.count("max") ? given.at("max") : nullptr;
-      if (!first) {
-        error(file, ast_spec.name, fmt::format("spec '{}' needs min= or max=", spec.name));
-        return;
-      }
-      const bool db = written_in_db(*first->value);
-      for (const char* key : {"min", "max"})
-        if (given.count(key) && written_in_db(*given.at(key)->value) != db) {
-          error(file, extent(*given.at(key)->value), "write both limits in dB, or both as ratios");
-          return;
-        }
-      spec.unit = db ? SpecUnit::db : SpecUnit::ratio;
-      spec.min = number("min", db ? Dimension::decibel : Dimension::gain);
-      spec.max = number("max", db ? Dimension::decibel : Dimension::gain);
-      break;
-    }
-    case SpecKind::phase:
-      spec.unit = SpecUnit::degrees;
-      spec.min = number("min", Dimension::angle);
-      spec.max = number("max", Dimension::angle);
-      if (!spec.min && !spec.max && ok) {
-        error(file, ast_spec.name, fmt::format("spec '{}' needs min= or max=", spec.name));
-        return;
-      }
-      break;
-    case SpecKind::flatness:
-      spec.unit = SpecUnit::db;
-      spec.max = number("max", Dimension::decibel);
-      if (!given.count("ref")) spec.ref = spec.from;
-      break;
-    case SpecKind::upper_corner:
-    case SpecKind::lower_corner:
-      spec.unit = SpecUnit::hertz;
-      spec.min = number("min", Dimension::frequency);
-      spec.max = number("max", Dimension::frequency);
-      if (auto drop = number("drop", Dimension::decibel)) spec.drop = std::abs(*drop);
-      if (!given.count("from")) spec.from = *kind == SpecKind::upper_corner ? spec.ref : spec.ref * 1e-6;
-      if (!given.count("to")) spec.to = *kind == SpecKind::upper_corner ? spec.ref * 1e6 : spec.ref;
-      if (!spec.min && !spec.max && ok) {
-        error(file, ast_spec.name, fmt::format("spec '{}' needs min= or max=", spec.name));
-        return;
-      }
-      break;
-    case SpecKind::noise:
-      spec.unit = SpecUnit::volts;
-      spec.max = number("max", Dimension::voltage);
-      break;
-    case SpecKind::snr: {
-      spec.unit = SpecUnit::db;
-      spec.min = number("min", Dimension::decibel);
-      spec.level = number("level", Dimension::voltage).value_or(0);
-      const ast::Option& input = *given.at("input");
-      const auto* id = boost::get<ast::Identifier>(&unwrap(*input.value));
-      auto index = id ? circuit_.find_element(id->text) : std::nullopt;
-      if (!index || (circuit_.elements[*index].kind != ElementKind::vsource &&
-                     circuit_.elements[*index].kind != ElementKind::isource)) {
-        error(file, extent(*input.value), "input= must name a voltage or current source", "write input=Vin");
-        return;
-      }
-      spec.input = id->text;
-      break;
-    }
-    case SpecKind::offset:
-      spec.unit = SpecUnit::volts;
-      spec.max = number("max", Dimension::voltage);
-      break;
-    case SpecKind::rails:
-      spec.unit = SpecUnit::volts;
-      spec.margin = number("margin", Dimension::voltage).value_or(0);
-      spec.min = spec.margin;
-      break;
-  }
-  if (needs_probe(*kind)) {
-    auto current = given.find("current");
-    auto probe = spec_probe(ast_spec, file, current == given.end() ? nullptr : current->second);
-    if (!probe) return;
-    if (*kind == SpecKind::offset && probe->find(',') != std::string::npos) {
-      error(file, *ast_spec.probe, "an offset spec measures one node against gnd", "write (out)");
-      return;
-    }
-    spec.probe = *probe;
-  } else if (ast_spec.probe) {
-    error(file, *ast_spec.probe, fmt::format("a {} spec takes no connections", ast_spec.kind.text));
-    return;
-  }
+  if (!ok) return;
+  ok = read_spec_band(spec, given);
+  if (!read_spec_limits(spec, ast_spec, given, ok)) return;  // limits in the unit the spec reports
+  if (!attach_spec_probe(spec, ast_spec, given, file)) return;
   if (ok) circuit_.specs.push_back(std::move(spec));
 }
 

@@ -2,6 +2,7 @@
 // Private to elaboration: the state shared by elaborate.cpp (files, params,
 // models, overrides) and elaborate_instance.cpp (elements and block expansion).
 
+#include <functional>
 #include <map>
 #include <memory>
 #include <optional>
@@ -13,6 +14,7 @@
 #include "tacet/circuit/circuit.hpp"
 #include "tacet/elaborate/elaborate.hpp"
 #include "tacet/language/expression.hpp"
+#include "tacet/language/key_table.hpp"
 
 namespace tacet::detail {
 
@@ -29,6 +31,40 @@ struct ParsedOverride {
   int file = -1;
   bool used = false;
 };
+
+/// A key as written on a statement: `key=value`, a bare `key`, or a model's `key value`.
+struct WrittenKey {
+  const ast::Identifier* key = nullptr;
+  const ast::Expr* value = nullptr;  ///< nullptr when written bare
+  const ast::Located* whole = nullptr;
+};
+std::vector<WrittenKey> written_keys(const std::vector<ast::Option>& options);
+std::vector<WrittenKey> written_keys(const std::vector<ast::ModelEntry>& entries);
+
+/// How one statement's key errors read; `{}` stands for the key.
+struct KeyWording {
+  std::string unknown;   ///< "'res' takes no option '{}'"
+  std::string choices;   ///< what a hint that lists the keys calls them: "options"
+  std::string twice;     ///< "option '{}' is given twice"
+};
+
+/// An accepted key, as the statement will read it: the value of `--set
+/// OWNER.key=` when there is one (then `file` is the override's own), else
+/// the value written.
+struct KeyValue {
+  const KeyRule* rule = nullptr;
+  const ast::Expr* value = nullptr;      ///< nullptr for a flag
+  int file = -1;                         ///< the file `value` is in
+  const ast::Located* written = nullptr; ///< the key as written; nullptr when only --set gives it
+};
+
+struct KeysRead {
+  bool ok = true;                         ///< no unknown, repeated or malformed key
+  std::vector<std::string_view> missing;  ///< required keys neither written nor --set
+};
+
+/// A spec's accepted options by key.
+using SpecKeys = std::map<std::string_view, KeyValue>;
 
 /// Where an instance is being expanded: the dotted prefix ("F1.", "" at top),
 /// the nodes its ports stand for, and the params it sees.
@@ -63,15 +99,32 @@ class Elaborator {
   void parse_overrides();
   void resolve_models();
   std::optional<OpAmpModel> resolve_model(const ast::Model& model, int file);
+  bool set_model_key(OpAmpModel& model, const KeyValue& entry);
   void report_unused_overrides();
   ParsedOverride* find_override(const std::string& name);
   bool check_unique(std::map<std::string, SourceLocation>& seen, const std::string& what,
                     const ast::Identifier& name, int file, const std::string& full_name);
 
+  // keys.cpp: the one reader of key tables. Checks each written key against
+  // `table` (unknown, malformed, twice: reported, and then skipped) and calls
+  // `use` for each accepted key in the order written, then for each key not
+  // written that `--set OWNER.key=` gives (no overrides when `owner` is empty).
+  KeysRead read_keys(const std::vector<WrittenKey>& written, KeyTable table,
+                     const KeyWording& wording, int file, const std::string& owner,
+                     const std::function<void(const KeyValue&)>& use);
+  bool check_key(const WrittenKey& key, const KeyRule* rule, const KeyWording& wording, int file,
+                 const std::vector<std::string>& names);
+
   // elaborate_spec.cpp: the budget
   void elaborate_spec(const ast::Spec& spec, int file);
-  std::optional<std::string> spec_probe(const ast::Spec& spec, int file,
-                                        const ast::Option* current);
+  std::optional<std::string> spec_probe(const ast::Spec& spec, int file, const KeyValue* current);
+  std::optional<double> spec_number(const SpecKeys& given, std::string_view key,
+                                    Dimension dimension, bool& ok);
+  bool read_spec_band(Spec& spec, const SpecKeys& given);
+  bool read_spec_limits(Spec& spec, const ast::Spec& ast_spec, const SpecKeys& given, bool& ok);
+  bool read_gain_limits(Spec& spec, const ast::Spec& ast_spec, const SpecKeys& given, bool& ok);
+  bool read_snr_input(Spec& spec, const SpecKeys& given);
+  bool attach_spec_probe(Spec& spec, const ast::Spec& ast_spec, const SpecKeys& given, int file);
 
   // elaborate_instance.cpp: elements and blocks
   void instantiate(const ast::Instance& instance, int file, const InstanceContext& context);
@@ -89,6 +142,9 @@ class Elaborator {
   std::optional<Rails> rails_of(const ast::Expr& expr, int file, const Scope& scope);
   std::optional<SignalLevel> level_of(const ast::Expr& expr, int file, const Scope& scope);
   bool check_level(const Element& e, const ast::Instance& instance, int file);
+  bool read_element_value(Element& e, const ast::Instance& instance, int file, const Scope& scope);
+  bool read_model_name(Element& e, const ast::Expr& value, int file);
+  bool apply_option(Element& e, const KeyValue& option, const Scope& scope, double& load);
 
   void error(int file, const ast::Located& where, std::string message, std::string hint = {});
 

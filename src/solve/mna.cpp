@@ -34,10 +34,6 @@ class DisjointSets {
   std::vector<int> parent_;
 };
 
-const OpAmpModel& model_of(const Circuit& circuit, const Element& e) {
-  return circuit.models.at(static_cast<std::size_t>(e.model));
-}
-
 bool vccs_is_conductance(const Element& e) {
   const auto& n = e.nodes;
   return (n[0] == n[2] && n[1] == n[3]) || (n[0] == n[3] && n[1] == n[2]);
@@ -54,25 +50,12 @@ struct NodePairs {
 NodePairs conducting_pairs(const Circuit& circuit, const Element& e, AnalysisKind kind) {
   const auto& n = e.nodes;
   NodePairs pairs;
-  switch (e.kind) {
-    case ElementKind::resistor:
-    case ElementKind::inductor:
-    case ElementKind::vsource:
-    case ElementKind::vcvs:
-      pairs.add(n[0], n[1]);
-      break;
-    case ElementKind::capacitor:
-      if (kind == AnalysisKind::ac) pairs.add(n[0], n[1]);
-      break;
-    case ElementKind::isource:
-      break;
-    case ElementKind::vccs:
-      if (vccs_is_conductance(e)) pairs.add(n[0], n[1]);
-      break;
-    case ElementKind::opamp:
-      pairs.add(n[2], 0);
-      if (model_of(circuit, e).rin > 0) pairs.add(n[0], n[1]);
-      break;
+  if (holds(traits(e.kind).conducts, kind == AnalysisKind::dc)) pairs.add(n[0], n[1]);
+  // The paths that depend on more than the kind: its wiring or its model.
+  if (e.kind == ElementKind::vccs && vccs_is_conductance(e)) pairs.add(n[0], n[1]);
+  if (e.kind == ElementKind::opamp) {
+    pairs.add(n[2], 0);
+    if (circuit.model_of(e).rin > 0) pairs.add(n[0], n[1]);
   }
   return pairs;
 }
@@ -120,10 +103,9 @@ std::vector<VoltageBranch> voltage_defining_branches(const Circuit& circuit, Ana
   for (std::size_t i = 0; i < circuit.elements.size(); ++i) {
     const auto& e = circuit.elements[i];
     const auto& n = e.nodes;
-    const bool defines = e.kind == ElementKind::vsource || e.kind == ElementKind::vcvs ||
-                         (e.kind == ElementKind::inductor && kind == AnalysisKind::dc);
-    if (defines) branches.push_back({n[0], n[1], i});
-    if (e.kind == ElementKind::opamp && model_of(circuit, e).rout == 0)
+    if (holds(traits(e.kind).defines_voltage, kind == AnalysisKind::dc))
+      branches.push_back({n[0], n[1], i});
+    if (e.kind == ElementKind::opamp && circuit.model_of(e).rout == 0)
       branches.push_back({n[2], 0, i});
   }
   return branches;
@@ -222,14 +204,12 @@ void MnaSystem::number_unknowns() {
   internal_of_.assign(elements.size(), -1);
   branch_of_.assign(elements.size(), -1);
   for (std::size_t i = 0; i < elements.size(); ++i)
-    if (elements[i].kind == ElementKind::opamp && model_of(*circuit_, elements[i]).rout > 0) {
+    if (elements[i].kind == ElementKind::opamp && circuit_->model_of(elements[i]).rout > 0) {
       internal_of_[i] = next++;
       owner_of_.push_back(i);
     }
   for (std::size_t i = 0; i < elements.size(); ++i) {
-    const auto kind = elements[i].kind;
-    if (kind == ElementKind::vsource || kind == ElementKind::inductor ||
-        kind == ElementKind::vcvs || kind == ElementKind::opamp) {
+    if (traits(elements[i].kind).has_branch) {
       branch_of_[i] = next++;
       owner_of_.push_back(i);
     }
@@ -285,7 +265,7 @@ void MnaSystem::for_each_term(Visit&& visit) const {
         add(u[1], u[2], {-e.value, 0, 0}), add(u[1], u[3], {e.value, 0, 0});
         break;
       case ElementKind::opamp: {
-        const auto& m = model_of(*circuit_, e);
+        const auto& m = circuit_->model_of(e);
         const int x = internal_of_[i] >= 0 ? internal_of_[i] : u[2];
         // 1/A(s) = (1 + s/wp)(1 + s/wp2) / aol, expanded in powers of s.
         const double wp = kTwoPi * m.gbw / m.aol;
@@ -371,12 +351,20 @@ void MnaSystem::excitation(std::complex<double>* rhs) const {
   const auto& elements = circuit_->elements;
   for (std::size_t i = 0; i < elements.size(); ++i) {
     const auto& e = elements[i];
-    if (e.kind == ElementKind::vsource) rhs[branch_of_[i]] += e.ac_phasor();
-    if (e.kind != ElementKind::isource) continue;
-    // The source draws its current out of its first node and into its second.
-    const int plus = node_unknown(e.nodes[0]), minus = node_unknown(e.nodes[1]);
-    if (plus >= 0) rhs[plus] -= e.ac_phasor();
-    if (minus >= 0) rhs[minus] += e.ac_phasor();
+    switch (traits(e.kind).drive) {
+      case Drive::none:
+        break;
+      case Drive::voltage:
+        rhs[branch_of_[i]] += e.ac_phasor();
+        break;
+      case Drive::current: {
+        // The source draws its current out of its first node and into its second.
+        const int plus = node_unknown(e.nodes[0]), minus = node_unknown(e.nodes[1]);
+        if (plus >= 0) rhs[plus] -= e.ac_phasor();
+        if (minus >= 0) rhs[minus] += e.ac_phasor();
+        break;
+      }
+    }
   }
 }
 

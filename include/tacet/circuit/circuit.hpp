@@ -12,15 +12,11 @@
 #include <unordered_map>
 #include <vector>
 
+#include "tacet/language/element_kinds.hpp"
 #include "tacet/language/source.hpp"
 #include "tacet/circuit/spec.hpp"
 
 namespace tacet {
-
-enum class ElementKind { resistor, capacitor, inductor, vsource, isource, vcvs, vccs, opamp };
-
-/// The keyword that declares the kind ("res", "cap", ...).
-const char* to_keyword(ElementKind kind);
 
 /// Op-amp macromodel (all values SI). A(s) = aol / ((1 + s/wp)(1 + s/wp2)),
 /// wp = 2 pi gbw / aol, wp2 = 2 pi fp2 (no second pole when fp2 == 0). The
@@ -110,6 +106,8 @@ struct Circuit {
   int node(const std::string& name, SourceLocation where = {});
   std::optional<int> find_node(const std::string& name) const;
   std::optional<std::size_t> find_element(const std::string& name) const;
+  /// An op amp's model (`e.model` indexes `models`).
+  const OpAmpModel& model_of(const Element& e) const;
   std::size_t node_count() const { return node_names.size(); }
 
  private:

@@ -6,6 +6,7 @@
 #include <optional>
 #include <string>
 #include <string_view>
+#include <vector>
 
 #include "tacet/language/source.hpp"
 
@@ -25,6 +26,8 @@ enum class SpecKind {
 
 const char* to_string(SpecKind kind);
 std::optional<SpecKind> parse_spec_kind(std::string_view text);
+/// Every kind's name, in the order of the enum (for hints).
+const std::vector<std::string>& spec_kind_names();
 
 /// How a spec's value and limits are written and shown.
 enum class SpecUnit { db, ratio, degrees, hertz, volts };

@@ -242,9 +242,12 @@ std::optional<ast::Expr> parse_expression(std::string_view text, int file_id,
 }
 
 const std::vector<std::string>& statement_keywords() {
-  static const std::vector<std::string> words{
-      "title", "include", "ambient", "supply", "param", "res",   "cap",   "ind",
-      "vsrc",  "isrc",    "vcvs",    "vccs",   "opamp", "model", "block", "use", "spec"};
+  static const std::vector<std::string> words = [] {
+    std::vector<std::string> out{"title", "include", "ambient", "supply", "param"};
+    for (const ElementTraits& row : kElementKinds) out.emplace_back(row.keyword);
+    for (const char* word : {"model", "block", "use", "spec"}) out.emplace_back(word);
+    return out;
+  }();
   return words;
 }
 

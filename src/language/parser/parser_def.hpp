@@ -22,6 +22,7 @@
 #include "language/parser/ast_adapted.hpp"
 #include "language/parser/parser_config.hpp"
 #include "tacet/language/diagnostics.hpp"
+#include "tacet/language/element_kinds.hpp"
 #include "tacet/language/parser.hpp"
 
 namespace tacet::parser {
@@ -113,10 +114,9 @@ struct ambient_text_id;
 struct supply_id : annotate_location {};
 struct param_id : annotate_location {};
 struct element_id;
-struct passive_id : annotate_location {};
-struct source_id : annotate_location {};
-struct controlled_id : annotate_location {};
-struct opamp_id : annotate_location {};
+struct valued_id : annotate_location {};
+struct unvalued_id : annotate_location {};
+struct modelled_id : annotate_location {};
 struct use_id : annotate_location {};
 struct model_name_id;
 struct block_name_id;
@@ -172,10 +172,9 @@ x3::rule<ambient_text_id, ast::Ambient> const ambient_text = "ambient";
 x3::rule<supply_id, ast::Supply> const supply = "supply";
 x3::rule<param_id, ast::Param> const param = "param";
 x3::rule<element_id, ast::Instance> const element = "element";
-x3::rule<passive_id, ast::Instance> const passive = "passive";
-x3::rule<source_id, ast::Instance> const source = "source";
-x3::rule<controlled_id, ast::Instance> const controlled = "controlled";
-x3::rule<opamp_id, ast::Instance> const opamp = "opamp";
+x3::rule<valued_id, ast::Instance> const valued = "valued";
+x3::rule<unvalued_id, ast::Instance> const unvalued = "unvalued";
+x3::rule<modelled_id, ast::Instance> const modelled = "modelled";
 x3::rule<use_id, ast::Instance> const use = "use";
 x3::rule<model_name_id, ast::Expr> const model_name = "model_name";
 x3::rule<block_name_id, ast::Expr> const block_name = "block_name";
@@ -342,8 +341,12 @@ inline bool is_top_level_only(std::string_view text) {
 
 /// Block bodies hold parameters, elements and block instances only.
 inline const std::vector<std::string>& block_statement_keywords() {
-  static const std::vector<std::string> words{"param", "res",  "cap",  "ind",   "vsrc", "isrc",
-                                              "vcvs",  "vccs", "opamp", "use"};
+  static const std::vector<std::string> words = [] {
+    std::vector<std::string> out{"param"};
+    for (const ElementTraits& row : kElementKinds) out.emplace_back(row.keyword);
+    out.emplace_back("use");
+    return out;
+  }();
   return words;
 }
 
@@ -423,15 +426,21 @@ inline auto const option_def = identifier >> -('=' > expression);
 inline auto const model_name_def = identifier >> !x3::lit('=');
 inline auto const block_name_def = identifier >> !x3::lit('=');
 
-inline auto const element_def = passive | source | controlled | opamp;
-inline auto const passive_def = keyword_identifier(x3::lit("res") | "cap" | "ind") > identifier >
-                                connections > value > *option;
-inline auto const source_def = keyword_identifier(x3::lit("vsrc") | "isrc") > identifier >
-                               connections > no_value > *option;
-inline auto const controlled_def = keyword_identifier(x3::lit("vcvs") | "vccs") > identifier >
-                                   connections > no_value > *option;
-inline auto const opamp_def = keyword_identifier(x3::lit("opamp")) > identifier > connections >
-                              model_name > *option;
+/// The element keywords followed by `syntax`, from the table of kinds.
+inline x3::symbols<ElementKind> element_keywords(ValueSyntax syntax) {
+  x3::symbols<ElementKind> words;
+  for (const ElementTraits& row : kElementKinds)
+    if (row.value_syntax == syntax) words.add(row.keyword, row.kind);
+  return words;
+}
+
+inline auto const element_def = valued | unvalued | modelled;
+inline auto const valued_def = keyword_identifier(element_keywords(ValueSyntax::expression)) >
+                               identifier > connections > value > *option;
+inline auto const unvalued_def = keyword_identifier(element_keywords(ValueSyntax::none)) >
+                                 identifier > connections > no_value > *option;
+inline auto const modelled_def = keyword_identifier(element_keywords(ValueSyntax::model_name)) >
+                                 identifier > connections > model_name > *option;
 inline auto const use_def = keyword_identifier(x3::lit("use")) > identifier > connections >
                             block_name > *option;
 
@@ -462,8 +471,8 @@ BOOST_SPIRIT_DEFINE(identifier, string, node, numeral, digits, suffix, word, qua
                     signed_term, expression, sum, sum_operation, product, product_value,
                     product_operation, unary, negation, power, power_value, power_operation,
                     primary, call, value, terminal, port, connections, option, title, title_text,
-                    include, include_text, ambient, ambient_text, supply, param, element, passive,
-                    source, controlled, opamp, use, model_name, block_name, model, model_entry,
+                    include, include_text, ambient, ambient_text, supply, param, element, valued,
+                    unvalued, modelled, use, model_name, block_name, model, model_entry,
                     block, block_ports, block_body, block_statement, spec, statement, newline)
 
 /// One statement and the end of its line: what parse_netlist runs per statement.

@@ -1,0 +1,80 @@
+// The one reader of key tables: element options, model parameters and spec
+// options are all checked here against their statement's table.
+
+#include <fmt/format.h>
+
+#include "elaborate/elaborator.hpp"
+
+namespace tacet::detail {
+
+std::vector<WrittenKey> written_keys(const std::vector<ast::Option>& options) {
+  std::vector<WrittenKey> out;
+  out.reserve(options.size());
+  for (const auto& o : options) out.push_back({&o.key, o.value ? &*o.value : nullptr, &o});
+  return out;
+}
+
+std::vector<WrittenKey> written_keys(const std::vector<ast::ModelEntry>& entries) {
+  std::vector<WrittenKey> out;
+  out.reserve(entries.size());
+  for (const auto& e : entries) out.push_back({&e.key, &e.value, &e});
+  return out;
+}
+
+bool Elaborator::check_key(const WrittenKey& key, const KeyRule* rule, const KeyWording& wording,
+                           int file, const std::vector<std::string>& names) {
+  const std::string& name = key.key->text;
+  if (!rule) {
+    error(file, *key.key, fmt::format(fmt::runtime(wording.unknown), name),
+          choice_hint(name, names, wording.choices));
+    return false;
+  }
+  const bool flag = rule->form == KeyForm::flag;
+  if (flag == !key.value) return true;
+  error(file, *key.whole,
+        flag ? fmt::format("'{}' is a flag and takes no value", name)
+             : fmt::format("option '{}' needs a value", name),
+        flag ? fmt::format("write just '{}'", name) : fmt::format("write {}=...", name));
+  return false;
+}
+
+KeysRead Elaborator::read_keys(const std::vector<WrittenKey>& written, KeyTable table,
+                               const KeyWording& wording, int file, const std::string& owner,
+                               const std::function<void(const KeyValue&)>& use) {
+  KeysRead read;
+  std::vector<std::string> names;
+  for (const KeyRule& rule : table) names.emplace_back(rule.name);
+  std::set<std::string_view> given;
+  // `--set OWNER.key=` wins over the written value; a flag takes no override.
+  auto override_of = [&](const KeyRule& rule) -> ParsedOverride* {
+    if (owner.empty() || rule.form == KeyForm::flag) return nullptr;
+    ParsedOverride* o = find_override(owner + "." + std::string(rule.name));
+    if (o) o->used = true;
+    return o;
+  };
+  for (const WrittenKey& key : written) {
+    const KeyRule* rule = find_key(table, key.key->text);
+    if (!check_key(key, rule, wording, file, names)) {
+      read.ok = false;
+    } else if (!given.insert(rule->name).second) {
+      error(file, *key.key, fmt::format(fmt::runtime(wording.twice), key.key->text));
+      read.ok = false;
+    } else if (ParsedOverride* o = override_of(*rule)) {
+      use({rule, &o->value, o->file, key.whole});
+    } else {
+      use({rule, key.value, file, key.whole});
+    }
+  }
+  for (const KeyRule& rule : table) {  // --set OWNER.key for a key not written
+    if (given.count(rule.name)) continue;
+    if (ParsedOverride* o = override_of(rule)) {
+      given.insert(rule.name);
+      use({&rule, &o->value, o->file, nullptr});
+    } else if (rule.need == Need::required) {
+      read.missing.push_back(rule.name);
+    }
+  }
+  return read;
+}
+
+}  // namespace tacet::detail
