@@ -53,7 +53,7 @@ TEST_CASE("a required option left out is named with an example", "[elaborate][ke
         "hint: write gm=1m\n");
 }
 
-TEST_CASE("--set NAME.key gives an option the netlist leaves out", "[elaborate][keys]") {
+TEST_CASE("an override NAME.key= gives an option the netlist leaves out", "[elaborate][keys]") {
   auto tol = elaborate_text("res R1 (a, gnd) 1k\n", {}, with_set("R1.tol", "2%"));
   INFO(tol.diagnostics);
   REQUIRE(tol.circuit);
@@ -65,7 +65,7 @@ TEST_CASE("--set NAME.key gives an option the netlist leaves out", "[elaborate][
   CHECK(gain.circuit->elements[0].value == 5);
 }
 
-TEST_CASE("--set NAME.key wins over the value written", "[elaborate][keys]") {
+TEST_CASE("an override NAME.key= wins over the value written", "[elaborate][keys]") {
   auto r = elaborate_text("vsrc V1 (a, gnd) dc=1 ac=1\nres R1 (a, gnd) 1k\n", {},
                           with_set("V1.dc", "2.5"));
   INFO(r.diagnostics);
