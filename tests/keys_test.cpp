@@ -108,3 +108,22 @@ TEST_CASE("spec options are checked by the same reader", "[elaborate][keys]") {
         "spec g gain (a) att=1k min=1\n"
         "     ^\n");
 }
+
+TEST_CASE("block arguments are checked by the same reader", "[elaborate][keys]") {
+  const std::string block = "block rc (a, b) r=1k {\n  res R1 (a, b) r\n}\n";
+  auto r = elaborate_text(block + "use F1 (x, gnd) rc rr=2k r=1k r=2k\n");
+  CHECK(r.diagnostics ==
+        "main.tacet:4:20: error: block 'rc' has no parameter 'rr'\n"
+        "use F1 (x, gnd) rc rr=2k r=1k r=2k\n"
+        "                   ^~\n"
+        "hint: did you mean 'r'?\n"
+        "main.tacet:4:31: error: argument 'r' is given twice\n"
+        "use F1 (x, gnd) rc rr=2k r=1k r=2k\n"
+        "                              ^\n");
+  auto bare = elaborate_text(block + "use F1 (x, gnd) rc r\n");
+  CHECK(bare.diagnostics ==
+        "main.tacet:4:20: error: argument 'r' needs a value\n"
+        "use F1 (x, gnd) rc r\n"
+        "                   ^\n"
+        "hint: write r=...\n");
+}

@@ -302,9 +302,8 @@ void Elaborator::build_element(const ast::Instance& instance, int file,
   if (ok) circuit_.elements.push_back(std::move(e));
 }
 
-void Elaborator::expand_block(const ast::Instance& use, int file, const InstanceContext& context) {
-  const std::string full = context.prefix + use.name.text;
-  if (!check_unique(element_names_, "instance", use.name, file, full)) return;
+const From<ast::Block>* Elaborator::find_block(const ast::Instance& use, int file,
+                                               const InstanceContext& context) {
   const auto* id = use.value ? boost::get<ast::Identifier>(&unwrap(*use.value)) : nullptr;
   auto it = id ? blocks_.find(id->text) : blocks_.end();
   if (it == blocks_.end()) {
@@ -314,83 +313,94 @@ void Elaborator::expand_block(const ast::Instance& use, int file, const Instance
     error(file, id ? static_cast<const ast::Located&>(*id) : static_cast<const ast::Located&>(use.name),
           fmt::format("no block named '{}'", id ? id->text : ""),
           near.empty() ? "declare it with 'block NAME (ports) { ... }'" : fmt::format("did you mean '{}'?", near));
-    return;
+    return nullptr;
   }
-  const ast::Block& block = *it->second.node;
-  const int block_file = it->second.file;
-  if (std::find(context.block_stack.begin(), context.block_stack.end(), block.name.text) !=
-      context.block_stack.end()) {
-    error(file, *id, fmt::format("block '{}' uses itself", block.name.text));
-    return;
+  const std::string& name = it->second.node->name.text;
+  if (std::find(context.block_stack.begin(), context.block_stack.end(), name) != context.block_stack.end()) {
+    error(file, *id, fmt::format("block '{}' uses itself", name));
+    return nullptr;
   }
   if (context.block_stack.size() >= kDeepestBlockNesting) {
     error(file, *id, fmt::format("blocks nested more than {} deep", kDeepestBlockNesting),
           "a chain of blocks this deep is a generated netlist gone wrong; flatten it");
-    return;
+    return nullptr;
   }
+  return &it->second;
+}
+
+bool Elaborator::bind_ports(const ast::Instance& use, const ast::Block& block, int file,
+                            const InstanceContext& context, InstanceContext& inner) {
   if (!use.connections.second.empty() || use.connections.first.size() != block.ports.size()) {
     error(file, use.connections,
           fmt::format("block '{}' has {} ports, but '{}' connects {}", block.name.text,
                       block.ports.size(), use.name.text,
                       use.connections.first.size() + use.connections.second.size()));
-    return;
+    return false;
   }
-  InstanceContext inner;
-  inner.prefix = full + ".";
-  inner.block_stack = context.block_stack;
-  inner.block_stack.push_back(block.name.text);
   for (std::size_t i = 0; i < block.ports.size(); ++i) {
     const auto& t = use.connections.first[i];
     if (t.polarity != 0) {
       error(file, t, "block connections are not marked + or -");
-      return;
+      return false;
     }
     inner.ports[block.ports[i].node] = resolve_node(t.node, context, {file, t.offset});
   }
+  return true;
+}
 
-  // Arguments: every argument names a parameter; a parameter without a default must be given.
-  Scope scope;
-  scope.parent = &globals_;
+// Every argument names a parameter; a parameter without a default must be given.
+bool Elaborator::bind_arguments(const ast::Instance& use, int file, const From<ast::Block>& block,
+                                const std::string& full, const Scope& outer, Scope& scope) {
+  std::vector<KeyRule> parameters;
+  for (const auto& p : block.node->parameters) parameters.push_back({p.key.text, Dimension::any});
+  const KeyWording wording{
+      fmt::format("block '{}' has no parameter '{{}}'", block.node->name.text), "parameters",
+      "argument '{}' is given twice", "argument '{}' needs a value"};
   bool ok = true;
-  std::vector<std::string> param_names;
-  for (const auto& p : block.parameters) param_names.push_back(p.key.text);
-  for (const auto& arg : use.options) {
-    if (std::find(param_names.begin(), param_names.end(), arg.key.text) == param_names.end()) {
-      error(file, arg.key, fmt::format("block '{}' has no parameter '{}'", block.name.text, arg.key.text),
-            choice_hint(arg.key.text, param_names, "parameters"));
-      ok = false;
-    } else if (!arg.value) {
-      error(file, arg, fmt::format("argument '{}' needs a value", arg.key.text),
-            fmt::format("write {}=...", arg.key.text));
-      ok = false;
-    } else if (scope.params.count(arg.key.text)) {
-      error(file, arg.key, fmt::format("argument '{}' is given twice", arg.key.text));
-      ok = false;
-    } else {
-      auto v = overridden(full + "." + arg.key.text, *context.scope, Dimension::any);
-      if (!v) v = value_of(*arg.value, file, *context.scope, Dimension::any);
-      if (v) scope.params[arg.key.text] = {*v, {file, arg.key.offset}}; else ok = false;
-    }
-  }
-  for (const auto& p : block.parameters) {
+  // Arguments are evaluated where the block is used; --set F1.r= wins.
+  const KeysRead keys = read_keys(written_keys(use.options), parameters, wording, file, "",
+                                  [&](const KeyValue& arg) {
+                                    const std::string name(arg.rule->name);
+                                    auto v = overridden(full + "." + name, outer, Dimension::any);
+                                    if (!v) v = value_of(*arg.value, file, outer, Dimension::any);
+                                    if (v) scope.params[name] = {*v, {file, arg.key->offset}};
+                                    else ok = false;
+                                  });
+  ok = ok && keys.ok;
+  for (const auto& p : block.node->parameters) {
     if (scope.params.count(p.key.text)) continue;
     // A default may refer to the parameters before it (g=2*r) and to the file's params.
     std::optional<double> v = overridden(full + "." + p.key.text, scope, Dimension::any);
-    if (!v && p.value) v = value_of(*p.value, block_file, scope, Dimension::any);
+    if (!v && p.value) v = value_of(*p.value, block.file, scope, Dimension::any);
     if (!v && !p.value) {
       error(file, use.name, fmt::format("'{}' needs a value for parameter '{}' of block '{}'",
-                                        use.name.text, p.key.text, block.name.text),
+                                        use.name.text, p.key.text, block.node->name.text),
             fmt::format("write {}=...", p.key.text));
     }
-    if (v) scope.params[p.key.text] = {*v, {block_file, p.key.offset}}; else ok = false;
+    if (v) scope.params[p.key.text] = {*v, {block.file, p.key.offset}}; else ok = false;
   }
-  if (!ok) return;
+  return ok;
+}
+
+void Elaborator::expand_block(const ast::Instance& use, int file, const InstanceContext& context) {
+  const std::string full = context.prefix + use.name.text;
+  if (!check_unique(element_names_, "instance", use.name, file, full)) return;
+  const From<ast::Block>* block = find_block(use, file, context);
+  if (!block) return;
+  InstanceContext inner;
+  inner.prefix = full + ".";
+  inner.block_stack = context.block_stack;
+  inner.block_stack.push_back(block->node->name.text);
+  if (!bind_ports(use, *block->node, file, context, inner)) return;
+  Scope scope;
+  scope.parent = &globals_;
+  if (!bind_arguments(use, file, *block, full, *context.scope, scope)) return;
   inner.scope = &scope;
-  for (const auto& statement : block.body) {
+  for (const auto& statement : block->node->body) {
     if (const auto* param = boost::get<ast::Param>(&statement))
-      declare_param(*param, block_file, scope, inner.prefix);
+      declare_param(*param, block->file, scope, inner.prefix);
     else
-      instantiate(boost::get<ast::Instance>(statement), block_file, inner);
+      instantiate(boost::get<ast::Instance>(statement), block->file, inner);
   }
 }
 

@@ -46,6 +46,7 @@ struct KeyWording {
   std::string unknown;   ///< "'res' takes no option '{}'"
   std::string choices;   ///< what a hint that lists the keys calls them: "options"
   std::string twice;     ///< "option '{}' is given twice"
+  std::string needs_value = "option '{}' needs a value";
 };
 
 /// An accepted key, as the statement will read it: the value of `--set
@@ -53,9 +54,10 @@ struct KeyWording {
 /// the value written.
 struct KeyValue {
   const KeyRule* rule = nullptr;
+  const ast::Identifier* key = nullptr;  ///< the key as written; nullptr when only --set gives it
   const ast::Expr* value = nullptr;      ///< nullptr for a flag
   int file = -1;                         ///< the file `value` is in
-  const ast::Located* written = nullptr; ///< the key as written; nullptr when only --set gives it
+  const ast::Located* written = nullptr; ///< the whole `key=value` written, or nullptr
 };
 
 struct KeysRead {
@@ -131,6 +133,12 @@ class Elaborator {
   void build_element(const ast::Instance& instance, int file, const InstanceContext& context,
                      ElementKind kind);
   void expand_block(const ast::Instance& use, int file, const InstanceContext& context);
+  const From<ast::Block>* find_block(const ast::Instance& use, int file,
+                                     const InstanceContext& context);
+  bool bind_ports(const ast::Instance& use, const ast::Block& block, int file,
+                  const InstanceContext& context, InstanceContext& inner);
+  bool bind_arguments(const ast::Instance& use, int file, const From<ast::Block>& block,
+                      const std::string& full, const Scope& outer, Scope& scope);
   bool check_connections(const ast::Instance& instance, int file, ElementKind kind);
   std::vector<int> connect(const ast::Instance& instance, const InstanceContext& context,
                            ElementKind kind, int file);

@@ -33,7 +33,7 @@ bool Elaborator::check_key(const WrittenKey& key, const KeyRule* rule, const Key
   if (flag == !key.value) return true;
   error(file, *key.whole,
         flag ? fmt::format("'{}' is a flag and takes no value", name)
-             : fmt::format("option '{}' needs a value", name),
+             : fmt::format(fmt::runtime(wording.needs_value), name),
         flag ? fmt::format("write just '{}'", name) : fmt::format("write {}=...", name));
   return false;
 }
@@ -60,16 +60,16 @@ KeysRead Elaborator::read_keys(const std::vector<WrittenKey>& written, KeyTable 
       error(file, *key.key, fmt::format(fmt::runtime(wording.twice), key.key->text));
       read.ok = false;
     } else if (ParsedOverride* o = override_of(*rule)) {
-      use({rule, &o->value, o->file, key.whole});
+      use({rule, key.key, &o->value, o->file, key.whole});
     } else {
-      use({rule, key.value, file, key.whole});
+      use({rule, key.key, key.value, file, key.whole});
     }
   }
   for (const KeyRule& rule : table) {  // --set OWNER.key for a key not written
     if (given.count(rule.name)) continue;
     if (ParsedOverride* o = override_of(rule)) {
       given.insert(rule.name);
-      use({&rule, &o->value, o->file, nullptr});
+      use({&rule, nullptr, &o->value, o->file, nullptr});
     } else if (rule.need == Need::required) {
       read.missing.push_back(rule.name);
     }
