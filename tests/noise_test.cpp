@@ -262,12 +262,12 @@ TEST_CASE("rejects a probe at an unknown node", "[noise][errors]") {
                     "error: unknown node 'otu' in probe 'otu'\nhint: did you mean 'out'?\n");
 }
 
-TEST_CASE("rejects a band whose F1 is not below F2 or not above 0", "[noise][errors]") {
+TEST_CASE("rejects a band whose low end is not below its high end or not above 0", "[noise][errors]") {
   const auto circuit = rc_lowpass(1e3, 1e-9);
   CHECK_THROWS_WITH(run_noise(circuit, noise_at({1e3}, "out", 20e3, 20)),
-                    "error: --band 20k..20: F1 must be below F2\n");
+                    "error: --band 20k..20: the low end must be below the high end\n");
   CHECK_THROWS_WITH(run_noise(circuit, noise_at({1e3}, "out", 0, 20)),
-                    "error: --band 0..20: F1 must be a finite frequency above 0 Hz\n");
+                    "error: --band 0..20: both ends must be finite frequencies above 0 Hz\n");
   CHECK_THROWS_AS(run_noise(circuit, noise_at({1e3}, "out", 5, 5)), InputError);
 }
 

@@ -2,6 +2,8 @@
 // source with a declared level, then every op-amp pin against its limits.
 
 #include "tacet/analysis/headroom.hpp"
+
+#include "tacet/circuit/band.hpp"
 #include "tacet/common/constants.hpp"
 
 #include <fmt/format.h>
@@ -35,20 +37,18 @@ std::vector<LevelSource> level_sources(const Circuit& circuit) {
   return sources;
 }
 
-struct Band {
-  double low, high;
-};
-
-Band band_of(const Circuit& circuit, const HeadroomOptions& options,
-             const std::vector<LevelSource>& sources) {
+/// The headroom band: the one given, else from the lowest band_low= to the
+/// highest band_high= of the level sources.
+Band headroom_band(const Circuit& circuit, const HeadroomOptions& options,
+                   const std::vector<LevelSource>& sources) {
   if (options.band_low > 0) return {options.band_low, options.band_high};
   Band band{0, 0};
   for (const auto& e : circuit.elements) {
     if (e.kind != ElementKind::vsource || !e.level || e.band_low <= 0) continue;
-    band.low = band.low > 0 ? std::min(band.low, e.band_low) : e.band_low;
-    band.high = std::max(band.high, e.band_high);
+    band.from = band.from > 0 ? std::min(band.from, e.band_low) : e.band_low;
+    band.to = std::max(band.to, e.band_high);
   }
-  if (band.low > 0) return band;
+  if (band.from > 0) return band;
   const std::string& name = sources.front().name;
   throw InputError::usage(
       fmt::format("the headroom at the level of '{}' needs a band", name),
@@ -167,13 +167,7 @@ bool is_hazardous(const SignalLevel& level) {
 std::string HeadroomOptions::validate() const {
   if (per_decade < 1) return fmt::format("--per-decade {} must be at least 1", per_decade);
   if (band_low == 0 && band_high == 0) return {};
-  if (!(std::isfinite(band_low) && band_low > 0 && std::isfinite(band_high)))
-    return fmt::format("--band {}..{}: both ends must be finite frequencies above 0 Hz",
-                       format_si(band_low), format_si(band_high));
-  if (!(band_low < band_high))
-    return fmt::format("--band {}..{}: the low end must be below the high end",
-                       format_si(band_low), format_si(band_high));
-  return {};
+  return Band{band_low, band_high}.validate();
 }
 
 HeadroomResult run_headroom(const Circuit& circuit, const BiasResult& bias,
@@ -185,8 +179,8 @@ HeadroomResult run_headroom(const Circuit& circuit, const BiasResult& bias,
   for (const auto& source : result.sources)
     if (source.hazardous) result.cautions.push_back(caution(source));
   if (result.sources.empty()) return result;
-  const Band band = band_of(circuit, options, result.sources);
-  result.band_low = band.low, result.band_high = band.high;
+  const Band band = headroom_band(circuit, options, result.sources);
+  result.band_low = band.from, result.band_high = band.to;
 
   std::vector<const Element*> amps;
   for (const auto& e : circuit.elements) {
@@ -202,7 +196,7 @@ HeadroomResult run_headroom(const Circuit& circuit, const BiasResult& bias,
   }
 
   Sweep grid;
-  grid.from = band.low, grid.to = band.high, grid.per_decade = options.per_decade;
+  grid.from = band.from, grid.to = band.to, grid.per_decade = options.per_decade;
   FrequencyResponse response(circuit, options.solver);
   const MnaSystem& mna = response.mna();
   Vector x(static_cast<std::size_t>(mna.size()));

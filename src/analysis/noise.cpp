@@ -106,7 +106,8 @@ InputPort resolve_input(const std::string& name, const Circuit& circuit, const M
       "name a vsrc or isrc; " + listed);
 }
 
-Band band_of(const NoiseOptions& options) {
+/// The integration band: the one given, else the sweep's lowest to highest point.
+Band integration_band(const NoiseOptions& options) {
   if (options.band) return *options.band;
   const auto f = options.sweep.frequencies();
   const auto [low, high] = std::minmax_element(f.begin(), f.end());
@@ -192,18 +193,11 @@ std::optional<NoiseMechanism> parse_noise_mechanism(const std::string& text) {
   return std::nullopt;
 }
 
-std::string Band::validate() const {
-  const std::string band = fmt::format("--band {}..{}", format_si(from), format_si(to));
-  if (!positive(from) || !std::isfinite(to)) return band + ": F1 must be a finite frequency above 0 Hz";
-  if (!(from < to)) return band + ": F1 must be below F2";
-  return {};
-}
-
 std::string NoiseOptions::validate() const {
   if (auto problem = sweep.validate(); !problem.empty()) return problem;
   if (band) {
     if (auto problem = band->validate(); !problem.empty()) return problem;
-  } else if (auto problem = band_of(*this).validate(); !problem.empty()) {
+  } else if (auto problem = integration_band(*this).validate(); !problem.empty()) {
     return "a single frequency has no band to integrate over: give --band F1..F2";
   }
   if (level && input.empty()) return "--level needs --input: the source that carries the signal";
@@ -219,7 +213,7 @@ NoiseResult run_noise(const Circuit& circuit, const NoiseOptions& options) {
   NoiseResult result;
   result.probe = resolve_probe(options.probe, circuit);
   result.input = options.input;
-  result.band = band_of(options);
+  result.band = integration_band(options);
   result.temperature_kelvin = circuit.ambient_celsius + kZeroCelsius;
   result.frequencies = options.sweep.frequencies();
 

@@ -187,7 +187,7 @@ bool Elaborator::check_level(const Element& e, const ast::Instance& instance, in
           "write band_low=20Hz band_high=20kHz");
     return false;
   }
-  if (e.band_low > 0 && !(e.band_low < e.band_high)) {
+  if (e.band_low > 0 && !Band{e.band_low, e.band_high}.valid()) {
     error(file, instance.name,
           fmt::format("'{}': band_low= {:g} Hz must be below band_high= {:g} Hz", e.name,
                       e.band_low, e.band_high));

@@ -129,7 +129,7 @@ bool Elaborator::read_spec_band(Spec& spec, const SpecKeys& given) {
   spec.from = positive("from");
   spec.to = positive("to");
   spec.ref = positive("ref");
-  if (given.count("from") && given.count("to") && ok && spec.from >= spec.to) {
+  if (given.count("from") && given.count("to") && ok && !Band{spec.from, spec.to}.valid()) {
     const KeyValue& from = given.at("from");
     error(from.file, extent(*from.value),
           fmt::format("from={}Hz must be below to={}Hz", spec.from, spec.to),

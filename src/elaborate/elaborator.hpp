@@ -12,6 +12,7 @@
 
 #include "tacet/language/ast.hpp"
 #include "tacet/circuit/circuit.hpp"
+#include "tacet/circuit/band.hpp"
 #include "tacet/elaborate/elaborate.hpp"
 #include "tacet/language/expression.hpp"
 #include "tacet/language/key_table.hpp"

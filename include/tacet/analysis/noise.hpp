@@ -37,6 +37,7 @@
 #include <vector>
 
 #include "tacet/analysis/ac.hpp"
+#include "tacet/circuit/band.hpp"
 #include "tacet/circuit/circuit.hpp"
 #include "tacet/solve/probe.hpp"
 #include "tacet/solve/sparse_solver.hpp"
@@ -50,14 +51,6 @@ enum class NoiseMechanism { thermal, en, in_plus, in_minus };
 /// "thermal", "en", "in+", "in-" (the JSON and table spelling).
 const char* to_string(NoiseMechanism mechanism);
 std::optional<NoiseMechanism> parse_noise_mechanism(const std::string& text);
-
-/// A frequency band, Hz.
-struct Band {
-  double from = 0;
-  double to = 0;
-  /// Empty when 0 < from < to and both finite; else a message naming --band.
-  std::string validate() const;
-};
 
 struct NoiseOptions {
   Sweep sweep;                ///< the printed points
