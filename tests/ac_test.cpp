@@ -76,7 +76,7 @@ TEST_CASE("a non-inverting amplifier matches Black's formula even with a very la
 }
 
 TEST_CASE("a second op-amp pole multiplies the open-loop gain by 1/(1 + s/wp2)", "[ac]") {
-  // Same Black's formula, A(s) = aol / ((1 + s/wp)(1 + s/wp2)) as in the brief.
+  // Same Black's formula, A(s) = aol / ((1 + s/wp)(1 + s/wp2)) as in docs/analyses/ac.md.
   const double rg = 1e3, rf = 1e3, gbw = 10e6, aol = 1e5, fp2 = 30e6;
   OpAmpModel model = single_pole(gbw, aol);
   model.fp2 = fp2;

@@ -69,7 +69,7 @@ TEST_CASE("200 W into 8 ohm is 40 V rms and 56.6 V peak", "[headroom]") {
 
 TEST_CASE("a level above 30 V rms or 42.4 V peak is hazardous and carries a caution",
           "[headroom]") {
-  // The usual extra-low-voltage limits (common practice, brief section 11).
+  // The usual extra-low-voltage limits (common practice; docs/analyses/bias.md).
   CHECK(is_hazardous({LevelUnit::power, 200, 8}));
   CHECK(is_hazardous({LevelUnit::rms, 30.5, 0}));
   CHECK(is_hazardous({LevelUnit::peak, 43, 0}));

@@ -114,7 +114,7 @@ TEST_CASE("R parallel C has the single-pole density, its atan band total and kT/
   for (std::size_t k = 0; k < f.size(); ++k)
     CHECK_THAT(result.density[k], IsClose(std::sqrt(4 * kT25 * r) / std::abs(1.0 + jw(f[k]) * r * c), 1e-12));
   const double band = 4 * kT25 * r / tau * (std::atan(tau * 20e3) - std::atan(tau * 20));
-  CHECK_THAT(result.total_rms * result.total_rms, IsClose(band, 1e-9));  // the brief asks 1e-3
+  CHECK_THAT(result.total_rms * result.total_rms, IsClose(band, 1e-9));  // docs/analyses/noise.md promises 1e-9
   // Wide band 1e-6 fc .. 1e6 fc: the atan form is within 1.3e-6 of kT/C.
   result = run_noise(b.circuit, noise_at(f, "out", 1591.5494309189535e-6, 1591.5494309189535e6));
   CHECK_THAT(result.total_rms * result.total_rms, IsClose(kT25 / c, 2e-6));

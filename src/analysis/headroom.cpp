@@ -22,7 +22,7 @@ namespace tacet {
 namespace {
 
 constexpr double kSqrt2 = 1.4142135623730950488016887242097;
-// The usual extra-low-voltage limits (brief section 11).
+// The usual extra-low-voltage limits (docs/analyses/bias.md, "Cautions").
 constexpr double kHazardRms = 30.0;
 constexpr double kHazardPeak = 42.4;
 

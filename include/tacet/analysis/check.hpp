@@ -27,7 +27,8 @@ struct CheckResult {
 };
 
 /// Measures every spec. Throws SolveError when the circuit cannot be solved,
-/// InputError when a spec needs an analysis this build cannot run.
+/// and InputError when a spec's analysis refuses its input (a rails spec on
+/// a level source with no band, say).
 CheckResult run_check(const Circuit& circuit);
 
 /// Margin of `value` inside the optional window [min, max]: the smaller

@@ -1,8 +1,10 @@
 #pragma once
 // diff: two revisions of a netlist analysed alike. What changed in the circuit
 // (elements, models, params, matched by hierarchical name) and what changed in
-// the results (each probe's largest change in gain and phase and where, every
-// spec whose verdict or margin moved).
+// the results: each probe's largest change in gain and phase and where; with a
+// band, each voltage probe's noise total and its largest contributors; every
+// node whose DC point or worst-case band moved; every spec whose verdict or
+// margin moved. The fields of DiffResult below are what the writers show.
 
 #include <optional>
 #include <string>
