@@ -110,3 +110,45 @@ TEST_CASE("division by zero and overflow are errors, never an infinite value", "
   CHECK_FALSE(overflow.value);
   CHECK(overflow.diagnostics.find("error: value overflows") != std::string::npos);
 }
+
+TEST_CASE("sums and products associate to the left; a sign after an operator is a sign",
+          "[expression]") {
+  CHECK(value_of("8 - 3 - 2") == 3);
+  CHECK(value_of("12 / 2 / 3") == 2);
+  CHECK(value_of("2 * -3") == -6);
+  CHECK(value_of("2 ^ -1") == 0.5);
+}
+
+TEST_CASE("every function and pi give their textbook values", "[expression]") {
+  CHECK(value_of("undb(20)") == Approx(10));
+  CHECK(value_of("log10(1000)") == Approx(3));
+  CHECK(value_of("ln(exp(2))") == Approx(2));
+  CHECK(value_of("abs(-3) + min(1, 2)") == 4);
+  CHECK(value_of("2 * pi") == Approx(6.283185307179586));
+  CHECK(value_of("atan(1) * 4") == Approx(3.141592653589793));
+  CHECK(value_of("sin(pi / 2) + cos(0)") == Approx(2));
+}
+
+TEST_CASE("what cannot be evaluated is reported word for word", "[expression]") {
+  CHECK(evaluate_text("10kx", Dimension::resistance).diagnostics ==
+        "expr:1:1: error: unknown unit or prefix 'kx'\n"
+        "10kx\n"
+        "^~~~\n");
+  CHECK(evaluate_text("1 / (2 - 2)", Dimension::none).diagnostics ==
+        "expr:1:6: error: division by zero\n"
+        "1 / (2 - 2)\n"
+        "     ^~~~~\n");  // the divisor, inside its parentheses
+  CHECK(evaluate_text("sqrt(-1)", Dimension::none).diagnostics ==
+        "expr:1:1: error: sqrt() is not defined for this argument\n"
+        "sqrt(-1)\n"
+        "^~~~~~~~\n");
+  CHECK(evaluate_text("sqr(4)", Dimension::none).diagnostics ==
+        "expr:1:1: error: unknown function 'sqr'\n"
+        "sqr(4)\n"
+        "^~~\n"
+        "hint: did you mean 'sqrt'?\n");
+  CHECK(evaluate_text("par(1k)", Dimension::none).diagnostics ==
+        "expr:1:1: error: par() takes 2 arguments, not 1\n"
+        "par(1k)\n"
+        "^~~~~~~\n");
+}

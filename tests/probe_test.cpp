@@ -7,6 +7,7 @@
 
 #include "is_close.hpp"
 #include "reference_circuits.hpp"
+#include "tacet/analysis/ac.hpp"
 #include "tacet/common/errors.hpp"
 #include "tacet/solve/response.hpp"
 
@@ -51,4 +52,58 @@ TEST_CASE("a pair probe reads the difference of its nodes and a resistor's curre
   const cplx across = jw(f) * r * c / (1.0 + jw(f) * r * c);
   CHECK_THAT(response.at(resolve_probe("in,out", circuit), f), IsClose(across, 1e-9));
   CHECK_THAT(response.at(resolve_probe("i(R1)", circuit), f), IsClose(across / r, 1e-9));
+}
+
+namespace {
+
+constexpr double kF = 1e3;  // Hz, where every value below is read
+
+// One 1 V source driving a divider, a capacitor and an inductor branch; a
+// 1 mA current source into a resistor; a vccs into a resistor; a follower.
+Circuit probe_bench() {
+  CircuitBuilder b;
+  b.vsrc("V1", "in", "gnd", 1.0);
+  b.add(ElementKind::resistor, "R1", {"in", "mid"}, 1e3);
+  b.add(ElementKind::resistor, "R2", {"mid", "gnd"}, 3e3);
+  b.add(ElementKind::capacitor, "C1", {"in", "gnd"}, 1e-6);
+  b.add(ElementKind::inductor, "L1", {"in", "z"}, 1e-3);
+  b.add(ElementKind::resistor, "R6", {"z", "gnd"}, 1e3);
+  b.isrc("I1", "gnd", "x", 1e-3);
+  b.add(ElementKind::resistor, "R3", {"x", "gnd"}, 1e3);
+  b.add(ElementKind::vccs, "G1", {"y", "gnd", "in", "gnd"}, 1e-3);
+  b.add(ElementKind::resistor, "R5", {"y", "gnd"}, 1e3);
+  b.opamp("U1", "in", "o", "o", single_pole(10e6, 1e6));
+  b.add(ElementKind::resistor, "R4", {"o", "gnd"}, 1e3);
+  return b.circuit;
+}
+
+cplx read(const Circuit& circuit, const std::string& probe) {
+  AcOptions options;
+  options.sweep.kind = SweepKind::list;
+  options.sweep.at = {kF};
+  options.probes = {probe};
+  return run_ac(circuit, options).traces.at(0).values.at(0);
+}
+
+}  // namespace
+
+TEST_CASE("a current probe reads the current from the first connection to the second",
+          "[probe]") {
+  const Circuit c = probe_bench();
+  const cplx s = jw(kF);
+  CHECK_THAT(read(c, "i(R1)"), IsClose(0.25e-3, 1e-9));                  // (1 - 0.75) V / 1k
+  CHECK_THAT(read(c, "i(C1)"), IsClose(s * 1e-6, 1e-9));                  // s C V
+  CHECK_THAT(read(c, "i(L1)"), IsClose(1.0 / (1e3 + s * 1e-3), 1e-9));    // V / (R + s L)
+  CHECK_THAT(read(c, "i(I1)"), IsClose(1e-3, 1e-9));                      // its own phasor
+  CHECK_THAT(read(c, "x"), IsClose(1.0, 1e-9));                           // 1 mA into 1k
+  CHECK_THAT(read(c, "i(G1)"), IsClose(1e-3, 1e-9));                      // gm (v(in) - 0)
+  CHECK_THAT(read(c, "y"), IsClose(-1.0, 1e-9));                          // drawn out of y
+  // The source delivers each branch's current out of its + terminal, so the
+  // current through it from + to - is minus their sum (G1 and U1 only sense in).
+  CHECK_THAT(read(c, "i(V1)"), IsClose(-(0.25e-3 + s * 1e-6 + 1.0 / (1e3 + s * 1e-3)), 1e-9));
+  // Follower (Black's formula): v(o) = A / (1 + A), A = aol / (1 + s aol / (2 pi gbw));
+  // i(U1) is what its output delivers into the pin, here into R4.
+  const cplx a = 1e6 / (1.0 + s * 1e6 / (2 * kPi * 10e6));
+  CHECK_THAT(read(c, "o"), IsClose(a / (1.0 + a), 1e-9));
+  CHECK_THAT(read(c, "i(U1)"), IsClose(a / (1.0 + a) / 1e3, 1e-9));
 }
