@@ -127,3 +127,14 @@ TEST_CASE("block arguments are checked by the same reader", "[elaborate][keys]")
         "                   ^\n"
         "hint: write r=...\n");
 }
+
+TEST_CASE("a malformed key is reported once and does not count as given", "[elaborate][keys]") {
+  // `tol` without a value is refused; the `tol=1%` after it is then the first
+  // tol, not a second one.
+  auto r = elaborate_text("res R1 (a, gnd) 1k tol tol=1%\n");
+  CHECK(r.diagnostics ==
+        "main.tacet:1:20: error: option 'tol' needs a value\n"
+        "res R1 (a, gnd) 1k tol tol=1%\n"
+        "                   ^~~\n"
+        "hint: write tol=...\n");
+}

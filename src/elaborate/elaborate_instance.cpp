@@ -2,6 +2,7 @@
 
 #include <fmt/format.h>
 
+#include <stdexcept>
 #include <string_view>
 
 #include "elaborate/elaborator.hpp"
@@ -241,7 +242,10 @@ bool Elaborator::read_model_name(Element& e, const ast::Expr& value, int file) {
 
 bool Elaborator::apply_option(Element& e, const KeyValue& option, const Scope& scope, double& load) {
   const std::string_view key = option.rule->name;
-  if (option.rule->form == KeyForm::flag) return e.noiseless = true;  // noiseless, the only flag
+  if (option.rule->form == KeyForm::flag) {  // noiseless, the only flag
+    e.noiseless = true;
+    return true;
+  }
   if (key == "rails") return (e.rails = rails_of(*option.value, option.file, scope)).has_value();
   if (key == "level") return (e.level = level_of(*option.value, option.file, scope)).has_value();
   const auto v = value_of(*option.value, option.file, scope, option.rule->dimension);
@@ -259,8 +263,10 @@ bool Elaborator::apply_option(Element& e, const KeyValue& option, const Scope& s
       return false;
     }
     load = *v;
+  } else if (double* field = numeric_field(e, key)) {
+    *field = *v;
   } else {
-    *numeric_field(e, key) = *v;
+    throw std::logic_error("option '" + std::string(key) + "' has no field in numeric_field");
   }
   return true;
 }
