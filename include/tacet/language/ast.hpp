@@ -5,7 +5,7 @@
 //
 // The node types mirror the productions of grammar/tacet.ebnf. Only the
 // variant and forward_ast helpers of Spirit X3 are used here; the parser
-// itself lives in src/parser/.
+// itself lives in src/language/parser/.
 
 #include <cstdint>
 #include <string>

@@ -16,7 +16,8 @@ namespace tacet {
 std::optional<ast::Netlist> parse_netlist(std::string_view text, int file_id,
                                           Diagnostics& diagnostics);
 
-/// The statement keywords of the language, for "did you mean" hints.
+/// The statement keywords of the language (the element keywords from the table of
+/// kinds, element_kinds.hpp), for "did you mean" hints and error recovery.
 const std::vector<std::string>& statement_keywords();
 
 }  // namespace tacet
