@@ -304,3 +304,39 @@ TEST_CASE("without --band the band is the sweep's first to last point", "[noise]
   CHECK(r.band.to == 20e3);
   CHECK_THAT(r.total_rms, IsClose(std::sqrt(4 * kT25 * 1e3 * (20e3 - 20)), 1e-9));
 }
+
+TEST_CASE("the largest contributors' densities add in power to the total at every point",
+          "[noise]") {
+  // Uncorrelated sources add in power (superposition of independent noise).
+  OpAmpModel m = single_pole(10e6, 1e5);
+  m.en = 4e-9;
+  m.in = 1e-12;
+  m.fce = 100;
+  const std::vector<double> f{10, 1e3, 1e5};
+  const auto r = run_noise(noninverting(2.2e3, 9e3, 1e3, m), noise_at(f, "out", 10, 1e5));
+  REQUIRE(r.contributors.size() == 6);  // Rs, Rf, Rg thermal; U1 en, in+, in-
+  REQUIRE(r.contributor_density.size() == 6);
+  for (std::size_t k = 0; k < f.size(); ++k) {
+    double power = 0;
+    for (const auto& c : r.contributor_density) power += c.density[k] * c.density[k];
+    CHECK_THAT(std::sqrt(power), IsClose(r.density[k], 1e-12));
+  }
+  for (std::size_t j = 0; j < 6; ++j) {
+    CHECK(r.contributor_density[j].source == r.contributors[j].source);
+    CHECK(r.contributor_density[j].mechanism == r.contributors[j].mechanism);
+  }
+}
+
+TEST_CASE("only the asked number of largest contributors get a density per point", "[noise]") {
+  OpAmpModel m = single_pole(10e6, 1e5);
+  m.en = 4e-9;
+  m.in = 1e-12;
+  auto options = noise_at({10, 1e3}, "out", 10, 1e5);
+  options.curves = 2;
+  const auto r = run_noise(noninverting(2.2e3, 9e3, 1e3, m), options);
+  CHECK(r.contributors.size() == 6);
+  REQUIRE(r.contributor_density.size() == 2);
+  CHECK(r.contributor_density[0].source == r.contributors[0].source);
+  CHECK(r.contributor_density[1].source == r.contributors[1].source);
+  CHECK(r.contributor_density[0].density.size() == 2);
+}

@@ -114,14 +114,24 @@ Band integration_band(const NoiseOptions& options) {
   return {*low, *high};
 }
 
-// Sweep points: the density, and with an input the gain and the input-referred density.
-void fill_points(NoiseResult& result, AdjointSolver& adjoint,
-                 const std::vector<NoiseSource>& sources, const InputPort* input) {
+// Sweep points: the density, the densities of the `largest` sources, and with
+// an input the gain and the input-referred density.
+void fill_points(NoiseResult& result, AdjointSolver& adjoint, const Circuit& circuit,
+                 const std::vector<NoiseSource>& sources, const std::vector<std::size_t>& largest,
+                 const InputPort* input) {
+  for (std::size_t k : largest)
+    result.contributor_density.push_back(
+        {circuit.elements[sources[k].element].name, sources[k].mechanism, {}});
+  std::vector<double> part(sources.size());
   for (double f : result.frequencies) {
     const auto& y = adjoint.solve(f);
     double power = 0;
-    for (const NoiseSource& source : sources)
-      power += std::norm(transfer(y, source.plus, source.minus)) * source.power(f);
+    for (std::size_t i = 0; i < sources.size(); ++i) {
+      part[i] = std::norm(transfer(y, sources[i].plus, sources[i].minus)) * sources[i].power(f);
+      power += part[i];
+    }
+    for (std::size_t j = 0; j < largest.size(); ++j)
+      result.contributor_density[j].density.push_back(std::sqrt(part[largest[j]]));
     result.density.push_back(std::sqrt(power));
     if (!input) continue;
     const auto g = transfer(y, input->plus, input->minus);
@@ -130,9 +140,12 @@ void fill_points(NoiseResult& result, AdjointSolver& adjoint,
   }
 }
 
-// The band integral; components: total power, [input-referred power], each source.
-void integrate_contributors(NoiseResult& result, AdjointSolver& adjoint, const Circuit& circuit,
-                            const std::vector<NoiseSource>& sources, const InputPort* input) {
+// The band integral; components: total power, [input-referred power], each
+// source. Returns the sources' indices, largest share first (the contributors' order).
+std::vector<std::size_t> integrate_contributors(NoiseResult& result, AdjointSolver& adjoint,
+                                                const Circuit& circuit,
+                                                const std::vector<NoiseSource>& sources,
+                                                const InputPort* input) {
   const std::size_t first = input ? 2 : 1;
   const auto integral = integrate_band(
       result.band.from, result.band.to, first + sources.size(), first,
@@ -150,16 +163,18 @@ void integrate_contributors(NoiseResult& result, AdjointSolver& adjoint, const C
   const double total = integral.values[0];
   result.total_rms = std::sqrt(total);
   if (input) result.input_referred_rms = std::sqrt(integral.values[1]);
-  for (std::size_t i = 0; i < sources.size(); ++i) {
+  std::vector<std::size_t> order(sources.size());
+  for (std::size_t i = 0; i < order.size(); ++i) order[i] = i;
+  std::stable_sort(order.begin(), order.end(), [&](std::size_t a, std::size_t b) {
+    return integral.values[first + a] > integral.values[first + b];
+  });
+  for (std::size_t i : order) {
     const double power = integral.values[first + i];
     result.contributors.push_back({circuit.elements[sources[i].element].name,
                                    sources[i].mechanism, std::sqrt(power),
                                    total > 0 ? power / total : 0.0});
   }
-  std::stable_sort(result.contributors.begin(), result.contributors.end(),
-                   [](const NoiseContributor& a, const NoiseContributor& b) {
-                     return a.share > b.share;
-                   });
+  return order;
 }
 
 SignalToNoise signal_to_noise(const NoiseResult& result, const NoiseOptions& options,
@@ -228,8 +243,9 @@ NoiseResult run_noise(const Circuit& circuit, const NoiseOptions& options) {
   const auto sources = noise_sources(circuit, mna, result.temperature_kelvin);
   AdjointSolver adjoint(response, result.probe);
   const InputPort* port = input ? &*input : nullptr;
-  fill_points(result, adjoint, sources, port);
-  integrate_contributors(result, adjoint, circuit, sources, port);
+  std::vector<std::size_t> largest = integrate_contributors(result, adjoint, circuit, sources, port);
+  largest.resize(std::min(largest.size(), options.curves));
+  fill_points(result, adjoint, circuit, sources, largest, port);
   if (options.level) result.signal = signal_to_noise(result, options, adjoint, *input);
   return result;
 }

@@ -60,6 +60,9 @@ struct NoiseOptions {
   std::optional<double> level;      ///< V or A rms of the signal at `input`; needs `input`
   std::optional<double> reference;  ///< Hz, where the signal gain is taken; default sqrt(from to)
   SolverKind solver = SolverKind::klu;
+  /// How many of the largest contributors get their density at every printed
+  /// point (for pictures); their band shares are computed for all of them.
+  std::size_t curves = 6;
   /// Empty when valid, else a message naming the option, its value and the rule.
   std::string validate() const;
 };
@@ -70,6 +73,14 @@ struct NoiseContributor {
   NoiseMechanism mechanism = NoiseMechanism::thermal;
   double rms = 0;      ///< its rms over the band at the probe, V (or A)
   double share = 0;    ///< its fraction of the total power, 0..1
+};
+
+/// One contributor's density at every printed point (its part of `density`:
+/// the squares of all contributors' densities add up to the square of the total).
+struct ContributorDensity {
+  std::string source;
+  NoiseMechanism mechanism = NoiseMechanism::thermal;
+  std::vector<double> density;  ///< per point, V/sqrt(Hz) (A/sqrt(Hz) for i(...))
 };
 
 /// Signal against noise at the probe, when a --level is given.
@@ -93,6 +104,7 @@ struct NoiseResult {
   double total_rms = 0;                   ///< over the band, V (or A)
   std::optional<double> input_referred_rms;  ///< over the band, input source's unit
   std::vector<NoiseContributor> contributors;  ///< largest share first
+  std::vector<ContributorDensity> contributor_density;  ///< the first `curves` contributors
   std::optional<SignalToNoise> signal;
   int band_evaluations = 0;               ///< adjoint solves spent on the band integral
 };
