@@ -1,4 +1,5 @@
 #include "tacet/report/write_ac.hpp"
+#include "tacet/report/write_svg.hpp"
 
 namespace tacet {
 
@@ -7,6 +8,7 @@ const Writers<AcResult>& ac_writers() {
       {OutputFormat::table, ac_table},
       {OutputFormat::csv, ac_csv},
       {OutputFormat::json, ac_json},
+      {OutputFormat::svg, ac_svg},
   };
   return writers;
 }

@@ -10,6 +10,7 @@
 
 #include "tacet/common/format.hpp"
 #include "tacet/report/text_table.hpp"
+#include "tacet/report/write_svg.hpp"
 
 namespace tacet {
 namespace {
@@ -112,6 +113,7 @@ const Writers<NoiseResult>& noise_writers() {
        [](const NoiseResult& r, const ReportContext& c) { return noise_table(r, c); }},
       {OutputFormat::csv, noise_csv},
       {OutputFormat::json, noise_json},
+      {OutputFormat::svg, noise_svg},
   };
   return writers;
 }

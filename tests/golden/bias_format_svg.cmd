@@ -1,0 +1,4 @@
+bias
+@/bias_speaker_input.tacet
+--format
+svg

@@ -1,6 +1,0 @@
-noise
-@/rc_lowpass.tacet
---probe
-out
---format
-svg
