@@ -17,6 +17,9 @@
 // (run_noise also solves at the band integral's points, over the same
 // 1 Hz .. 100 MHz; their number is printed).
 //
+// SVG section: run_ac over 2000 points against ac_svg of its result, on
+// ladders of 10 and 1000 sections, with one probe and with four.
+//
 // Usage: tacet_bench [SIZE...]     (default 10 1000 100000; 100 log points 1 Hz..100 MHz)
 
 #include <SuiteSparse_config.h>
@@ -34,6 +37,7 @@
 #include "tacet/analysis/ac.hpp"
 #include "tacet/solve/mna.hpp"
 #include "tacet/analysis/noise.hpp"
+#include "tacet/report/write_svg.hpp"
 
 namespace {
 
@@ -253,6 +257,36 @@ void noise_section(const std::vector<int>& sizes) {
   }
 }
 
+// The picture of a sweep against the sweep: run_ac over 2000 log points, then
+// ac_svg of its result (figure, ticks, paths, text), each the fastest of three.
+void svg_section() {
+  constexpr int kSvgPoints = 2000;
+  std::printf("\nSVG of a %d-point sweep (KLU) against the sweep itself\n", kSvgPoints);
+  std::printf("%9s  %6s  %10s  %10s  %6s  %9s\n", "sections", "probes", "sweep ms", "svg ms",
+              "ratio", "svg kB");
+  for (int sections : {10, 1000}) {
+    for (int probes : {1, 4}) {
+      const auto circuit = rc_ladder(sections);
+      tacet::AcOptions options;
+      options.sweep.kind = tacet::SweepKind::list;  // 1 Hz .. 100 MHz, log-spaced
+      for (int k = 0; k < kSvgPoints; ++k)
+        options.sweep.at.push_back(std::pow(10.0, 8.0 * k / (kSvgPoints - 1)));
+      for (int k = 0; k < probes; ++k) options.probes.push_back(numbered("n", sections - k));
+      const auto result = tacet::run_ac(circuit, options);
+      const tacet::ReportContext context{"ladder.tacet", "RC ladder"};
+      const double sweep_us = fastest_of_repeats(
+          [&] { return microseconds_per_call([&] { tacet::run_ac(circuit, options); }); });
+      std::size_t bytes = 0;
+      const double svg_us = fastest_of_repeats([&] {
+        return microseconds_per_call([&] { bytes = tacet::ac_svg(result, context).size(); });
+      });
+      std::printf("%9d  %6d  %10.3f  %10.3f  %6.3f  %9.1f\n", sections, probes, sweep_us / 1e3,
+                  svg_us / 1e3, svg_us / sweep_us, static_cast<double>(bytes) / 1e3);
+      std::fflush(stdout);
+    }
+  }
+}
+
 }  // namespace
 
 
@@ -283,5 +317,6 @@ int main(int argc, char** argv) {
   for (int sections : sizes)
     if (sections <= 10000) noise_sizes.push_back(sections);
   noise_section(noise_sizes);
+  svg_section();
   return 0;
 }

@@ -25,20 +25,28 @@ constexpr const char* kInk = "#222222";
 constexpr const char* kMarkerInk = "#444444";
 
 // How a value on an axis maps to a pixel: p0 at range.low, p1 at range.high.
-struct Mapping {
-  Scale scale = Scale::linear;
-  Range range;
-  double p0 = 0, p1 = 1;
+// Called for every point of every trace, so the logarithms of the range are taken once.
+class Mapping {
+ public:
+  Mapping(Scale scale_, Range range_, double p0, double p1)
+      : scale(scale_), range(range_), p0_(p0),
+        origin_(scale_ == Scale::log ? std::log10(range_.low) : range_.low) {
+    const double span = scale == Scale::log ? std::log10(range.high) - origin_ : range.high - range.low;
+    per_unit_ = (p1 - p0) / span;
+  }
   double operator()(double v) const {
-    if (scale == Scale::log)
-      return p0 + (p1 - p0) * std::log10(v / range.low) / std::log10(range.high / range.low);
-    return p0 + (p1 - p0) * (v - range.low) / (range.high - range.low);
+    return p0_ + per_unit_ * ((scale == Scale::log ? std::log10(v) : v) - origin_);
   }
   bool usable(double v) const { return std::isfinite(v) && (scale == Scale::linear || v > 0); }
   bool inside(double v) const {
     const double tolerance = 1e-9 * std::abs(range.high - range.low);
     return usable(v) && v >= range.low - tolerance && v <= range.high + tolerance;
   }
+  const Scale scale;
+  const Range range;
+
+ private:
+  double p0_, origin_, per_unit_ = 0;
 };
 
 struct LegendEntry {
@@ -167,9 +175,9 @@ TracePath trace_path(const Trace& trace, const Mapping& x, const Mapping& y) {
     const double px = x(trace.x[i]), py = y(trace.y[i]);
     if (run == 0) first = {px, py};
     path.d += run == 0 ? 'M' : 'L';
-    path.d += number(px);
+    svg::append_number(path.d, px);
     path.d += ' ';
-    path.d += number(py);
+    svg::append_number(path.d, py);
     ++run;
   }
   return path;

@@ -26,9 +26,12 @@ std::string escape(std::string_view text);
 /// a pixel is below what any screen or printer shows and keeps files small.
 /// Values beyond +-1e6 are clamped (far outside any view box; still valid).
 std::string number(double value);
+/// number(value) appended to `out` (for path data, built point by point).
+void append_number(std::string& out, double value);
 
-/// One attribute: name and its (unescaped) value.
-using Attribute = std::pair<std::string_view, std::string>;
+/// One attribute: name and its (unescaped) value. Views, not copies: the
+/// strings they see (often temporaries in the call's braces) outlive the call.
+using Attribute = std::pair<std::string_view, std::string_view>;
 using Attributes = std::initializer_list<Attribute>;
 
 /// Writes elements in order. Every `open` is matched by a `close` (or by
