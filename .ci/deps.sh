@@ -4,7 +4,7 @@
 set -euo pipefail
 TACET_PACKAGES=(g++ cmake make libeigen3-dev libboost-dev libcli11-dev catch2
                 libsuitesparse-dev libfmt-dev nlohmann-json3-dev python3 python3-scipy
-                python3-numpy git)
+                python3-numpy git chromium)
 missing=()
 for p in "${TACET_PACKAGES[@]}"; do
   dpkg-query -W -f='${Status}' "$p" 2>/dev/null | grep -q "install ok installed" || missing+=("$p")

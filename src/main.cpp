@@ -19,6 +19,7 @@ int main(int argc, char** argv) {
   tacet::cli::setup_show(app);
   tacet::cli::setup_check(app);
   tacet::cli::setup_diff(app);
+  tacet::cli::setup_report(app);
   try {
     app.parse(argc, argv);
   } catch (const CLI::ParseError& e) {

@@ -41,7 +41,8 @@ TEST_CASE("output into a missing folder is an input error", "[output]") {
 }
 
 TEST_CASE("output formats round-trip through their names", "[output]") {
-  for (auto f : {OutputFormat::table, OutputFormat::csv, OutputFormat::json, OutputFormat::svg})
+  for (auto f : {OutputFormat::table, OutputFormat::csv, OutputFormat::json, OutputFormat::svg,
+                 OutputFormat::html})
     CHECK(parse_output_format(to_string(f)) == f);
   CHECK_FALSE(parse_output_format("xml"));
 }

@@ -12,5 +12,6 @@ void setup_bias(CLI::App& app);
 void setup_show(CLI::App& app);
 void setup_check(CLI::App& app);
 void setup_diff(CLI::App& app);
+void setup_report(CLI::App& app);
 
 }  // namespace tacet::cli

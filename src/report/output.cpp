@@ -22,12 +22,14 @@ const char* to_string(OutputFormat format) {
     case OutputFormat::csv: return "csv";
     case OutputFormat::json: return "json";
     case OutputFormat::svg: return "svg";
+    case OutputFormat::html: return "html";
   }
   return "table";
 }
 
 std::optional<OutputFormat> parse_output_format(const std::string& text) {
-  for (auto f : {OutputFormat::table, OutputFormat::csv, OutputFormat::json, OutputFormat::svg})
+  for (auto f : {OutputFormat::table, OutputFormat::csv, OutputFormat::json, OutputFormat::svg,
+                 OutputFormat::html})
     if (text == to_string(f)) return f;
   return std::nullopt;
 }
@@ -95,6 +97,8 @@ void write_in_place(const std::string& path, const std::string& text) {
 /// the same folder, then a rename, so a reader never sees half a file.
 void replace_atomically(const std::string& path, const fs::path& target, const std::string& text) {
   const fs::path folder = target.has_parent_path() ? target.parent_path() : fs::path(".");
+  if (std::error_code ec; !fs::is_directory(folder, ec))
+    throw InputError::cannot_write(path, fmt::format("the folder '{}' does not exist", folder.string()));
   std::random_device entropy;
   const fs::path temporary =
       folder / fmt::format(".{}.tmp{:08x}", target.filename().string(), entropy());

@@ -9,7 +9,7 @@ namespace tacet {
 
 /// Every format some analysis may write; which ones a given analysis has is
 /// its Writers table (writers.hpp).
-enum class OutputFormat { table, csv, json, svg };
+enum class OutputFormat { table, csv, json, svg, html };
 const char* to_string(OutputFormat format);
 /// nullopt for an unknown name.
 std::optional<OutputFormat> parse_output_format(const std::string& text);

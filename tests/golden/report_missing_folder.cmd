@@ -1,0 +1,4 @@
+report
+@/rc_lowpass.tacet
+--output
+@/no-such-folder/report.html

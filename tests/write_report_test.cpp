@@ -1,0 +1,103 @@
+// The review page: what it holds, and that it needs nothing from outside.
+
+#include "tacet/report/write_report.hpp"
+
+#include <catch2/catch.hpp>
+#include <regex>
+#include <set>
+
+#include "tacet/report/write_circuit.hpp"
+#include "text_circuit.hpp"
+
+using namespace tacet;
+using namespace tacet::testing;
+
+namespace {
+
+// A non-inverting gain of 10 (1 + 9k/1k) behind a 10 kHz RC, with a budget
+// that passes on gain and noise and fails on the corner.
+const char* kNetlist = R"(title "Review <test> & co"
+model fast opamp {
+  gbw 10MHz
+  aol 100dB
+  en  5nV/rtHz
+  in  1pA/rtHz
+}
+vsrc Vin (in, gnd) ac=1
+res Rs (in, p) 1k
+opamp U1 (+p, -fb, out) fast
+res Rf (out, fb) 9k
+res Rg (fb, gnd) 1k
+res Ro (out, f) 1.59k
+cap Co (f, gnd) 10n
+spec gain_1k gain (f) at=1kHz min=19.9dB max=20.1dB
+spec corner upper_corner (f) ref=100Hz min=20kHz max=30kHz
+spec hiss noise (f) from=20Hz to=20kHz max=100uV
+)";
+
+std::string page_of(const char* netlist) {
+  auto elaborated = elaborate_text(netlist);
+  INFO(elaborated.diagnostics);
+  REQUIRE(elaborated.circuit);
+  const ReportContext context{"review.tacet", elaborated.circuit->title};
+  return report_html({run_review(*elaborated.circuit), circuit_listing(*elaborated.circuit, context)},
+                     context);
+}
+
+std::size_t count(const std::string& text, const std::string& what) {
+  std::size_t n = 0;
+  for (auto k = text.find(what); k != std::string::npos; k = text.find(what, k + 1)) ++n;
+  return n;
+}
+
+}  // namespace
+
+TEST_CASE("the review page opens with the budget, every spec with its verdict", "[report]") {
+  const std::string page = page_of(kNetlist);
+  CHECK(page.rfind("<!DOCTYPE html>\n<html lang=\"en\">", 0) == 0);
+  CHECK(page.find("<title>Review &lt;test&gt; &amp; co</title>") != std::string::npos);
+  CHECK(page.find("<p class=\"summary fail\">3 specs: 2 pass, 1 fail</p>") != std::string::npos);
+  CHECK(count(page, "<td class=\"pass\">PASS</td>") == 2);
+  CHECK(count(page, "<td class=\"fail\">FAIL</td>") == 1);
+  // Order: budget, response, noise, bias, circuit.
+  const auto budget = page.find("<h2>Budget</h2>"), response = page.find("<h2>Frequency response</h2>"),
+             noise = page.find("<h2>Noise</h2>"), bias = page.find("<h2>DC operating point"),
+             circuit = page.find("<h2>Circuit</h2>");
+  REQUIRE(circuit != std::string::npos);
+  CHECK(budget < response);
+  CHECK(response < noise);
+  CHECK(noise < bias);
+  CHECK(bias < circuit);
+  CHECK(page.find("opamp  U1") != std::string::npos);  // the listing
+}
+
+TEST_CASE("the review page draws the specs' responses and noise inline, with unique ids", "[report]") {
+  const std::string page = page_of(kNetlist);
+  CHECK(count(page, "<svg xmlns=\"http://www.w3.org/2000/svg\"") == 2);  // response, noise of hiss
+  CHECK(page.find("<?xml") == std::string::npos);  // inline, not documents
+  std::set<std::string> ids;
+  const std::regex id("id=\"([^\"]+)\"");
+  for (auto it = std::sregex_iterator(page.begin(), page.end(), id); it != std::sregex_iterator(); ++it)
+    CHECK(ids.insert((*it)[1]).second);
+  CHECK(ids.count("response-clip-0") == 1);
+  CHECK(ids.count("noise-0-clip-0") == 1);
+  // The spec frequencies are marked on the response.
+  CHECK(page.find(">gain_1k</text>") != std::string::npos);
+  CHECK(page.find(">corner</text>") != std::string::npos);
+}
+
+TEST_CASE("the review page fetches nothing: no scripts, links, images or fonts", "[report]") {
+  const std::string page = page_of(kNetlist);
+  for (const char* outside : {"<script", "<link", "<img", "src=", "href=", "@import", "url(http", "@font-face"})
+    CHECK(page.find(outside) == std::string::npos);
+  // The one URI is the SVG namespace name, which is never fetched.
+  CHECK(count(page, "http") == count(page, "http://www.w3.org/2000/svg"));
+}
+
+TEST_CASE("a netlist without specs still gets a page with bias and the circuit", "[report]") {
+  const std::string page = page_of("vsrc V1 (a, gnd) ac=1 dc=1\nres R1 (a, b) 1k\nres R2 (b, gnd) 1k\n");
+  CHECK(page.find("The netlist has no spec lines.") != std::string::npos);
+  CHECK(page.find("<h2>Frequency response</h2>") == std::string::npos);
+  CHECK(page.find("<h2>DC operating point and headroom</h2>") != std::string::npos);
+  CHECK(page.find("<h2>Circuit</h2>") != std::string::npos);
+}
