@@ -304,3 +304,46 @@ TEST_CASE("without --band the band is the sweep's first to last point", "[noise]
   CHECK(r.band.to == 20e3);
   CHECK_THAT(r.total_rms, IsClose(std::sqrt(4 * kT25 * 1e3 * (20e3 - 20)), 1e-9));
 }
+
+TEST_CASE("a current probe on a resistor includes that resistor's own noise current",
+          "[noise]") {
+  // Series RC from a source (a short for noise): the current through R and C is
+  // R's Norton current 4kT/R shaped by x^2/(1 + x^2), x = f/fc, fc = 1/(2 pi R C)
+  // (Nyquist 1928, Norton form, through the current divider of R and C); its band
+  // power 4kT/R ((f2 - f1) - fc (atan(f2/fc) - atan(f1/fc))) is the elementary
+  // integral, and scipy.integrate.quad gives sqrt = 112.97267368520567 pA for
+  // 10 kohm, 10 nF, 1 Hz..10 kHz (2e-11 from the closed form).
+  const double r = 10e3, c = 10e-9, fc = 1 / (2 * kPi * r * c), f1 = 1, f2 = 10e3;
+  CircuitBuilder b;
+  b.vsrc("Vin", "in", "gnd", 1.0);
+  b.add(ElementKind::resistor, "R1", {"in", "mid"}, r);
+  b.add(ElementKind::capacitor, "C1", {"mid", "gnd"}, c);
+  const double band = 4 * kT25 / r * ((f2 - f1) - fc * (std::atan(f2 / fc) - std::atan(f1 / fc)));
+  const auto through_r = run_noise(b.circuit, noise_at({10, fc, 5e3}, "i(R1)", f1, f2));
+  const auto through_c = run_noise(b.circuit, noise_at({10, fc, 5e3}, "i(C1)", f1, f2));
+  CHECK_THAT(through_r.total_rms, IsClose(std::sqrt(band), 1e-9));
+  CHECK_THAT(through_r.total_rms, IsClose(1.1297267368520567e-10, 1e-9));
+  CHECK_THAT(through_c.total_rms, IsClose(std::sqrt(band), 1e-9));
+  for (std::size_t k = 0; k < through_r.density.size(); ++k) {
+    const double x = through_r.frequencies[k] / fc;
+    CHECK_THAT(through_r.density[k], IsClose(std::sqrt(4 * kT25 / r * x * x / (1 + x * x)), 1e-12));
+    CHECK_THAT(through_c.density[k], IsClose(through_r.density[k], 1e-12));
+  }
+}
+
+TEST_CASE("a resistor straight across a source carries its whole noise current", "[noise]") {
+  // The source holds the voltage across R fixed, so all of R's Norton current
+  // sqrt(4kT/R) flows through it (Nyquist 1928): rms sqrt(4kT B / R).
+  const double r = 1e3, f1 = 20, f2 = 20e3;
+  CircuitBuilder b;
+  b.vsrc("Vin", "in", "gnd", 1.0);
+  b.add(ElementKind::resistor, "R1", {"in", "gnd"}, r);
+  const auto result = run_noise(b.circuit, noise_at({1e3}, "i(R1)", f1, f2));
+  CHECK_THAT(result.density[0], IsClose(std::sqrt(4 * kT25 / r), 1e-12));
+  CHECK_THAT(result.total_rms, IsClose(std::sqrt(4 * kT25 * (f2 - f1) / r), 1e-9));
+  // Another resistor's current probe is untouched by R1's own noise: R2 across
+  // the same source sees only its own.
+  b.add(ElementKind::resistor, "R2", {"in", "gnd"}, 4 * r);
+  const auto other = run_noise(b.circuit, noise_at({1e3}, "i(R2)", f1, f2));
+  CHECK_THAT(other.density[0], IsClose(std::sqrt(4 * kT25 / (4 * r)), 1e-12));
+}

@@ -29,6 +29,9 @@ struct NoiseSource {
   int plus = -1, minus = -1;
   double white = 0;   // white power density, A^2/Hz or V^2/Hz
   double corner = 0;  // 1/f corner, Hz
+  // The part of the source that reaches the probe without the network: a
+  // current probe on a resistor reads that resistor's own noise current too.
+  double direct = 0;
   double power(double f) const { return white * (1 + corner / f); }
 };
 
@@ -39,11 +42,26 @@ std::complex<double> transfer(const std::vector<std::complex<double>>& y, int pl
   return h;
 }
 
+// The source's transfer to the probe: through the network, plus its direct part.
+std::complex<double> transfer(const std::vector<std::complex<double>>& y, const NoiseSource& source) {
+  return transfer(y, source.plus, source.minus) + source.direct;
+}
+
+// i(R) is the current from R's first node through R to its second, i.e. the
+// conductance current plus the parallel noise current; the noise source pushes
+// its current into the first node, so it enters i(R) with the sign -1.
+double direct_coupling(const Probe& probe, std::size_t element, NoiseMechanism mechanism) {
+  const bool own = probe.kind == ProbeKind::current && probe.element == element;
+  return own && mechanism == NoiseMechanism::thermal ? -1.0 : 0.0;
+}
+
 std::vector<NoiseSource> noise_sources(const Circuit& circuit, const MnaSystem& mna,
-                                       double kelvin) {
+                                       const Probe& probe, double kelvin) {
   std::vector<NoiseSource> sources;
   auto add = [&](std::size_t i, NoiseMechanism m, int plus, int minus, double white, double corner) {
-    if (white > 0 && (plus >= 0 || minus >= 0)) sources.push_back({i, m, plus, minus, white, corner});
+    const double direct = direct_coupling(probe, i, m);
+    if (white > 0 && (plus >= 0 || minus >= 0 || direct != 0))
+      sources.push_back({i, m, plus, minus, white, corner, direct});
   };
   for (std::size_t i = 0; i < circuit.elements.size(); ++i) {
     const Element& e = circuit.elements[i];
@@ -115,7 +133,7 @@ void fill_points(NoiseResult& result, AdjointSolver& adjoint,
     const auto& y = adjoint.solve(f);
     double power = 0;
     for (const NoiseSource& source : sources)
-      power += std::norm(transfer(y, source.plus, source.minus)) * source.power(f);
+      power += std::norm(transfer(y, source)) * source.power(f);
     result.density.push_back(std::sqrt(power));
     if (!input) continue;
     const auto g = transfer(y, input->plus, input->minus);
@@ -135,7 +153,7 @@ void integrate_contributors(NoiseResult& result, AdjointSolver& adjoint, const C
         out[0] = 0;
         for (std::size_t i = 0; i < sources.size(); ++i) {
           const auto& source = sources[i];
-          out[first + i] = std::norm(transfer(y, source.plus, source.minus)) * source.power(f);
+          out[first + i] = std::norm(transfer(y, source)) * source.power(f);
           out[0] += out[first + i];
         }
         if (input) out[1] = out[0] / std::norm(transfer(y, input->plus, input->minus));
@@ -226,7 +244,7 @@ NoiseResult run_noise(const Circuit& circuit, const NoiseOptions& options) {
     const auto& source = circuit.elements[*circuit.find_element(options.input)];
     result.input_unit = source.kind == ElementKind::isource ? "A" : "V";
   }
-  const auto sources = noise_sources(circuit, mna, result.temperature_kelvin);
+  const auto sources = noise_sources(circuit, mna, result.probe, result.temperature_kelvin);
   AdjointSolver adjoint(response, result.probe);
   const InputPort* port = input ? &*input : nullptr;
   fill_points(result, adjoint, sources, port);
