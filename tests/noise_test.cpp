@@ -347,3 +347,23 @@ TEST_CASE("a resistor straight across a source carries its whole noise current",
   const auto other = run_noise(b.circuit, noise_at({1e3}, "i(R2)", f1, f2));
   CHECK_THAT(other.density[0], IsClose(std::sqrt(4 * kT25 / (4 * r)), 1e-12));
 }
+
+TEST_CASE("a tank of Q up to 1e6 integrates to kT/C wherever its resonance sits", "[noise]") {
+  // Parallel R, L, C: the voltage noise of R over all frequencies is kT/C
+  // whatever R and L (equipartition; the textbook kT/C result). Over 1 Hz..1 MHz
+  // the tails left out are below 2/(pi Q x) of it, x = 1 MHz/f0 (the tank's
+  // asymptote 4kTR/(Q x)^2, integrated): the rms is checked to that, plus 1e-8.
+  const double c = 10e-9;
+  for (const double f0 : {std::pow(10, 3.5), 3162.3, 1e3, std::pow(10, 3.25), 1234.5})
+    for (const double q : {10.0, 1e3, 1e6}) {
+      INFO("f0 = " << f0 << ", Q = " << q);
+      const double w0 = 2 * kPi * f0;
+      CircuitBuilder b;
+      b.add(ElementKind::resistor, "R1", {"out", "gnd"}, q / (w0 * c));
+      b.add(ElementKind::inductor, "L1", {"out", "gnd"}, 1 / (w0 * w0 * c));
+      b.add(ElementKind::capacitor, "C1", {"out", "gnd"}, c);
+      const auto r = run_noise(b.circuit, noise_at({f0}, "out", 1, 1e6));
+      const double tails = 2 / (kPi * q * (1e6 / f0));
+      CHECK_THAT(r.total_rms, IsClose(std::sqrt(kT25 / c), tails + 1e-8));
+    }
+}
