@@ -242,3 +242,29 @@ TEST_CASE("a rails spec fails when an output can come within its margin of the r
   CHECK(pass.pass);
   CHECK_FALSE(check_one(amp, "spec r rails margin=10V").pass);
 }
+
+TEST_CASE("an snr spec with no noise at the probe passes as unbounded, without a number",
+          "[check][noise]") {
+  // The probe is a node the source holds: no noise reaches it (ideal source,
+  // zero impedance), so signal/noise is unbounded: it meets any minimum.
+  auto quiet = check_one("vsrc Vin (in, gnd) ac=1\nres R1 (in, gnd) 1k\n",
+                         "spec s snr (in) from=20Hz to=20kHz input=Vin level=1V min=100dB");
+  CHECK_FALSE(quiet.value);
+  CHECK(quiet.pass);
+  CHECK(quiet.note == "no noise reaches the probe: the ratio is unbounded");
+  // The signal cannot reach the probe: there is no ratio, and the spec fails.
+  auto deaf = check_one("vsrc Vin (in, gnd) ac=1\nres R1 (in, gnd) 1k\nres R2 (out, gnd) 1k\n",
+                        "spec s snr (out) from=20Hz to=20kHz input=Vin level=1V min=100dB");
+  CHECK_FALSE(deaf.value);
+  CHECK_FALSE(deaf.pass);
+  CHECK(deaf.note == "the signal from 'Vin' does not reach the probe at 632.5Hz");
+}
+
+TEST_CASE("a noise spec on a probe no noise reaches measures 0 V", "[check][noise]") {
+  auto r = check_one("vsrc Vin (in, gnd) ac=1\nres R1 (in, gnd) 1k\n",
+                     "spec n noise (in) from=20Hz to=20kHz max=1uV");
+  REQUIRE(r.value);
+  CHECK(*r.value == 0.0);
+  CHECK(r.pass);
+  CHECK(r.note == "no noise reaches the probe");
+}

@@ -367,3 +367,62 @@ TEST_CASE("a tank of Q up to 1e6 integrates to kT/C wherever its resonance sits"
       CHECK_THAT(r.total_rms, IsClose(std::sqrt(kT25 / c), tails + 1e-8));
     }
 }
+
+TEST_CASE("an input that does not reach the probe leaves the output noise intact and says so",
+          "[noise]") {
+  // Vin drives a node the probe cannot see: G = 0 everywhere, so the
+  // input-referred noise is unbounded; the output noise is R2's own
+  // sqrt(4kTR B) (Nyquist 1928), and the integral must end at once, not bisect
+  // a NaN or an infinity to full depth.
+  CircuitBuilder b;
+  b.vsrc("Vin", "in", "gnd", 1.0);
+  b.add(ElementKind::resistor, "R1", {"in", "gnd"}, 1e3);
+  b.add(ElementKind::resistor, "R2", {"out", "gnd"}, 10e3);
+  auto options = noise_at({100, 1e3}, "out", 20, 20e3);
+  options.input = "Vin";
+  const auto r = run_noise(b.circuit, options);
+  CHECK_THAT(r.total_rms, IsClose(std::sqrt(4 * kT25 * 10e3 * (20e3 - 20)), 1e-9));
+  CHECK_FALSE(r.input_referred_rms.has_value());
+  REQUIRE(r.notes.size() == 1);
+  CHECK(r.notes[0] == "the input 'Vin' does not reach the probe 'out' at 20Hz (between 20Hz and "
+                      "20kHz): the input-referred noise is unbounded");
+  CHECK(std::isinf(r.input_density[0]));
+  CHECK(r.band_evaluations < 200);
+}
+
+TEST_CASE("exactly zero output noise is 0 with no share, answered on the first cut", "[noise]") {
+  // The probe sits on a node a source holds: no noise current reaches it
+  // (an ideal voltage source has zero impedance). Noise referred to the input is 0 too.
+  CircuitBuilder b;
+  b.vsrc("Vin", "in", "gnd", 1.0);
+  b.add(ElementKind::resistor, "R1", {"in", "gnd"}, 1e3);
+  auto options = noise_at({100}, "in", 1, 1e6);
+  options.input = "Vin";
+  options.level = 1.0;
+  const auto r = run_noise(b.circuit, options);
+  CHECK(r.total_rms == 0.0);
+  CHECK(r.density[0] == 0.0);
+  REQUIRE(r.input_referred_rms.has_value());
+  CHECK(*r.input_referred_rms == 0.0);
+  REQUIRE(r.contributors.size() == 1);
+  CHECK(r.contributors[0].share == 0.0);
+  CHECK(r.band_evaluations == 6 * 15 + 7);  // six decades, no bisection
+  REQUIRE(r.signal);
+  CHECK(std::isnan(r.signal->ratio_db));  // unbounded: not a number to print
+  // Every part noiseless: no source at all, no integral.
+  b.circuit.elements[1].noiseless = true;
+  const auto quiet = run_noise(b.circuit, noise_at({100}, "in", 1, 1e6));
+  CHECK(quiet.total_rms == 0.0);
+  CHECK(quiet.contributors.empty());
+  CHECK(quiet.band_evaluations == 0);
+}
+
+TEST_CASE("a noise density that overflows a double is an error naming the source", "[noise][errors]") {
+  OpAmpModel m = single_pole(1e6, 1e5);
+  m.en = 1e308;  // en^2 overflows
+  CHECK_THROWS_WITH(run_noise(noninverting(1e3, 9e3, 1e3, m), noise_at({1e3}, "out", 10, 1e3)),
+                    "error: the en noise of 'U1' is not finite at 10Hz: its density overflows a "
+                    "double\nhint: check the values that set it (the model's en and fce)");
+  CHECK_THROWS_AS(run_noise(noninverting(1e3, 9e3, 1e3, m), noise_at({1e3}, "out", 10, 1e3)),
+                  SolveError);
+}

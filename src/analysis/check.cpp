@@ -49,6 +49,10 @@ class SpecMeter {
       case SpecKind::offset: offset(r); break;
       case SpecKind::rails: rails(r); break;
     }
+    if (r.value && !std::isfinite(*r.value)) {  // never a number that is not one
+      r.value.reset();
+      r.note = "the measured value is not finite: the circuit's values overflow a double";
+    }
     if (r.value) {
       r.margin = window_margin(*r.value, spec.min, spec.max);
       r.pass = r.margin >= 0;
@@ -135,12 +139,28 @@ class SpecMeter {
     const NoiseResult n = run_noise(circuit_, options);
     if (s.kind == SpecKind::noise) {
       r.value = n.total_rms;
-      if (!n.contributors.empty())
-        r.note = fmt::format("largest: {} {} {:.0f}%", n.contributors[0].source,
-                             to_string(n.contributors[0].mechanism), 100 * n.contributors[0].share);
+      r.note = n.total_rms > 0 ? fmt::format("largest: {} {} {:.0f}%", n.contributors[0].source,
+                                             to_string(n.contributors[0].mechanism),
+                                             100 * n.contributors[0].share)
+                               : "no noise reaches the probe";
     } else if (n.signal) {
-      r.value = n.signal->ratio_db;
-      r.note = fmt::format("signal {}V rms, noise {}V rms", format_si(n.signal->signal_rms), format_si(n.total_rms));
+      snr(r, *n.signal, n.total_rms);
+    }
+  }
+
+  /// A ratio in dB; without noise it is unbounded (and meets any minimum),
+  /// without signal there is none.
+  void snr(SpecResult& r, const SignalToNoise& signal, double noise_rms) {
+    if (std::isfinite(signal.ratio_db)) {
+      r.value = signal.ratio_db;
+      r.note = fmt::format("signal {}V rms, noise {}V rms", format_si(signal.signal_rms),
+                           format_si(noise_rms));
+    } else if (signal.signal_rms == 0) {
+      r.note = fmt::format("the signal from '{}' does not reach the probe at {}Hz", r.spec.input,
+                           format_si(signal.reference));
+    } else {
+      r.pass = !r.spec.max.has_value();
+      r.note = "no noise reaches the probe: the ratio is unbounded";
     }
   }
 

@@ -9,6 +9,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <limits>
 
 #include "tacet/common/spelling.hpp"
 #include "tacet/common/errors.hpp"
@@ -126,6 +127,38 @@ Band band_of(const NoiseOptions& options) {
   return {*low, *high};
 }
 
+// The power at the probe must be finite: a source or a transfer that
+// overflows leaves nothing finite to say (exit 3), never a printed inf.
+void require_finite_power(double power, double f, const Probe& probe) {
+  if (std::isfinite(power)) return;
+  throw SolveError(fmt::format("error: the noise at probe '{}' is not finite at {}Hz: the "
+                               "circuit's values overflow a double there",
+                               probe.text, format_si(f)));
+}
+
+// Every source's density where it is largest in the analysis (its 1/f part
+// grows downward) must be a number, or no figure can be.
+void require_finite_sources(const Circuit& circuit, const std::vector<NoiseSource>& sources,
+                            double lowest) {
+  for (const NoiseSource& source : sources) {
+    if (std::isfinite(source.power(lowest))) continue;
+    const std::string& name = circuit.elements[source.element].name;
+    throw SolveError(fmt::format(
+        "error: the {} noise of '{}' is not finite at {}Hz: its density overflows a double\n"
+        "hint: check the values that set it ({})",
+        to_string(source.mechanism), name, format_si(lowest),
+        source.mechanism == NoiseMechanism::thermal ? "the resistance"
+        : source.mechanism == NoiseMechanism::en    ? "the model's en and fce"
+                                                    : "the model's in and fci"));
+  }
+}
+
+// Output power over |G|^2: none when there is no noise to refer, infinite
+// where the input does not reach the probe.
+double input_referred_power(double output_power, std::complex<double> gain) {
+  return output_power == 0 ? 0.0 : output_power / std::norm(gain);
+}
+
 // Sweep points: the density, and with an input the gain and the input-referred density.
 void fill_points(NoiseResult& result, AdjointSolver& adjoint,
                  const std::vector<NoiseSource>& sources, const InputPort* input) {
@@ -134,17 +167,30 @@ void fill_points(NoiseResult& result, AdjointSolver& adjoint,
     double power = 0;
     for (const NoiseSource& source : sources)
       power += std::norm(transfer(y, source)) * source.power(f);
+    require_finite_power(power, f, result.probe);
     result.density.push_back(std::sqrt(power));
     if (!input) continue;
     const auto g = transfer(y, input->plus, input->minus);
     result.gain.push_back(g);
-    result.input_density.push_back(std::sqrt(power) / std::abs(g));
+    result.input_density.push_back(power == 0 ? 0.0 : std::sqrt(power) / std::abs(g));
   }
+}
+
+// The statement for an input that does not reach the probe somewhere in the band.
+std::string unreached_note(const NoiseResult& result, double f) {
+  return fmt::format("the input '{}' does not reach the probe '{}' at {}Hz (between {}Hz and "
+                     "{}Hz): the input-referred noise is unbounded",
+                     result.input, result.probe.text, format_si(f), format_si(result.band.from),
+                     format_si(result.band.to));
 }
 
 // The band integral; components: total power, [input-referred power], each source.
 void integrate_contributors(NoiseResult& result, AdjointSolver& adjoint, const Circuit& circuit,
                             const std::vector<NoiseSource>& sources, const InputPort* input) {
+  if (sources.empty()) {  // nothing makes noise: 0 V, and 0 referred to any input
+    if (input) result.input_referred_rms = 0.0;
+    return;
+  }
   const std::size_t first = input ? 2 : 1;
   const auto integral = integrate_band(
       result.band.from, result.band.to, first + sources.size(), first,
@@ -156,12 +202,18 @@ void integrate_contributors(NoiseResult& result, AdjointSolver& adjoint, const C
           out[first + i] = std::norm(transfer(y, source)) * source.power(f);
           out[0] += out[first + i];
         }
-        if (input) out[1] = out[0] / std::norm(transfer(y, input->plus, input->minus));
+        require_finite_power(out[0], f, result.probe);
+        if (input) out[1] = input_referred_power(out[0], transfer(y, input->plus, input->minus));
       });
   result.band_evaluations = integral.evaluations;
+  if (!integral.converged)
+    result.notes.push_back(
+        "the band integral did not reach its tolerance (1e-8): the totals are approximate");
   const double total = integral.values[0];
   result.total_rms = std::sqrt(total);
-  if (input) result.input_referred_rms = std::sqrt(integral.values[1]);
+  if (input && integral.non_finite_at[1] == 0) result.input_referred_rms = std::sqrt(integral.values[1]);
+  if (input && integral.non_finite_at[1] != 0)
+    result.notes.push_back(unreached_note(result, integral.non_finite_at[1]));
   for (std::size_t i = 0; i < sources.size(); ++i) {
     const double power = integral.values[first + i];
     result.contributors.push_back({circuit.elements[sources[i].element].name,
@@ -180,7 +232,10 @@ SignalToNoise signal_to_noise(const NoiseResult& result, const NoiseOptions& opt
   snr.level = *options.level;
   snr.reference = options.reference.value_or(std::sqrt(result.band.from * result.band.to));
   snr.signal_rms = snr.level * std::abs(transfer(adjoint.solve(snr.reference), input.plus, input.minus));
-  snr.ratio_db = 20 * std::log10(snr.signal_rms / result.total_rms);
+  // Without noise the ratio is unbounded, without signal it is none: neither is a number.
+  snr.ratio_db = snr.signal_rms > 0 && result.total_rms > 0
+                     ? 20 * std::log10(snr.signal_rms / result.total_rms)
+                     : std::numeric_limits<double>::quiet_NaN();
   return snr;
 }
 
@@ -245,6 +300,8 @@ NoiseResult run_noise(const Circuit& circuit, const NoiseOptions& options) {
     result.input_unit = source.kind == ElementKind::isource ? "A" : "V";
   }
   const auto sources = noise_sources(circuit, mna, result.probe, result.temperature_kelvin);
+  const auto lowest = std::min_element(result.frequencies.begin(), result.frequencies.end());
+  require_finite_sources(circuit, sources, std::min(result.band.from, *lowest));
   AdjointSolver adjoint(response, result.probe);
   const InputPort* port = input ? &*input : nullptr;
   fill_points(result, adjoint, sources, port);
