@@ -4,6 +4,8 @@
 #include <numbers>
 #include <string>
 
+#include <fmt/format.h>
+
 #include "tacet/analysis/check.hpp"
 #include "tacet/common/errors.hpp"
 #include "text_circuit.hpp"
@@ -267,4 +269,42 @@ TEST_CASE("a noise spec on a probe no noise reaches measures 0 V", "[check][nois
   CHECK(*r.value == 0.0);
   CHECK(r.pass);
   CHECK(r.note == "no noise reaches the probe");
+}
+
+TEST_CASE("a phase spec compares its limits modulo 360 degrees", "[check]") {
+  // An inverter into an RC low-pass: arg H = 180 deg - atan(f/fc) (closed form,
+  // first-order RC after a gain of -1). At f = fc tan(0.6 deg) that is
+  // 179.4 deg, the same angle as -180.6 deg.
+  const std::string inverted =
+      "vsrc Vin (in, gnd) ac=1\n"
+      "vcvs E1 (inv, gnd; in, gnd) gain=-1\n"
+      "res R1 (inv, out) 10k\n"
+      "cap C1 (out, gnd) 10n\n";
+  const double f = kRcCorner * std::tan(0.6 * std::numbers::pi / 180);
+  auto r = check_one(inverted, fmt::format("spec p phase (out) at={:.17g} min=-181deg max=-179deg", f));
+  REQUIRE(r.value);
+  CHECK(*r.value == Approx(-180.6).epsilon(1e-9));
+  CHECK(r.margin == Approx(0.4).epsilon(1e-6));
+  CHECK(r.pass);
+  CHECK(r.note == "measured 179.40 deg, the same angle as -180.60 deg");
+  // One limit: the turn nearest it; 200 deg of lag wanted, 180.6 there: fails by 19.4.
+  auto lag = check_one(inverted, fmt::format("spec p phase (out) at={:.17g} max=-200deg", f));
+  CHECK(lag.margin == Approx(-19.4).epsilon(1e-6));
+  CHECK_FALSE(lag.pass);
+  CHECK(phase_in_window(179.4, -190.0, std::nullopt) == Approx(-180.6));
+  CHECK(phase_in_window(-45.0, -46.0, -44.0) == -45.0);
+  CHECK(phase_in_window(10.0, 700.0, 740.0) == Approx(730.0));
+}
+
+TEST_CASE("a gain spec with a negative ratio limit is rejected with a hint", "[check][elaborate]") {
+  // A ratio limit bounds |H|, which is never negative (a magnitude).
+  auto r = elaborate_text(kRc + "spec g gain (out) at=1k min=-10.1 max=-9.9\n");
+  CHECK_FALSE(r.circuit);
+  CHECK(r.diagnostics ==
+        "main.tacet:4:29: error: a gain spec's min= as a ratio bounds |H|, which is never below 0\n"
+        "spec g gain (out) at=1k min=-10.1 max=-9.9\n"
+        "                            ^~~~~\n"
+        "hint: for an inversion add a phase spec (180deg); for a level below the reference write "
+        "dB, min=-20dB\n");
+  CHECK(elaborate_text(kRc + "spec g gain (out) at=1k min=-10.1dB max=-9.9dB\n").circuit);
 }

@@ -29,6 +29,12 @@ double window_margin(double value, std::optional<double> min, std::optional<doub
   return margin;
 }
 
+double phase_in_window(double degrees, std::optional<double> min, std::optional<double> max) {
+  if (!min && !max) return degrees;
+  const double target = min && max ? (*min + *max) / 2 : min ? *min : *max;
+  return degrees + 360 * std::round((target - degrees) / 360);
+}
+
 namespace {
 
 class SpecMeter {
@@ -75,8 +81,11 @@ class SpecMeter {
   }
 
   void phase(SpecResult& r) {
-    r.value = to_degrees(h(r.spec.at));
+    const double measured = to_degrees(h(r.spec.at));
+    r.value = phase_in_window(measured, r.spec.min, r.spec.max);
     r.where = r.spec.at;
+    if (*r.value != measured)
+      r.note = fmt::format("measured {:.2f} deg, the same angle as {:.2f} deg", measured, *r.value);
   }
 
   /// Largest |dB(H(f)) - dB(H(ref))| over the band: grid, then a golden-section

@@ -66,6 +66,15 @@ bool written_in_db(const ast::Expr& expr) {
   return q && q->suffix == "dB";
 }
 
+/// The limit of a gain spec written as a ratio that lies below 0, if any: a
+/// ratio limit bounds |H|, a magnitude, so it can never be met.
+const char* negative_ratio_limit(const Spec& spec) {
+  if (spec.unit != SpecUnit::ratio) return nullptr;
+  if (spec.min && *spec.min < 0) return "min";
+  if (spec.max && *spec.max < 0) return "max";
+  return nullptr;
+}
+
 }  // namespace
 
 std::optional<std::string> Elaborator::spec_probe(const ast::Spec& spec, int file,
@@ -194,6 +203,13 @@ void Elaborator::elaborate_spec(const ast::Spec& ast_spec, int file) {
       spec.unit = db ? SpecUnit::db : SpecUnit::ratio;
       spec.min = number("min", db ? Dimension::decibel : Dimension::gain);
       spec.max = number("max", db ? Dimension::decibel : Dimension::gain);
+      if (const char* key = negative_ratio_limit(spec)) {
+        error(file, extent(*given.at(key)->value),
+              fmt::format("a gain spec's {}= as a ratio bounds |H|, which is never below 0", key),
+              "for an inversion add a phase spec (180deg); for a level below the reference write dB, "
+              "min=-20dB");
+        return;
+      }
       break;
     }
     case SpecKind::phase:

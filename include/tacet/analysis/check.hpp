@@ -30,6 +30,11 @@ struct CheckResult {
 /// InputError when a spec needs an analysis this build cannot run.
 CheckResult run_check(const Circuit& circuit);
 
+/// A phase compared with its limits modulo 360 degrees: of the angles that
+/// differ from `degrees` by whole turns, the one nearest the window's centre
+/// (or its one limit). -180.6 and 179.4 deg are the same angle.
+double phase_in_window(double degrees, std::optional<double> min, std::optional<double> max);
+
 /// Margin of `value` inside the optional window [min, max]: the smaller
 /// distance to a given limit, negative when outside.
 double window_margin(double value, std::optional<double> min, std::optional<double> max);
