@@ -308,3 +308,37 @@ TEST_CASE("a gain spec with a negative ratio limit is rejected with a hint", "[c
         "dB, min=-20dB\n");
   CHECK(elaborate_text(kRc + "spec g gain (out) at=1k min=-10.1dB max=-9.9dB\n").circuit);
 }
+
+TEST_CASE("a spec whose DC point cannot be found fails alone, naming the spec and the node",
+          "[check][bias]") {
+  // C1 leaves node 'out' without a DC path (capacitors are open at DC), so the
+  // offset spec cannot be measured; the gain spec still is: at fc the RC
+  // high-pass gives 1/sqrt 2, -3.0103 dB (first-order RC, closed form).
+  const std::string coupled =
+      "vsrc Vin (in, gnd) ac=1\n"
+      "cap C1 (in, out) 10n\n"
+      "res R1 (out, x) 10k\n"
+      "cap C2 (x, gnd) 1\n";
+  auto r = elaborate_text(coupled +
+                          "spec dc offset (out) max=1mV\n"
+                          "spec g gain (out) at=1MHz min=-1dB\n"
+                          "spec dc2 offset (x) max=1mV\n");
+  INFO(r.diagnostics);
+  REQUIRE(r.circuit);
+  const CheckResult result = run_check(*r.circuit);
+  REQUIRE(result.specs.size() == 3);
+  CHECK_FALSE(result.specs[0].pass);
+  CHECK_FALSE(result.specs[0].value);
+  CHECK(result.specs[0].note ==
+        "circuit cannot be solved at DC: nodes 'out', 'x' have no DC path to gnd");
+  REQUIRE(result.specs[1].value);
+  CHECK(result.specs[1].pass);
+  CHECK(result.unsolved() == 2);
+  CHECK(result.failed() == 2);
+  CHECK(result.unsolved_message() ==
+        "error: spec 'dc' cannot be measured: circuit cannot be solved at DC: nodes 'out', 'x' "
+        "have no DC path to gnd\n"
+        "error: spec 'dc2' cannot be measured: circuit cannot be solved at DC: nodes 'out', 'x' "
+        "have no DC path to gnd\n"
+        "hint: at DC capacitors are open; give the node a resistor to a biased node or to gnd\n");
+}

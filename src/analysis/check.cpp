@@ -18,6 +18,22 @@
 
 namespace tacet {
 
+int CheckResult::unsolved() const {
+  return static_cast<int>(std::count_if(specs.begin(), specs.end(), [](const SpecResult& r) { return !r.unsolved.empty(); }));
+}
+
+std::string CheckResult::unsolved_message() const {
+  std::string lines, hint;
+  for (const auto& r : specs) {
+    if (r.unsolved.empty()) continue;
+    lines += fmt::format("error: spec '{}' cannot be measured: {}\n", r.spec.name, r.note);
+    const auto at = r.unsolved.find("\nhint: ");
+    if (hint.empty() && at != std::string::npos) hint = r.unsolved.substr(at + 1);
+  }
+  if (!hint.empty() && hint.back() != '\n') hint += '\n';
+  return lines + hint;
+}
+
 int CheckResult::failed() const {
   return static_cast<int>(std::count_if(specs.begin(), specs.end(), [](const SpecResult& r) { return !r.pass; }));
 }
@@ -37,23 +53,25 @@ double phase_in_window(double degrees, std::optional<double> min, std::optional<
 
 namespace {
 
+// "error: circuit cannot be solved at DC: ...\nhint: ..." -> "circuit cannot be solved at DC: ..."
+std::string first_line(const std::string& message) {
+  std::string line = message.substr(0, message.find('\n'));
+  if (line.rfind("error: ", 0) == 0) line.erase(0, 7);
+  return line;
+}
+
 class SpecMeter {
  public:
   explicit SpecMeter(const Circuit& circuit) : circuit_(circuit) {}
 
   SpecResult measure(const Spec& spec) {
-    SpecResult r{spec, std::nullopt, 0, false, 0, {}};
+    SpecResult r{spec, std::nullopt, 0, false, 0, {}, {}};
     if (!spec.probe.empty()) probe_ = resolve_probe(spec.probe, circuit_);
-    switch (spec.kind) {
-      case SpecKind::gain: gain(r); break;
-      case SpecKind::phase: phase(r); break;
-      case SpecKind::flatness: flatness(r); break;
-      case SpecKind::upper_corner:
-      case SpecKind::lower_corner: corner(r); break;
-      case SpecKind::noise:
-      case SpecKind::snr: noise(r); break;
-      case SpecKind::offset: offset(r); break;
-      case SpecKind::rails: rails(r); break;
+    try {
+      measure_kind(r);
+    } catch (const SolveError& e) {
+      // This spec's analysis cannot run; the others are still measured.
+      r = SpecResult{spec, std::nullopt, 0, false, 0, first_line(e.what()), e.what()};
     }
     if (r.value && !std::isfinite(*r.value)) {  // never a number that is not one
       r.value.reset();
@@ -67,6 +85,20 @@ class SpecMeter {
   }
 
  private:
+  void measure_kind(SpecResult& r) {
+    switch (r.spec.kind) {
+      case SpecKind::gain: gain(r); break;
+      case SpecKind::phase: phase(r); break;
+      case SpecKind::flatness: flatness(r); break;
+      case SpecKind::upper_corner:
+      case SpecKind::lower_corner: corner(r); break;
+      case SpecKind::noise:
+      case SpecKind::snr: noise(r); break;
+      case SpecKind::offset: offset(r); break;
+      case SpecKind::rails: rails(r); break;
+    }
+  }
+
   FrequencyResponse& response() {
     if (!response_) response_ = std::make_unique<FrequencyResponse>(circuit_);
     return *response_;
@@ -173,8 +205,16 @@ class SpecMeter {
     }
   }
 
+  // One DC analysis for every spec; when it cannot run, every spec that needs
+  // it gets the same reason without running it again.
   const BiasResult& bias() {
-    if (!bias_) bias_ = std::make_unique<BiasResult>(run_bias(circuit_));
+    if (!bias_error_.empty()) throw SolveError(bias_error_);
+    try {
+      if (!bias_) bias_ = std::make_unique<BiasResult>(run_bias(circuit_));
+    } catch (const SolveError& e) {
+      bias_error_ = e.what();
+      throw;
+    }
     return *bias_;
   }
 
@@ -221,6 +261,7 @@ class SpecMeter {
 
   const Circuit& circuit_;
   std::unique_ptr<BiasResult> bias_;
+  std::string bias_error_;  ///< why the DC analysis cannot run; empty: it can (or has not been tried)
   std::unique_ptr<HeadroomResult> headroom_;
   std::unique_ptr<FrequencyResponse> response_;
   Probe probe_;  ///< the probe of the spec being measured

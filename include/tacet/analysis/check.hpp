@@ -19,15 +19,23 @@ struct SpecResult {
   bool pass = false;
   double where = 0;             ///< Hz of the worst point (flatness) or 0
   std::string note;             ///< why there is no value, or what was measured where
+  /// The solver's whole message (with its hint) when the analysis this spec
+  /// needs cannot run (no DC path, a singular matrix); empty when it ran.
+  std::string unsolved;
 };
 
 struct CheckResult {
   std::vector<SpecResult> specs;  ///< in the order written
-  int failed() const;
+  int failed() const;    ///< specs that did not pass, the unsolved ones included
+  int unsolved() const;  ///< specs whose analysis could not run
+  /// One "error: spec 'NAME' cannot be measured: REASON" line per unsolved
+  /// spec, then the first reason's hint: the message of exit status 3.
+  std::string unsolved_message() const;
 };
 
-/// Measures every spec. Throws SolveError when the circuit cannot be solved,
-/// InputError when a spec needs an analysis this build cannot run.
+/// Measures every spec. A spec whose analysis cannot run (SolveError) fails
+/// with the reason in its note and `unsolved`; the other specs are still
+/// measured. Throws InputError for a probe that does not resolve.
 CheckResult run_check(const Circuit& circuit);
 
 /// A phase compared with its limits modulo 360 degrees: of the angles that
