@@ -2,9 +2,10 @@
 """Whole-process timing of tacet's commands on generated chains (bench/gen_chain.py).
 
 For each size it writes the chain into a temporary folder, runs every command
-as its own process (the fastest of REPEATS runs), and prints wall time, peak
-resident memory and the ratio to the 100-point AC sweep of the same netlist,
-the yardstick the performance goals are written against:
+as its own process (the fastest of REPEATS runs), and prints wall time, CPU
+time (user + system: the fairer figure on a shared machine), peak resident
+memory and the ratio of CPU times to the 100-point AC sweep of the same
+netlist, the yardstick the performance goals are written against:
 
   ac     100 log points 1 Hz .. 100 kHz at the chain's output
   bias   the DC point and every op amp's worst-case offsets
@@ -44,7 +45,7 @@ def commands(path, changed, out):
 
 
 def run(tacet, args):
-    """Wall seconds and peak RSS (MB) of one process."""
+    """Wall seconds, CPU seconds, peak RSS (MB) and exit status of one process."""
     start = time.perf_counter()
     child = subprocess.Popen([tacet] + args, stdout=subprocess.DEVNULL, stderr=subprocess.PIPE)
     _, status, usage = os.wait4(child.pid, 0)
@@ -52,7 +53,7 @@ def run(tacet, args):
     child.stderr.read()
     child.stderr.close()
     code = os.waitstatus_to_exitcode(status)
-    return seconds, usage.ru_maxrss / 1024.0, code
+    return seconds, usage.ru_utime + usage.ru_stime, usage.ru_maxrss / 1024.0, code
 
 
 def main():
@@ -69,7 +70,7 @@ def main():
         only = args[i + 1].split(",")
         del args[i:i + 2]
     tacet, sizes = args[0], [int(a) for a in args[1:]] or [10, 1000, 10000, 100000]
-    print(f"{'elements':>9} {'command':>7} {'seconds':>9} {'peak MB':>8} {'x ac':>7} {'exit':>4}")
+    print(f"{'elements':>9} {'command':>7} {'wall s':>9} {'cpu s':>9} {'peak MB':>8} {'x ac':>7} {'exit':>4}")
     with tempfile.TemporaryDirectory() as folder:
         for size in sizes:
             text = gen_chain.netlist(size)
@@ -83,13 +84,13 @@ def main():
             for name, argv in commands(path, changed, output_node(text)).items():
                 if only and name not in only and name != "ac":
                     continue
-                best = min((run(tacet, argv) for _ in range(repeats)), key=lambda r: r[0])
-                seconds, peak, code = best
+                best = min((run(tacet, argv) for _ in range(repeats)), key=lambda r: r[1])
+                seconds, cpu, peak, code = best
                 if name == "ac":
-                    ac_seconds = seconds
-                ratio = seconds / ac_seconds if ac_seconds else float("nan")
-                print(f"{size:>9} {name:>7} {seconds:>9.3f} {peak:>8.1f} {ratio:>7.2f} {code:>4}",
-                      flush=True)
+                    ac_seconds = cpu
+                ratio = cpu / ac_seconds if ac_seconds else float("nan")
+                print(f"{size:>9} {name:>7} {seconds:>9.3f} {cpu:>9.3f} {peak:>8.1f} {ratio:>7.2f}"
+                      f" {code:>4}", flush=True)
 
 
 if __name__ == "__main__":

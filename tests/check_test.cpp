@@ -6,7 +6,9 @@
 
 #include <fmt/format.h>
 
+#include "tacet/analysis/bias.hpp"
 #include "tacet/analysis/check.hpp"
+#include "tacet/solve/response.hpp"
 #include "tacet/common/errors.hpp"
 #include "text_circuit.hpp"
 
@@ -335,10 +337,34 @@ TEST_CASE("a spec whose DC point cannot be found fails alone, naming the spec an
   CHECK(result.specs[1].pass);
   CHECK(result.unsolved() == 2);
   CHECK(result.failed() == 2);
-  CHECK(result.unsolved_message() ==
-        "error: spec 'dc' cannot be measured: circuit cannot be solved at DC: nodes 'out', 'x' "
-        "have no DC path to gnd\n"
-        "error: spec 'dc2' cannot be measured: circuit cannot be solved at DC: nodes 'out', 'x' "
-        "have no DC path to gnd\n"
+  CHECK(std::string(result.unsolved_error().what()) ==
+        "error: circuit cannot be solved: specs 'dc', 'dc2' at DC: nodes 'out', 'x' have no DC "
+        "path to gnd\n"
         "hint: at DC capacitors are open; give the node a resistor to a biased node or to gnd\n");
+}
+
+TEST_CASE("check reuses the analyses a caller shares instead of running its own", "[check][bias]") {
+  // The offset spec reads the shared DC analysis: a nominal of 2 V planted
+  // there is what it reports; the gain and noise specs solve on the shared
+  // response (its factorisation count moves, a fresh one would stay at 0).
+  auto r = elaborate_text(kRc +
+                          "spec dc offset (out) max=5V\n"
+                          "spec g gain (out) at=1kHz min=-10dB\n"
+                          "spec n noise (out) from=20Hz to=20kHz max=1mV\n");
+  REQUIRE(r.circuit);
+  BiasResult planted = run_bias(*r.circuit);
+  const int out = *r.circuit->find_node("out");
+  planted.nodes[static_cast<std::size_t>(out - 1)].nominal = 2.0;
+  FrequencyResponse response(*r.circuit);
+  const CheckResult result = run_check(*r.circuit, SharedAnalyses{&response, &planted, {}});
+  REQUIRE(result.specs[0].value);
+  CHECK(*result.specs[0].value == 2.0);
+  CHECK(response.lu().full_factorizations() >= 1);
+  CHECK(result.specs[1].pass);
+  CHECK(result.specs[2].pass);
+  // A DC analysis that could not run is reported, not retried.
+  const CheckResult failed = run_check(
+      *r.circuit, SharedAnalyses{&response, nullptr, SolveError::unsolvable_at(0, "no DC point here")});
+  CHECK(failed.specs[0].note == "circuit cannot be solved at DC: no DC point here");
+  CHECK(failed.unsolved() == 1);
 }

@@ -79,36 +79,40 @@ struct DcError {
   double limit;  // V (vos) or A (ios, ib)
 };
 
-std::vector<DcError> dc_errors(const Circuit& circuit) {
-  std::vector<DcError> errors;
+// An op amp's DC errors. Its vos is one right-hand side; its ios and ib are
+// both made of the currents drawn from its two pins, so two solves (a unit
+// drawn from + alone, from - alone) give both: ios = (P - M)/2, ib = P + M.
+struct OpAmpErrors {
+  std::size_t element;
+  double vos, ios, ib;  // |vos| V, |ios| A, ib A (signed)
+  bool pins() const { return ios != 0 || ib != 0; }
+  std::size_t columns() const { return (vos != 0 ? 1 : 0) + (pins() ? 2 : 0); }
+};
+
+std::vector<OpAmpErrors> opamp_errors(const Circuit& circuit) {
+  std::vector<OpAmpErrors> errors;
   for (std::size_t i = 0; i < circuit.elements.size(); ++i) {
     const auto& e = circuit.elements[i];
     if (e.kind != ElementKind::opamp) continue;
     const auto& m = model_of(circuit, e);
-    if (m.vos != 0) errors.push_back({i, DcErrorKind::vos, std::abs(m.vos)});
-    if (m.ios != 0) errors.push_back({i, DcErrorKind::ios, std::abs(m.ios)});
-    if (m.ib != 0) errors.push_back({i, DcErrorKind::ib, m.ib});
+    const OpAmpErrors amp{i, std::abs(m.vos), std::abs(m.ios), m.ib};
+    if (amp.columns() > 0) errors.push_back(amp);
   }
   return errors;
 }
 
-// The right-hand side of one unit of the error into `rhs` (zeroed): 1 V of
-// vos, 1 A of s ios, 1 A of ib.
-void unit_rhs(const Circuit& circuit, const MnaSystem& mna, const DcError& error, double* rhs) {
-  const auto& pins = circuit.elements[error.element].nodes;
-  switch (error.kind) {
-    case DcErrorKind::vos:
-      rhs[mna.opamp_gain_row(error.element)] = 1.0;
-      break;
-    case DcErrorKind::ios:
-      draw_current(mna, rhs, pins[0], 0.5);
-      draw_current(mna, rhs, pins[1], -0.5);
-      break;
-    case DcErrorKind::ib:
-      draw_current(mna, rhs, pins[0], 1.0);
-      draw_current(mna, rhs, pins[1], 1.0);
-      break;
+// The op amp's right-hand sides into consecutive columns (zeroed) from `rhs`:
+// 1 V of vos, then 1 A drawn from the + pin, then 1 A drawn from the - pin.
+void unit_rhs(const Circuit& circuit, const MnaSystem& mna, const OpAmpErrors& amp, double* rhs) {
+  const auto& pins = circuit.elements[amp.element].nodes;
+  const std::size_t n = static_cast<std::size_t>(mna.size());
+  if (amp.vos != 0) {
+    rhs[mna.opamp_gain_row(amp.element)] = 1.0;
+    rhs += n;
   }
+  if (!amp.pins()) return;
+  draw_current(mna, rhs, pins[0], 1.0);
+  draw_current(mna, rhs + n, pins[1], 1.0);
 }
 
 double at_node(const MnaSystem& mna, const double* x, int node) {
@@ -191,31 +195,50 @@ void keep_if_large(std::vector<OffsetContribution>& kept, OffsetContribution c) 
 
 // A DC error's share that overflows a double says nothing: exit 3 naming it.
 [[noreturn]] void overflowing(const Circuit& circuit, const DcError& error, const std::string& node) {
-  throw SolveError(fmt::format(
-      "error: the worst-case offset at node '{}' is not finite: {} of '{}' ({}) times its "
-      "gain overflows a double\nhint: check the model's {}",
-      node, to_string(error.kind), circuit.elements[error.element].name,
-      format_si(error.limit) + (error.kind == DcErrorKind::vos ? "V" : "A"), to_string(error.kind)));
+  throw SolveError::unsolvable_at(
+      0,
+      fmt::format("the worst-case offset at node '{}' is not finite: {} of '{}' ({}) times its "
+                  "gain overflows a double",
+                  node, to_string(error.kind), circuit.elements[error.element].name,
+                  format_si(error.limit) + (error.kind == DcErrorKind::vos ? "V" : "A")),
+      fmt::format("check the model's {}", to_string(error.kind)));
 }
+
+// The running sums of every node's band, in plain arrays (the node loop is
+// the inner loop of the analysis), and each op amp's output unknown.
+struct Bands {
+  std::vector<double> worst, squares;
+  std::vector<int> outputs;  // per result.opamps entry; -1: gnd
+};
 
 // Folds one error's solution x into every node's band and every op amp's
 // largest contributors.
 void add_error(const Circuit& circuit, const MnaSystem& mna, const PinNeighbours& pins,
-               const DcError& error, const double* x, BiasResult& result, std::vector<double>& squares) {
-  if (error.kind != DcErrorKind::ib)
-    for (std::size_t k = 0; k < result.nodes.size(); ++k) {
+               const DcError& error, const double* x, BiasResult& result, Bands& bands) {
+  if (error.kind != DcErrorKind::ib) {
+    double total = 0;
+    for (std::size_t k = 0; k < bands.worst.size(); ++k) {
       const double term = std::abs(x[k]) * error.limit;
-      if (!std::isfinite(term)) overflowing(circuit, error, result.nodes[k].name);
-      result.nodes[k].worst += term;
-      squares[k] += term * term;
+      total += term;
+      bands.worst[k] += term;
+      bands.squares[k] += term * term;
     }
+    if (!std::isfinite(total))  // rare: find the node to name
+      for (std::size_t k = 0; k < bands.worst.size(); ++k)
+        if (!std::isfinite(std::abs(x[k]) * error.limit)) overflowing(circuit, error, result.nodes[k].name);
+  }
   std::optional<std::string> through;
-  for (auto& amp : result.opamps) {
-    const double sensitivity = at_node(mna, x, circuit.elements[amp.element].nodes[2]);
+  for (std::size_t a = 0; a < result.opamps.size(); ++a) {
+    const int u = bands.outputs[a];
+    const double sensitivity = u >= 0 ? x[u] : 0.0;
     if (sensitivity == 0) continue;
+    auto& amp = result.opamps[a];
     const double volts = error.kind == DcErrorKind::ib ? sensitivity * error.limit
                                                        : std::abs(sensitivity) * error.limit;
     if (!std::isfinite(volts)) overflowing(circuit, error, amp.out);
+    if (!amp.largest.empty() && amp.largest.size() == kLargestShown &&
+        !(std::abs(volts) > std::abs(amp.largest.back().volts)))
+      continue;  // would not be kept
     if (!through)
       through = error.kind == DcErrorKind::vos
                     ? std::string()
@@ -290,25 +313,46 @@ BiasResult run_bias(const Circuit& circuit, const BiasOptions& options) {
     result.opamps.push_back(amp);
   }
 
-  // The DC errors in blocks of right-hand sides on the one factorisation.
+  // The DC errors in blocks of right-hand sides on the one factorisation,
+  // whole op amps at a time.
   const PinNeighbours pins(circuit);
-  const std::vector<DcError> errors = dc_errors(circuit);
-  std::vector<double> squares(result.nodes.size(), 0.0);
+  const std::vector<OpAmpErrors> amps = opamp_errors(circuit);
+  Bands bands{std::vector<double>(result.nodes.size(), 0.0), std::vector<double>(result.nodes.size(), 0.0), {}};
+  for (const auto& amp : result.opamps)
+    bands.outputs.push_back(mna.node_unknown(circuit.elements[amp.element].nodes[2]));
   const std::size_t n = dc.size();
-  Vector block(n * kBlock);
-  for (std::size_t first = 0; first < errors.size(); first += kBlock) {
-    const std::size_t count = std::min<std::size_t>(kBlock, errors.size() - first);
-    std::fill(block.begin(), block.end(), 0.0);
-    for (std::size_t j = 0; j < count; ++j) unit_rhs(circuit, mna, errors[first + j], &block[j * n]);
-    dc.solve(block, static_cast<int>(count));
-    for (std::size_t j = 0; j < count; ++j) {
-      const Vector::const_iterator column = block.begin() + static_cast<std::ptrdiff_t>(j * n);
-      if (!std::all_of(column, column + static_cast<std::ptrdiff_t>(n), [](double v) { return std::isfinite(v); }))
-        require_finite(Vector(column, column + static_cast<std::ptrdiff_t>(n)), mna);
-      add_error(circuit, mna, pins, errors[first + j], &block[j * n], result, squares);
+  Vector block(n * kBlock), combined(n);
+  auto column = [&](std::size_t c) { return &block[c * n]; };
+  for (std::size_t first = 0, last = 0; first < amps.size(); first = last) {
+    std::size_t columns = 0;
+    while (last < amps.size() && columns + amps[last].columns() <= kBlock) columns += amps[last++].columns();
+    std::fill(block.begin(), block.begin() + static_cast<std::ptrdiff_t>(columns * n), 0.0);
+    for (std::size_t k = first, c = 0; k < last; c += amps[k++].columns()) unit_rhs(circuit, mna, amps[k], column(c));
+    dc.solve(block, static_cast<int>(columns));
+    if (!std::all_of(block.begin(), block.begin() + static_cast<std::ptrdiff_t>(columns * n),
+                     [](double v) { return std::isfinite(v); }))
+      for (std::size_t c = 0; c < columns; ++c) require_finite(Vector(column(c), column(c) + n), mna);
+    for (std::size_t k = first, c = 0; k < last; ++k) {
+      const OpAmpErrors& amp = amps[k];
+      if (amp.vos != 0) add_error(circuit, mna, pins, {amp.element, DcErrorKind::vos, amp.vos}, column(c++), result, bands);
+      if (!amp.pins()) continue;
+      const double* plus = column(c);
+      const double* minus = column(c + 1);
+      c += 2;
+      if (amp.ios != 0) {
+        for (std::size_t u = 0; u < n; ++u) combined[u] = 0.5 * (plus[u] - minus[u]);
+        add_error(circuit, mna, pins, {amp.element, DcErrorKind::ios, amp.ios}, combined.data(), result, bands);
+      }
+      if (amp.ib != 0) {
+        for (std::size_t u = 0; u < n; ++u) combined[u] = plus[u] + minus[u];
+        add_error(circuit, mna, pins, {amp.element, DcErrorKind::ib, amp.ib}, combined.data(), result, bands);
+      }
     }
   }
-  for (std::size_t k = 0; k < result.nodes.size(); ++k) result.nodes[k].rss = std::sqrt(squares[k]);
+  for (std::size_t k = 0; k < result.nodes.size(); ++k) {
+    result.nodes[k].worst = bands.worst[k];
+    result.nodes[k].rss = std::sqrt(bands.squares[k]);
+  }
 
   for (auto& amp : result.opamps) {
     const double worst = result.node(circuit.elements[amp.element].nodes[2]).worst;

@@ -6,6 +6,7 @@
 #include <memory>
 
 #include <fmt/format.h>
+#include <fmt/ranges.h>
 
 #include "tacet/common/errors.hpp"
 #include "tacet/common/format.hpp"
@@ -22,16 +23,23 @@ int CheckResult::unsolved() const {
   return static_cast<int>(std::count_if(specs.begin(), specs.end(), [](const SpecResult& r) { return !r.unsolved.empty(); }));
 }
 
-std::string CheckResult::unsolved_message() const {
-  std::string lines, hint;
+SolveError CheckResult::unsolved_error() const {
+  std::vector<std::string> names;
+  const SpecResult* first = nullptr;
   for (const auto& r : specs) {
     if (r.unsolved.empty()) continue;
-    lines += fmt::format("error: spec '{}' cannot be measured: {}\n", r.spec.name, r.note);
-    const auto at = r.unsolved.find("\nhint: ");
-    if (hint.empty() && at != std::string::npos) hint = r.unsolved.substr(at + 1);
+    names.push_back("'" + r.spec.name + "'");
+    if (!first) first = &r;
   }
-  if (!hint.empty() && hint.back() != '\n') hint += '\n';
-  return lines + hint;
+  // "circuit cannot be solved at DC: X" -> "spec 'dc' at DC: X"; "...: X" -> "spec 'g': X".
+  constexpr std::string_view kPrefix = "circuit cannot be solved";
+  std::string rest = first ? first->unsolved : std::string();
+  if (rest.rfind(kPrefix, 0) == 0) rest.erase(0, kPrefix.size());
+  if (!rest.empty() && rest.front() == ' ') rest.erase(0, 1);
+  const std::string who =
+      fmt::format("spec{} {}", names.size() == 1 ? "" : "s", fmt::join(names, ", "));
+  return SolveError::unsolvable(who + (rest.empty() || rest.front() == ':' ? "" : " ") + rest,
+                                first ? first->unsolved_hint : std::string());
 }
 
 int CheckResult::failed() const {
@@ -53,25 +61,20 @@ double phase_in_window(double degrees, std::optional<double> min, std::optional<
 
 namespace {
 
-// "error: circuit cannot be solved at DC: ...\nhint: ..." -> "circuit cannot be solved at DC: ..."
-std::string first_line(const std::string& message) {
-  std::string line = message.substr(0, message.find('\n'));
-  if (line.rfind("error: ", 0) == 0) line.erase(0, 7);
-  return line;
-}
-
 class SpecMeter {
  public:
-  explicit SpecMeter(const Circuit& circuit) : circuit_(circuit) {}
+  SpecMeter(const Circuit& circuit, const SharedAnalyses& shared)
+      : circuit_(circuit), bias_error_(shared.bias_error), shared_response_(shared.response),
+        shared_bias_(shared.bias) {}
 
   SpecResult measure(const Spec& spec) {
-    SpecResult r{spec, std::nullopt, 0, false, 0, {}, {}};
+    SpecResult r{spec, std::nullopt, 0, false, 0, {}, {}, {}};
     if (!spec.probe.empty()) probe_ = resolve_probe(spec.probe, circuit_);
     try {
       measure_kind(r);
     } catch (const SolveError& e) {
       // This spec's analysis cannot run; the others are still measured.
-      r = SpecResult{spec, std::nullopt, 0, false, 0, first_line(e.what()), e.what()};
+      r = SpecResult{spec, std::nullopt, 0, false, 0, e.sentence(), e.sentence(), e.hint()};
     }
     if (r.value && !std::isfinite(*r.value)) {  // never a number that is not one
       r.value.reset();
@@ -99,7 +102,9 @@ class SpecMeter {
     }
   }
 
+  // One FrequencyResponse for every AC, noise and headroom spec.
   FrequencyResponse& response() {
+    if (shared_response_) return *shared_response_;
     if (!response_) response_ = std::make_unique<FrequencyResponse>(circuit_);
     return *response_;
   }
@@ -177,7 +182,7 @@ class SpecMeter {
       options.input = s.input;
       options.level = s.level;
     }
-    const NoiseResult n = run_noise(circuit_, options);
+    const NoiseResult n = run_noise(circuit_, options, response());
     if (s.kind == SpecKind::noise) {
       r.value = n.total_rms;
       r.note = n.total_rms > 0 ? fmt::format("largest: {} {} {:.0f}%", n.contributors[0].source,
@@ -208,18 +213,20 @@ class SpecMeter {
   // One DC analysis for every spec; when it cannot run, every spec that needs
   // it gets the same reason without running it again.
   const BiasResult& bias() {
-    if (!bias_error_.empty()) throw SolveError(bias_error_);
+    if (bias_error_) throw *bias_error_;
+    if (shared_bias_) return *shared_bias_;
     try {
       if (!bias_) bias_ = std::make_unique<BiasResult>(run_bias(circuit_));
     } catch (const SolveError& e) {
-      bias_error_ = e.what();
+      bias_error_ = e;
       throw;
     }
     return *bias_;
   }
 
   const HeadroomResult& headroom() {
-    if (!headroom_) headroom_ = std::make_unique<HeadroomResult>(run_headroom(circuit_, bias()));
+    if (!headroom_)
+      headroom_ = std::make_unique<HeadroomResult>(run_headroom(circuit_, bias(), {}, response()));
     return *headroom_;
   }
 
@@ -261,17 +268,21 @@ class SpecMeter {
 
   const Circuit& circuit_;
   std::unique_ptr<BiasResult> bias_;
-  std::string bias_error_;  ///< why the DC analysis cannot run; empty: it can (or has not been tried)
+  std::optional<SolveError> bias_error_;  ///< why the DC analysis cannot run; empty: it can (or not tried)
   std::unique_ptr<HeadroomResult> headroom_;
   std::unique_ptr<FrequencyResponse> response_;
+  FrequencyResponse* shared_response_;
+  const BiasResult* shared_bias_;
   Probe probe_;  ///< the probe of the spec being measured
 };
 
 }  // namespace
 
-CheckResult run_check(const Circuit& circuit) {
+CheckResult run_check(const Circuit& circuit) { return run_check(circuit, SharedAnalyses{}); }
+
+CheckResult run_check(const Circuit& circuit, const SharedAnalyses& shared) {
   CheckResult result;
-  SpecMeter meter(circuit);
+  SpecMeter meter(circuit, shared);
   for (const auto& spec : circuit.specs) result.specs.push_back(meter.measure(spec));
   return result;
 }

@@ -131,9 +131,9 @@ Band band_of(const NoiseOptions& options) {
 // overflows leaves nothing finite to say (exit 3), never a printed inf.
 void require_finite_power(double power, double f, const Probe& probe) {
   if (std::isfinite(power)) return;
-  throw SolveError(fmt::format("error: the noise at probe '{}' is not finite at {}Hz: the "
-                               "circuit's values overflow a double there",
-                               probe.text, format_si(f)));
+  throw SolveError::unsolvable_at(
+      f, fmt::format("the noise at probe '{}' is not finite: the circuit's values overflow a double",
+                     probe.text));
 }
 
 // Every source's density where it is largest in the analysis (its 1/f part
@@ -143,13 +143,14 @@ void require_finite_sources(const Circuit& circuit, const std::vector<NoiseSourc
   for (const NoiseSource& source : sources) {
     if (std::isfinite(source.power(lowest))) continue;
     const std::string& name = circuit.elements[source.element].name;
-    throw SolveError(fmt::format(
-        "error: the {} noise of '{}' is not finite at {}Hz: its density overflows a double\n"
-        "hint: check the values that set it ({})",
-        to_string(source.mechanism), name, format_si(lowest),
-        source.mechanism == NoiseMechanism::thermal ? "the resistance"
-        : source.mechanism == NoiseMechanism::en    ? "the model's en and fce"
-                                                    : "the model's in and fci"));
+    throw SolveError::unsolvable_at(
+        lowest,
+        fmt::format("the {} noise of '{}' is not finite: its density overflows a double",
+                    to_string(source.mechanism), name),
+        fmt::format("check the values that set it ({})",
+                    source.mechanism == NoiseMechanism::thermal ? "the resistance"
+                    : source.mechanism == NoiseMechanism::en    ? "the model's en and fce"
+                                                                : "the model's in and fci"));
   }
 }
 
@@ -284,6 +285,14 @@ std::string NoiseOptions::validate() const {
 
 NoiseResult run_noise(const Circuit& circuit, const NoiseOptions& options) {
   if (auto problem = options.validate(); !problem.empty()) throw InputError::usage(problem);
+  resolve_probe(options.probe, circuit);
+  FrequencyResponse response(circuit, options.solver);
+  return run_noise(circuit, options, response);
+}
+
+NoiseResult run_noise(const Circuit& circuit, const NoiseOptions& options,
+                      FrequencyResponse& response) {
+  if (auto problem = options.validate(); !problem.empty()) throw InputError::usage(problem);
   NoiseResult result;
   result.probe = resolve_probe(options.probe, circuit);
   result.input = options.input;
@@ -291,7 +300,6 @@ NoiseResult run_noise(const Circuit& circuit, const NoiseOptions& options) {
   result.temperature_kelvin = circuit.ambient_celsius + kZeroCelsius;
   result.frequencies = options.sweep.frequencies();
 
-  FrequencyResponse response(circuit, options.solver);
   const MnaSystem& mna = response.mna();
   std::optional<InputPort> input;
   if (!options.input.empty()) {

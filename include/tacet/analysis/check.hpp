@@ -9,6 +9,7 @@
 
 #include "tacet/circuit/circuit.hpp"
 #include "tacet/circuit/spec.hpp"
+#include "tacet/common/errors.hpp"
 
 namespace tacet {
 
@@ -19,24 +20,36 @@ struct SpecResult {
   bool pass = false;
   double where = 0;             ///< Hz of the worst point (flatness) or 0
   std::string note;             ///< why there is no value, or what was measured where
-  /// The solver's whole message (with its hint) when the analysis this spec
-  /// needs cannot run (no DC path, a singular matrix); empty when it ran.
-  std::string unsolved;
+  /// The solver's sentence when the analysis this spec needs cannot run (no
+  /// DC path, a singular matrix), and its hint; empty when it ran.
+  std::string unsolved, unsolved_hint;
 };
 
 struct CheckResult {
   std::vector<SpecResult> specs;  ///< in the order written
   int failed() const;    ///< specs that did not pass, the unsolved ones included
   int unsolved() const;  ///< specs whose analysis could not run
-  /// One "error: spec 'NAME' cannot be measured: REASON" line per unsolved
-  /// spec, then the first reason's hint: the message of exit status 3.
-  std::string unsolved_message() const;
+  /// The error of exit status 3 naming every unsolved spec with the first
+  /// one's reason and hint: "circuit cannot be solved: spec 'dc' at DC: ...".
+  SolveError unsolved_error() const;
 };
 
 /// Measures every spec. A spec whose analysis cannot run (SolveError) fails
 /// with the reason in its note and `unsolved`; the other specs are still
 /// measured. Throws InputError for a probe that does not resolve.
 CheckResult run_check(const Circuit& circuit);
+
+class FrequencyResponse;
+struct BiasResult;
+
+/// Analyses of the same circuit a caller has already set up (diff does, for
+/// its own comparisons), so that every analysis runs once per circuit.
+struct SharedAnalyses {
+  FrequencyResponse* response = nullptr;  ///< the circuit's; nullptr: check makes its own
+  const BiasResult* bias = nullptr;       ///< the DC analysis; nullptr: check runs it if needed
+  std::optional<SolveError> bias_error;   ///< why the DC analysis could not run; empty: it could
+};
+CheckResult run_check(const Circuit& circuit, const SharedAnalyses& shared);
 
 /// A phase compared with its limits modulo 360 degrees: of the angles that
 /// differ from `degrees` by whole turns, the one nearest the window's centre

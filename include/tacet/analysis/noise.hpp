@@ -43,6 +43,8 @@
 
 namespace tacet {
 
+class FrequencyResponse;
+
 /// Boltzmann constant, J/K (exact since the 2019 SI redefinition).
 constexpr double kBoltzmann = 1.380649e-23;
 
@@ -113,5 +115,8 @@ struct NoiseResult {
 /// source reaches the probe) is 0, with every share 0; an input that does not
 /// reach the probe leaves input_referred_rms empty with a note.
 NoiseResult run_noise(const Circuit& circuit, const NoiseOptions& options);
+/// The same on a caller's FrequencyResponse of `circuit` (shared with other analyses).
+NoiseResult run_noise(const Circuit& circuit, const NoiseOptions& options,
+                      FrequencyResponse& response);
 
 }  // namespace tacet
