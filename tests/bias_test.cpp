@@ -239,7 +239,7 @@ TEST_CASE("an offset that overflows a double is an error naming the op amp", "[b
   b.vsrc("Vin", "in", "gnd", 0);
   noninverting_stage(b, "U1", "in", "out", 1e3, 100e3, 1e3, dc_model(1e308, 0, 0));
   CHECK_THROWS_WITH(run_bias(b.circuit),
-                    Catch::Matchers::StartsWith("error: the worst-case offset at node ") &&
+                    Catch::Matchers::StartsWith("error: circuit cannot be solved at DC: the worst-case offset at node 'out'") &&
                         Catch::Matchers::Contains("vos of 'U1'") &&
                         Catch::Matchers::Contains("overflows a double"));
   CHECK_THROWS_AS(run_bias(b.circuit), SolveError);

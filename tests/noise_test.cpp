@@ -421,8 +421,9 @@ TEST_CASE("a noise density that overflows a double is an error naming the source
   OpAmpModel m = single_pole(1e6, 1e5);
   m.en = 1e308;  // en^2 overflows
   CHECK_THROWS_WITH(run_noise(noninverting(1e3, 9e3, 1e3, m), noise_at({1e3}, "out", 10, 1e3)),
-                    "error: the en noise of 'U1' is not finite at 10Hz: its density overflows a "
-                    "double\nhint: check the values that set it (the model's en and fce)");
+                    "error: circuit cannot be solved at 10Hz: the en noise of 'U1' is not finite: "
+                    "its density overflows a double\n"
+                    "hint: check the values that set it (the model's en and fce)\n");
   CHECK_THROWS_AS(run_noise(noninverting(1e3, 9e3, 1e3, m), noise_at({1e3}, "out", 10, 1e3)),
                   SolveError);
 }
