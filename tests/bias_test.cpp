@@ -233,3 +233,35 @@ TEST_CASE("at DC capacitors are open and inductors are shorts", "[bias]") {
   CHECK_THAT(at(b.circuit, r, "out"), IsClose(2.0, 1e-12));
   CHECK(std::abs(at(b.circuit, r, "mid")) < 1e-15);
 }
+
+TEST_CASE("an offset that overflows a double is an error naming the op amp", "[bias][errors]") {
+  CircuitBuilder b;
+  b.vsrc("Vin", "in", "gnd", 0);
+  noninverting_stage(b, "U1", "in", "out", 1e3, 100e3, 1e3, dc_model(1e308, 0, 0));
+  CHECK_THROWS_WITH(run_bias(b.circuit),
+                    Catch::Matchers::StartsWith("error: circuit cannot be solved at DC: the worst-case offset at node 'out'") &&
+                        Catch::Matchers::Contains("vos of 'U1'") &&
+                        Catch::Matchers::Contains("overflows a double"));
+  CHECK_THROWS_AS(run_bias(b.circuit), SolveError);
+}
+
+TEST_CASE("each op amp keeps its three largest contributors, largest first, from a long chain",
+          "[bias]") {
+  // Five followers in cascade with vos 1, 2, 3, 4, 5 mV: at the last output
+  // each vos arrives with unit gain (a follower's gain is 1/(1 + 1/aol),
+  // Black 1934), so the three largest are U5, U4, U3 in that order.
+  CircuitBuilder b;
+  b.vsrc("Vin", "n0", "gnd", 0);
+  for (int k = 1; k <= 5; ++k) {
+    const std::string out = "n" + std::to_string(k);
+    b.opamp("U" + std::to_string(k), "n" + std::to_string(k - 1), out, out, dc_model(1e-3 * k, 0, 0));
+  }
+  const auto r = run_bias(b.circuit);
+  const auto& last = amp(r, "U5").largest;
+  REQUIRE(last.size() == 3);
+  CHECK(last[0].opamp == "U5");
+  CHECK(last[1].opamp == "U4");
+  CHECK(last[2].opamp == "U3");
+  CHECK_THAT(last[2].volts, IsClose(3e-3 * std::pow(1 / (1 + 1 / kAol), 3), 1e-9));
+  CHECK_THAT(worst_at(b.circuit, r, "n5"), IsClose(15e-3, 1e-5));
+}

@@ -4,7 +4,11 @@
 #include <numbers>
 #include <string>
 
+#include <fmt/format.h>
+
+#include "tacet/analysis/bias.hpp"
 #include "tacet/analysis/check.hpp"
+#include "tacet/solve/response.hpp"
 #include "tacet/common/errors.hpp"
 #include "text_circuit.hpp"
 
@@ -241,4 +245,126 @@ TEST_CASE("a rails spec fails when an output can come within its margin of the r
   CHECK(*pass.value == Approx(9.4).epsilon(1e-4));
   CHECK(pass.pass);
   CHECK_FALSE(check_one(amp, "spec r rails margin=10V").pass);
+}
+
+TEST_CASE("an snr spec with no noise at the probe passes as unbounded, without a number",
+          "[check][noise]") {
+  // The probe is a node the source holds: no noise reaches it (ideal source,
+  // zero impedance), so signal/noise is unbounded: it meets any minimum.
+  auto quiet = check_one("vsrc Vin (in, gnd) ac=1\nres R1 (in, gnd) 1k\n",
+                         "spec s snr (in) from=20Hz to=20kHz input=Vin level=1V min=100dB");
+  CHECK_FALSE(quiet.value);
+  CHECK(quiet.pass);
+  CHECK(quiet.note == "no noise reaches the probe: the ratio is unbounded");
+  // The signal cannot reach the probe: there is no ratio, and the spec fails.
+  auto deaf = check_one("vsrc Vin (in, gnd) ac=1\nres R1 (in, gnd) 1k\nres R2 (out, gnd) 1k\n",
+                        "spec s snr (out) from=20Hz to=20kHz input=Vin level=1V min=100dB");
+  CHECK_FALSE(deaf.value);
+  CHECK_FALSE(deaf.pass);
+  CHECK(deaf.note == "the signal from 'Vin' does not reach the probe at 632.5Hz");
+}
+
+TEST_CASE("a noise spec on a probe no noise reaches measures 0 V", "[check][noise]") {
+  auto r = check_one("vsrc Vin (in, gnd) ac=1\nres R1 (in, gnd) 1k\n",
+                     "spec n noise (in) from=20Hz to=20kHz max=1uV");
+  REQUIRE(r.value);
+  CHECK(*r.value == 0.0);
+  CHECK(r.pass);
+  CHECK(r.note == "no noise reaches the probe");
+}
+
+TEST_CASE("a phase spec compares its limits modulo 360 degrees", "[check]") {
+  // An inverter into an RC low-pass: arg H = 180 deg - atan(f/fc) (closed form,
+  // first-order RC after a gain of -1). At f = fc tan(0.6 deg) that is
+  // 179.4 deg, the same angle as -180.6 deg.
+  const std::string inverted =
+      "vsrc Vin (in, gnd) ac=1\n"
+      "vcvs E1 (inv, gnd; in, gnd) gain=-1\n"
+      "res R1 (inv, out) 10k\n"
+      "cap C1 (out, gnd) 10n\n";
+  const double f = kRcCorner * std::tan(0.6 * std::numbers::pi / 180);
+  auto r = check_one(inverted, fmt::format("spec p phase (out) at={:.17g} min=-181deg max=-179deg", f));
+  REQUIRE(r.value);
+  CHECK(*r.value == Approx(-180.6).epsilon(1e-9));
+  CHECK(r.margin == Approx(0.4).epsilon(1e-6));
+  CHECK(r.pass);
+  CHECK(r.note == "measured 179.40 deg, the same angle as -180.60 deg");
+  // One limit: the turn nearest it; 200 deg of lag wanted, 180.6 there: fails by 19.4.
+  auto lag = check_one(inverted, fmt::format("spec p phase (out) at={:.17g} max=-200deg", f));
+  CHECK(lag.margin == Approx(-19.4).epsilon(1e-6));
+  CHECK_FALSE(lag.pass);
+  CHECK(phase_in_window(179.4, -190.0, std::nullopt) == Approx(-180.6));
+  CHECK(phase_in_window(-45.0, -46.0, -44.0) == -45.0);
+  CHECK(phase_in_window(10.0, 700.0, 740.0) == Approx(730.0));
+}
+
+TEST_CASE("a gain spec with a negative ratio limit is rejected with a hint", "[check][elaborate]") {
+  // A ratio limit bounds |H|, which is never negative (a magnitude).
+  auto r = elaborate_text(kRc + "spec g gain (out) at=1k min=-10.1 max=-9.9\n");
+  CHECK_FALSE(r.circuit);
+  CHECK(r.diagnostics ==
+        "main.tacet:4:29: error: a gain spec's min= as a ratio bounds |H|, which is never below 0\n"
+        "spec g gain (out) at=1k min=-10.1 max=-9.9\n"
+        "                            ^~~~~\n"
+        "hint: for an inversion add a phase spec (180deg); for a level below the reference write "
+        "dB, min=-20dB\n");
+  CHECK(elaborate_text(kRc + "spec g gain (out) at=1k min=-10.1dB max=-9.9dB\n").circuit);
+}
+
+TEST_CASE("a spec whose DC point cannot be found fails alone, naming the spec and the node",
+          "[check][bias]") {
+  // C1 leaves node 'out' without a DC path (capacitors are open at DC), so the
+  // offset spec cannot be measured; the gain spec still is: at fc the RC
+  // high-pass gives 1/sqrt 2, -3.0103 dB (first-order RC, closed form).
+  const std::string coupled =
+      "vsrc Vin (in, gnd) ac=1\n"
+      "cap C1 (in, out) 10n\n"
+      "res R1 (out, x) 10k\n"
+      "cap C2 (x, gnd) 1\n";
+  auto r = elaborate_text(coupled +
+                          "spec dc offset (out) max=1mV\n"
+                          "spec g gain (out) at=1MHz min=-1dB\n"
+                          "spec dc2 offset (x) max=1mV\n");
+  INFO(r.diagnostics);
+  REQUIRE(r.circuit);
+  const CheckResult result = run_check(*r.circuit);
+  REQUIRE(result.specs.size() == 3);
+  CHECK_FALSE(result.specs[0].pass);
+  CHECK_FALSE(result.specs[0].value);
+  CHECK(result.specs[0].note ==
+        "circuit cannot be solved at DC: nodes 'out', 'x' have no DC path to gnd");
+  REQUIRE(result.specs[1].value);
+  CHECK(result.specs[1].pass);
+  CHECK(result.unsolved() == 2);
+  CHECK(result.failed() == 2);
+  CHECK(std::string(result.unsolved_error().what()) ==
+        "error: circuit cannot be solved: specs 'dc', 'dc2' at DC: nodes 'out', 'x' have no DC "
+        "path to gnd\n"
+        "hint: at DC capacitors are open; give the node a resistor to a biased node or to gnd\n");
+}
+
+TEST_CASE("check reuses the analyses a caller shares instead of running its own", "[check][bias]") {
+  // The offset spec reads the shared DC analysis: a nominal of 2 V planted
+  // there is what it reports; the gain and noise specs solve on the shared
+  // response (its factorisation count moves, a fresh one would stay at 0).
+  auto r = elaborate_text(kRc +
+                          "spec dc offset (out) max=5V\n"
+                          "spec g gain (out) at=1kHz min=-10dB\n"
+                          "spec n noise (out) from=20Hz to=20kHz max=1mV\n");
+  REQUIRE(r.circuit);
+  BiasResult planted = run_bias(*r.circuit);
+  const int out = *r.circuit->find_node("out");
+  planted.nodes[static_cast<std::size_t>(out - 1)].nominal = 2.0;
+  FrequencyResponse response(*r.circuit);
+  const CheckResult result = run_check(*r.circuit, SharedAnalyses{&response, &planted, {}});
+  REQUIRE(result.specs[0].value);
+  CHECK(*result.specs[0].value == 2.0);
+  CHECK(response.lu().full_factorizations() >= 1);
+  CHECK(result.specs[1].pass);
+  CHECK(result.specs[2].pass);
+  // A DC analysis that could not run is reported, not retried.
+  const CheckResult failed = run_check(
+      *r.circuit, SharedAnalyses{&response, nullptr, SolveError::unsolvable_at(0, "no DC point here")});
+  CHECK(failed.specs[0].note == "circuit cannot be solved at DC: no DC point here");
+  CHECK(failed.unsolved() == 1);
 }

@@ -4,6 +4,7 @@
 
 #include <catch2/catch.hpp>
 #include <cmath>
+#include <limits>
 
 #include "is_close.hpp"
 
@@ -118,4 +119,81 @@ TEST_CASE("a depth limit that stops the bisection is reported as not converged",
     return 1 / ((1 - x * x) * (1 - x * x) + x * x / (q * q));
   }, coarse);
   CHECK_FALSE(r.converged);
+}
+
+TEST_CASE("a resonance up to Q = 1e6 is found wherever it sits against the panels",
+          "[integrate]") {
+  // g = 1/((1 - x^2)^2 + x^2/Q^2), x = f/f0, over 1 Hz..1 MHz. References:
+  // scipy.integrate.quad (epsrel 1e-13) on [1, 1e6] cut at f0 (1 +- k/Q),
+  // k = 1, 3, 10 .. 1e5, summed; each is within 1e-9 of pi Q f0 / 2 less the
+  // tails (by residues, from memory). f0 = 10^3.5 is the middle of a first-cut
+  // decade (where the first bisection splits), 10^3 a first-cut boundary,
+  // 10^3.25 and 10^3.125 the second and third bisection points, 1234.5 Hz none.
+  struct Case {
+    double f0, q, reference;
+  };
+  const Case cases[] = {
+      {std::pow(10, 3.5), 10, 49671.94129558042},
+      {std::pow(10, 3.5), 1e3, 4967293.132864758},
+      {std::pow(10, 3.5), 1e6, 4967294131.934523},
+      {1e3, 10, 15706.963266952298},
+      {1e3, 1e3, 1570795.3267938504},
+      {1e3, 1e6, 1570796325.7822375},
+      {std::pow(10, 3.25), 10, 27932.14764949825},
+      {std::pow(10, 3.25), 1e3, 2793313.765300628},
+      {std::pow(10, 3.25), 1e6, 2793314764.2629347},
+      {std::pow(10, 3.125), 10, 20945.90567201708},
+      {std::pow(10, 3.125), 1e3, 2094689.567342958},
+      {std::pow(10, 3.125), 1e6, 2094690566.2619317},
+      {1234.5, 10, 19390.48065307354},
+      {1234.5, 1e3, 1939147.0654270328},
+      {1234.5, 1e6, 1939148064.4454386},
+  };
+  for (const Case& c : cases) {
+    INFO("f0 = " << c.f0 << ", Q = " << c.q);
+    const auto r = integrate_scalar(1, 1e6, [&](double f) {
+      const double x = f / c.f0;
+      return 1 / ((1 - x * x) * (1 - x * x) + x * x / (c.q * c.q));
+    });
+    CHECK_THAT(r.values[0], IsClose(c.reference, 1e-7));
+    CHECK(r.converged);
+  }
+}
+
+TEST_CASE("a component that is not finite is reported at once and leaves the others intact",
+          "[integrate]") {
+  // Component 1 is infinite from 100 Hz up: its integral is unbounded, and it
+  // must not drive the bisection; component 0 (the white 1.0) integrates to the
+  // band width (elementary).
+  const auto r = integrate_band(10, 1e3, 2, 2, [](double f, double* out) {
+    out[0] = 1.0;
+    out[1] = f > 100 ? std::numeric_limits<double>::infinity() : 1.0;
+  });
+  CHECK_THAT(r.values[0], IsClose(990.0, 1e-12));
+  CHECK(std::isinf(r.values[1]));
+  REQUIRE(r.non_finite_at.size() == 2);
+  CHECK(r.non_finite_at[0] == 0);
+  CHECK(r.non_finite_at[1] > 100);
+  CHECK(r.evaluations < 100);
+}
+
+TEST_CASE("an integrand that is nowhere finite ends the integral at its first sample",
+          "[integrate]") {
+  const auto r = integrate_band(10, 1e3, 3, 1, [](double, double* out) {
+    out[0] = std::numeric_limits<double>::quiet_NaN();
+    out[1] = out[2] = 1.0;
+  });
+  CHECK(r.evaluations == 1);
+  CHECK_FALSE(r.converged);
+  CHECK_THAT(r.non_finite_at[0], IsClose(10.0, 1e-12));
+  for (double v : r.values) CHECK_FALSE(std::isfinite(v));
+}
+
+TEST_CASE("an integrand that is exactly zero is done on its first cut", "[integrate]") {
+  const auto r = integrate_band(1, 1e6, 2, 2, [](double, double* out) { out[0] = out[1] = 0.0; });
+  CHECK(r.values[0] == 0.0);
+  CHECK(r.values[1] == 0.0);
+  CHECK(r.converged);
+  // Six decades of 15 Kronrod nodes and 7 panel ends: no bisection.
+  CHECK(r.evaluations == 6 * 15 + 7);
 }

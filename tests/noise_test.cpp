@@ -339,4 +339,126 @@ TEST_CASE("only the asked number of largest contributors get a density per point
   CHECK(r.contributor_density[0].source == r.contributors[0].source);
   CHECK(r.contributor_density[1].source == r.contributors[1].source);
   CHECK(r.contributor_density[0].density.size() == 2);
+
+TEST_CASE("a current probe on a resistor includes that resistor's own noise current",
+          "[noise]") {
+  // Series RC from a source (a short for noise): the current through R and C is
+  // R's Norton current 4kT/R shaped by x^2/(1 + x^2), x = f/fc, fc = 1/(2 pi R C)
+  // (Nyquist 1928, Norton form, through the current divider of R and C); its band
+  // power 4kT/R ((f2 - f1) - fc (atan(f2/fc) - atan(f1/fc))) is the elementary
+  // integral, and scipy.integrate.quad gives sqrt = 112.97267368520567 pA for
+  // 10 kohm, 10 nF, 1 Hz..10 kHz (2e-11 from the closed form).
+  const double r = 10e3, c = 10e-9, fc = 1 / (2 * kPi * r * c), f1 = 1, f2 = 10e3;
+  CircuitBuilder b;
+  b.vsrc("Vin", "in", "gnd", 1.0);
+  b.add(ElementKind::resistor, "R1", {"in", "mid"}, r);
+  b.add(ElementKind::capacitor, "C1", {"mid", "gnd"}, c);
+  const double band = 4 * kT25 / r * ((f2 - f1) - fc * (std::atan(f2 / fc) - std::atan(f1 / fc)));
+  const auto through_r = run_noise(b.circuit, noise_at({10, fc, 5e3}, "i(R1)", f1, f2));
+  const auto through_c = run_noise(b.circuit, noise_at({10, fc, 5e3}, "i(C1)", f1, f2));
+  CHECK_THAT(through_r.total_rms, IsClose(std::sqrt(band), 1e-9));
+  CHECK_THAT(through_r.total_rms, IsClose(1.1297267368520567e-10, 1e-9));
+  CHECK_THAT(through_c.total_rms, IsClose(std::sqrt(band), 1e-9));
+  for (std::size_t k = 0; k < through_r.density.size(); ++k) {
+    const double x = through_r.frequencies[k] / fc;
+    CHECK_THAT(through_r.density[k], IsClose(std::sqrt(4 * kT25 / r * x * x / (1 + x * x)), 1e-12));
+    CHECK_THAT(through_c.density[k], IsClose(through_r.density[k], 1e-12));
+  }
+}
+
+TEST_CASE("a resistor straight across a source carries its whole noise current", "[noise]") {
+  // The source holds the voltage across R fixed, so all of R's Norton current
+  // sqrt(4kT/R) flows through it (Nyquist 1928): rms sqrt(4kT B / R).
+  const double r = 1e3, f1 = 20, f2 = 20e3;
+  CircuitBuilder b;
+  b.vsrc("Vin", "in", "gnd", 1.0);
+  b.add(ElementKind::resistor, "R1", {"in", "gnd"}, r);
+  const auto result = run_noise(b.circuit, noise_at({1e3}, "i(R1)", f1, f2));
+  CHECK_THAT(result.density[0], IsClose(std::sqrt(4 * kT25 / r), 1e-12));
+  CHECK_THAT(result.total_rms, IsClose(std::sqrt(4 * kT25 * (f2 - f1) / r), 1e-9));
+  // Another resistor's current probe is untouched by R1's own noise: R2 across
+  // the same source sees only its own.
+  b.add(ElementKind::resistor, "R2", {"in", "gnd"}, 4 * r);
+  const auto other = run_noise(b.circuit, noise_at({1e3}, "i(R2)", f1, f2));
+  CHECK_THAT(other.density[0], IsClose(std::sqrt(4 * kT25 / (4 * r)), 1e-12));
+}
+
+TEST_CASE("a tank of Q up to 1e6 integrates to kT/C wherever its resonance sits", "[noise]") {
+  // Parallel R, L, C: the voltage noise of R over all frequencies is kT/C
+  // whatever R and L (equipartition; the textbook kT/C result). Over 1 Hz..1 MHz
+  // the tails left out are below 2/(pi Q x) of it, x = 1 MHz/f0 (the tank's
+  // asymptote 4kTR/(Q x)^2, integrated): the rms is checked to that, plus 1e-8.
+  const double c = 10e-9;
+  for (const double f0 : {std::pow(10, 3.5), 3162.3, 1e3, std::pow(10, 3.25), 1234.5})
+    for (const double q : {10.0, 1e3, 1e6}) {
+      INFO("f0 = " << f0 << ", Q = " << q);
+      const double w0 = 2 * kPi * f0;
+      CircuitBuilder b;
+      b.add(ElementKind::resistor, "R1", {"out", "gnd"}, q / (w0 * c));
+      b.add(ElementKind::inductor, "L1", {"out", "gnd"}, 1 / (w0 * w0 * c));
+      b.add(ElementKind::capacitor, "C1", {"out", "gnd"}, c);
+      const auto r = run_noise(b.circuit, noise_at({f0}, "out", 1, 1e6));
+      const double tails = 2 / (kPi * q * (1e6 / f0));
+      CHECK_THAT(r.total_rms, IsClose(std::sqrt(kT25 / c), tails + 1e-8));
+    }
+}
+
+TEST_CASE("an input that does not reach the probe leaves the output noise intact and says so",
+          "[noise]") {
+  // Vin drives a node the probe cannot see: G = 0 everywhere, so the
+  // input-referred noise is unbounded; the output noise is R2's own
+  // sqrt(4kTR B) (Nyquist 1928), and the integral must end at once, not bisect
+  // a NaN or an infinity to full depth.
+  CircuitBuilder b;
+  b.vsrc("Vin", "in", "gnd", 1.0);
+  b.add(ElementKind::resistor, "R1", {"in", "gnd"}, 1e3);
+  b.add(ElementKind::resistor, "R2", {"out", "gnd"}, 10e3);
+  auto options = noise_at({100, 1e3}, "out", 20, 20e3);
+  options.input = "Vin";
+  const auto r = run_noise(b.circuit, options);
+  CHECK_THAT(r.total_rms, IsClose(std::sqrt(4 * kT25 * 10e3 * (20e3 - 20)), 1e-9));
+  CHECK_FALSE(r.input_referred_rms.has_value());
+  REQUIRE(r.notes.size() == 1);
+  CHECK(r.notes[0] == "the input 'Vin' does not reach the probe 'out' at 20Hz (between 20Hz and "
+                      "20kHz): the input-referred noise is unbounded");
+  CHECK(std::isinf(r.input_density[0]));
+  CHECK(r.band_evaluations < 200);
+}
+
+TEST_CASE("exactly zero output noise is 0 with no share, answered on the first cut", "[noise]") {
+  // The probe sits on a node a source holds: no noise current reaches it
+  // (an ideal voltage source has zero impedance). Noise referred to the input is 0 too.
+  CircuitBuilder b;
+  b.vsrc("Vin", "in", "gnd", 1.0);
+  b.add(ElementKind::resistor, "R1", {"in", "gnd"}, 1e3);
+  auto options = noise_at({100}, "in", 1, 1e6);
+  options.input = "Vin";
+  options.level = 1.0;
+  const auto r = run_noise(b.circuit, options);
+  CHECK(r.total_rms == 0.0);
+  CHECK(r.density[0] == 0.0);
+  REQUIRE(r.input_referred_rms.has_value());
+  CHECK(*r.input_referred_rms == 0.0);
+  REQUIRE(r.contributors.size() == 1);
+  CHECK(r.contributors[0].share == 0.0);
+  CHECK(r.band_evaluations == 6 * 15 + 7);  // six decades, no bisection
+  REQUIRE(r.signal);
+  CHECK(std::isnan(r.signal->ratio_db));  // unbounded: not a number to print
+  // Every part noiseless: no source at all, no integral.
+  b.circuit.elements[1].noiseless = true;
+  const auto quiet = run_noise(b.circuit, noise_at({100}, "in", 1, 1e6));
+  CHECK(quiet.total_rms == 0.0);
+  CHECK(quiet.contributors.empty());
+  CHECK(quiet.band_evaluations == 0);
+}
+
+TEST_CASE("a noise density that overflows a double is an error naming the source", "[noise][errors]") {
+  OpAmpModel m = single_pole(1e6, 1e5);
+  m.en = 1e308;  // en^2 overflows
+  CHECK_THROWS_WITH(run_noise(noninverting(1e3, 9e3, 1e3, m), noise_at({1e3}, "out", 10, 1e3)),
+                    "error: circuit cannot be solved at 10Hz: the en noise of 'U1' is not finite: "
+                    "its density overflows a double\n"
+                    "hint: check the values that set it (the model's en and fce)\n");
+  CHECK_THROWS_AS(run_noise(noninverting(1e3, 9e3, 1e3, m), noise_at({1e3}, "out", 10, 1e3)),
+                  SolveError);
 }

@@ -87,13 +87,20 @@ std::vector<double> Sweep::frequencies() const {
 AcResult run_ac(const Circuit& circuit, const AcOptions& options) {
   if (auto problem = options.sweep.validate(); !problem.empty())
     throw InputError::usage(problem);
+  for (const auto& text : options.probes) resolve_probe(text, circuit);
+  FrequencyResponse response(circuit, options.solver);
+  return run_ac(circuit, options, response);
+}
+
+AcResult run_ac(const Circuit& circuit, const AcOptions& options, FrequencyResponse& response) {
+  if (auto problem = options.sweep.validate(); !problem.empty())
+    throw InputError::usage(problem);
   AcResult result;
   for (const auto& text : options.probes)
     result.traces.push_back({resolve_probe(text, circuit), {}});
   result.frequencies = options.sweep.frequencies();
   for (auto& trace : result.traces) trace.values.resize(result.frequencies.size());
 
-  FrequencyResponse response(circuit, options.solver);
   for (std::size_t point = 0; point < result.frequencies.size(); ++point) {
     response.solve_at(result.frequencies[point]);
     for (auto& trace : result.traces) trace.values[point] = response.value(trace.probe);

@@ -9,6 +9,8 @@
 #include <cmath>
 #include <complex>
 #include <memory>
+#include <numeric>
+#include <optional>
 
 #include "tacet/common/errors.hpp"
 #include "tacet/common/format.hpp"
@@ -17,40 +19,39 @@
 namespace tacet {
 namespace {
 
-using Vector = std::vector<std::complex<double>>;
+using Vector = std::vector<double>;
 constexpr std::size_t kLargestShown = 3;
+constexpr int kBlock = 16;  // DC error right-hand sides solved together
 
-/// The MNA matrix at s = 0, factored once; every solve reuses the factors.
+/// The real MNA matrix at s = 0, factored once; every solve reuses the factors.
 class DcSolver {
  public:
   DcSolver(const Circuit& circuit, SolverKind kind)
-      : mna_(circuit, AnalysisKind::dc), lu_(make_sparse_lu(kind)) {
+      : mna_(circuit, AnalysisKind::dc), lu_(make_real_sparse_lu(kind)) {
     lu_->analyse(mna_.pattern());
     Vector values(static_cast<std::size_t>(mna_.pattern().nonzeros()));
-    mna_.assemble(0.0, values.data());
+    mna_.assemble_dc(values.data());
     if (lu_->factor(values.data()) == FactorStatus::singular) throw_singular(mna_, lu_->singular_column(), 0.0);
   }
   const MnaSystem& mna() const { return mna_; }
-  Vector zero_rhs() const { return Vector(static_cast<std::size_t>(mna_.size())); }
-  Vector solve(Vector rhs) const {
-    lu_->solve(rhs.data());
-    return rhs;
-  }
+  std::size_t size() const { return static_cast<std::size_t>(mna_.size()); }
+  /// `count` right-hand sides of size() values each, solved in place.
+  void solve(Vector& block, int count) const { lu_->solve(block.data(), count); }
 
  private:
   MnaSystem mna_;
-  std::unique_ptr<SparseLu> lu_;
+  std::unique_ptr<RealSparseLu> lu_;
 };
 
 // A current `amps` leaving `node` (into an op-amp pin or a source): KCL row -= amps.
-void draw_current(const MnaSystem& mna, Vector& rhs, int node, double amps) {
+void draw_current(const MnaSystem& mna, double* rhs, int node, double amps) {
   const int u = mna.node_unknown(node);
-  if (u >= 0) rhs[static_cast<std::size_t>(u)] -= amps;
+  if (u >= 0) rhs[u] -= amps;
 }
 
 Vector nominal_rhs(const Circuit& circuit, const DcSolver& dc) {
   const MnaSystem& mna = dc.mna();
-  Vector rhs = dc.zero_rhs();
+  Vector rhs(dc.size(), 0.0);
   for (std::size_t i = 0; i < circuit.elements.size(); ++i) {
     const auto& e = circuit.elements[i];
     switch (traits(e.kind).drive) {
@@ -60,14 +61,14 @@ Vector nominal_rhs(const Circuit& circuit, const DcSolver& dc) {
         rhs[static_cast<std::size_t>(mna.branch_unknown(i))] += e.dc;
         break;
       case Drive::current:
-        draw_current(mna, rhs, e.nodes[0], e.dc);
-        draw_current(mna, rhs, e.nodes[1], -e.dc);
+        draw_current(mna, rhs.data(), e.nodes[0], e.dc);
+        draw_current(mna, rhs.data(), e.nodes[1], -e.dc);
         break;
     }
     if (e.kind == ElementKind::opamp) {
       const double ib = circuit.model_of(e).ib;
-      draw_current(mna, rhs, e.nodes[0], ib);
-      draw_current(mna, rhs, e.nodes[1], ib);
+      draw_current(mna, rhs.data(), e.nodes[0], ib);
+      draw_current(mna, rhs.data(), e.nodes[1], ib);
     }
   }
   return rhs;
@@ -79,84 +80,173 @@ struct DcError {
   double limit;  // V (vos) or A (ios, ib)
 };
 
-std::vector<DcError> dc_errors(const Circuit& circuit) {
-  std::vector<DcError> errors;
+// An op amp's DC errors. Its vos is one right-hand side; its ios and ib are
+// both made of the currents drawn from its two pins, so two solves (a unit
+// drawn from + alone, from - alone) give both: ios = (P - M)/2, ib = P + M.
+struct OpAmpErrors {
+  std::size_t element;
+  double vos, ios, ib;  // |vos| V, |ios| A, ib A (signed)
+  bool pins() const { return ios != 0 || ib != 0; }
+  std::size_t columns() const { return (vos != 0 ? 1 : 0) + (pins() ? 2 : 0); }
+};
+
+std::vector<OpAmpErrors> opamp_errors(const Circuit& circuit) {
+  std::vector<OpAmpErrors> errors;
   for (std::size_t i = 0; i < circuit.elements.size(); ++i) {
     const auto& e = circuit.elements[i];
     if (e.kind != ElementKind::opamp) continue;
     const auto& m = circuit.model_of(e);
-    if (m.vos != 0) errors.push_back({i, DcErrorKind::vos, std::abs(m.vos)});
-    if (m.ios != 0) errors.push_back({i, DcErrorKind::ios, std::abs(m.ios)});
-    if (m.ib != 0) errors.push_back({i, DcErrorKind::ib, m.ib});
+    const OpAmpErrors amp{i, std::abs(m.vos), std::abs(m.ios), m.ib};
+    if (amp.columns() > 0) errors.push_back(amp);
   }
   return errors;
 }
 
-// The right-hand side of one unit of the error: 1 V of vos, 1 A of s ios, 1 A of ib.
-Vector unit_rhs(const Circuit& circuit, const DcSolver& dc, const DcError& error) {
-  const MnaSystem& mna = dc.mna();
-  const auto& pins = circuit.elements[error.element].nodes;
-  Vector rhs = dc.zero_rhs();
-  switch (error.kind) {
-    case DcErrorKind::vos:
-      rhs[static_cast<std::size_t>(mna.opamp_gain_row(error.element))] = 1.0;
-      break;
-    case DcErrorKind::ios:
-      draw_current(mna, rhs, pins[0], 0.5);
-      draw_current(mna, rhs, pins[1], -0.5);
-      break;
-    case DcErrorKind::ib:
-      draw_current(mna, rhs, pins[0], 1.0);
-      draw_current(mna, rhs, pins[1], 1.0);
-      break;
+// The op amp's right-hand sides into consecutive columns (zeroed) from `rhs`:
+// 1 V of vos, then 1 A drawn from the + pin, then 1 A drawn from the - pin.
+void unit_rhs(const Circuit& circuit, const MnaSystem& mna, const OpAmpErrors& amp, double* rhs) {
+  const auto& pins = circuit.elements[amp.element].nodes;
+  const std::size_t n = static_cast<std::size_t>(mna.size());
+  if (amp.vos != 0) {
+    rhs[mna.opamp_gain_row(amp.element)] = 1.0;
+    rhs += n;
   }
-  return rhs;
+  if (!amp.pins()) return;
+  draw_current(mna, rhs, pins[0], 1.0);
+  draw_current(mna, rhs + n, pins[1], 1.0);
 }
 
-double at_node(const MnaSystem& mna, const Vector& x, int node) {
+double at_node(const MnaSystem& mna, const double* x, int node) {
   const int u = mna.node_unknown(node);
-  return u >= 0 ? x[static_cast<std::size_t>(u)].real() : 0.0;
+  return u >= 0 ? x[u] : 0.0;
 }
 
-bool drives(const Circuit& circuit, int node) {
-  return std::any_of(circuit.elements.begin(), circuit.elements.end(), [&](const Element& e) {
-    return e.kind == ElementKind::opamp && e.nodes[2] == node;
-  });
-}
+// The resistors at every node, and which nodes an op amp drives: looked up
+// by node, so finding where a bias current turns into a voltage costs the
+// pin's few neighbours, not a scan of the circuit.
+class PinNeighbours {
+ public:
+  explicit PinNeighbours(const Circuit& circuit) : start_(circuit.node_count() + 1, 0), driven_(circuit.node_count(), false) {
+    for (const auto& e : circuit.elements) {
+      if (e.kind == ElementKind::opamp) driven_[static_cast<std::size_t>(e.nodes[2])] = true;
+      if (e.kind != ElementKind::resistor) continue;
+      ++start_[static_cast<std::size_t>(e.nodes[0]) + 1];
+      if (e.nodes[1] != e.nodes[0]) ++start_[static_cast<std::size_t>(e.nodes[1]) + 1];
+    }
+    std::partial_sum(start_.begin(), start_.end(), start_.begin());
+    resistors_.resize(start_.back());
+    std::vector<std::size_t> fill(start_.begin(), start_.end() - 1);
+    for (std::size_t i = 0; i < circuit.elements.size(); ++i) {
+      const auto& e = circuit.elements[i];
+      if (e.kind != ElementKind::resistor) continue;
+      resistors_[fill[static_cast<std::size_t>(e.nodes[0])]++] = i;
+      if (e.nodes[1] != e.nodes[0]) resistors_[fill[static_cast<std::size_t>(e.nodes[1])]++] = i;
+    }
+  }
+  bool driven(int node) const { return driven_[static_cast<std::size_t>(node)]; }
+  template <typename Visit>
+  void for_each_resistor(int node, Visit&& visit) const {
+    for (std::size_t k = start_[static_cast<std::size_t>(node)]; k < start_[static_cast<std::size_t>(node) + 1]; ++k)
+      visit(resistors_[k]);
+  }
+
+ private:
+  std::vector<std::size_t> start_;  // per node, into resistors_ (CSR)
+  std::vector<std::size_t> resistors_;
+  std::vector<bool> driven_;
+};
 
 // Where a bias or offset current turns into a voltage: of the resistors on the
 // op amp's input pins, the one with the largest voltage across it in that
 // error's solution `x`. A pin that is an op-amp output (a follower's - input)
 // is left out: that op amp supplies the current, not the resistors on it.
-std::string busiest_resistor(const Circuit& circuit, const MnaSystem& mna, const Vector& x,
-                             const Element& opamp) {
-  std::string name;
+std::string busiest_resistor(const Circuit& circuit, const MnaSystem& mna, const PinNeighbours& pins,
+                             const double* x, const Element& opamp) {
+  const std::string* name = nullptr;
   double largest = 0;
   for (const int pin : {opamp.nodes[0], opamp.nodes[1]}) {
-    if (pin == 0 || drives(circuit, pin)) continue;
-    for (const auto& e : circuit.elements) {
-      if (e.kind != ElementKind::resistor || (e.nodes[0] != pin && e.nodes[1] != pin)) continue;
+    if (pin == 0 || pins.driven(pin)) continue;
+    pins.for_each_resistor(pin, [&](std::size_t i) {
+      const Element& e = circuit.elements[i];
       const double across = std::abs(at_node(mna, x, e.nodes[0]) - at_node(mna, x, e.nodes[1]));
-      if (across > largest) largest = across, name = e.name;
-    }
+      if (across > largest) largest = across, name = &e.name;
+    });
   }
-  return name;
+  return name ? *name : std::string();
 }
 
 void require_finite(const Vector& x, const MnaSystem& mna) {
   for (std::size_t u = 0; u < x.size(); ++u)
-    if (!std::isfinite(x[u].real()))
+    if (!std::isfinite(x[u]))
       throw SolveError::unsolvable_at(
           0, fmt::format("{} is not finite", mna.unknown_name(static_cast<int>(u))));
 }
 
-void keep_largest(std::vector<OffsetContribution>& all) {
-  const auto bigger = [](const OffsetContribution& a, const OffsetContribution& b) {
-    return std::abs(a.volts) > std::abs(b.volts);
-  };
-  std::stable_sort(all.begin(), all.end(), bigger);
-  std::erase_if(all, [](const OffsetContribution& c) { return c.volts == 0; });
-  if (all.size() > kLargestShown) all.resize(kLargestShown);
+// Keeps the kLargestShown largest |volts| as contributions arrive, earlier
+// first among equals; a zero contribution is no contributor.
+void keep_if_large(std::vector<OffsetContribution>& kept, OffsetContribution c) {
+  if (c.volts == 0) return;
+  const auto at = std::find_if(kept.begin(), kept.end(), [&](const OffsetContribution& k) {
+    return std::abs(c.volts) > std::abs(k.volts);
+  });
+  if (at == kept.end() && kept.size() >= kLargestShown) return;
+  kept.insert(at, std::move(c));
+  if (kept.size() > kLargestShown) kept.pop_back();
+}
+
+// A DC error's share that overflows a double says nothing: exit 3 naming it.
+[[noreturn]] void overflowing(const Circuit& circuit, const DcError& error, const std::string& node) {
+  throw SolveError::unsolvable_at(
+      0,
+      fmt::format("the worst-case offset at node '{}' is not finite: {} of '{}' ({}) times its "
+                  "gain overflows a double",
+                  node, to_string(error.kind), circuit.elements[error.element].name,
+                  format_si(error.limit) + (error.kind == DcErrorKind::vos ? "V" : "A")),
+      fmt::format("check the model's {}", to_string(error.kind)));
+}
+
+// The running sums of every node's band, in plain arrays (the node loop is
+// the inner loop of the analysis), and each op amp's output unknown.
+struct Bands {
+  std::vector<double> worst, squares;
+  std::vector<int> outputs;  // per result.opamps entry; -1: gnd
+};
+
+// Folds one error's solution x into every node's band and every op amp's
+// largest contributors.
+void add_error(const Circuit& circuit, const MnaSystem& mna, const PinNeighbours& pins,
+               const DcError& error, const double* x, BiasResult& result, Bands& bands) {
+  if (error.kind != DcErrorKind::ib) {
+    double total = 0;
+    for (std::size_t k = 0; k < bands.worst.size(); ++k) {
+      const double term = std::abs(x[k]) * error.limit;
+      total += term;
+      bands.worst[k] += term;
+      bands.squares[k] += term * term;
+    }
+    if (!std::isfinite(total))  // rare: find the node to name
+      for (std::size_t k = 0; k < bands.worst.size(); ++k)
+        if (!std::isfinite(std::abs(x[k]) * error.limit)) overflowing(circuit, error, result.nodes[k].name);
+  }
+  std::optional<std::string> through;
+  for (std::size_t a = 0; a < result.opamps.size(); ++a) {
+    const int u = bands.outputs[a];
+    const double sensitivity = u >= 0 ? x[u] : 0.0;
+    if (sensitivity == 0) continue;
+    auto& amp = result.opamps[a];
+    const double volts = error.kind == DcErrorKind::ib ? sensitivity * error.limit
+                                                       : std::abs(sensitivity) * error.limit;
+    if (!std::isfinite(volts)) overflowing(circuit, error, amp.out);
+    if (!amp.largest.empty() && amp.largest.size() == kLargestShown &&
+        !(std::abs(volts) > std::abs(amp.largest.back().volts)))
+      continue;  // would not be kept
+    if (!through)
+      through = error.kind == DcErrorKind::vos
+                    ? std::string()
+                    : busiest_resistor(circuit, mna, pins, x, circuit.elements[error.element]);
+    keep_if_large(amp.largest, {circuit.elements[error.element].name, error.kind,
+                                std::abs(sensitivity), volts, *through});
+  }
 }
 
 void check_rails(const Circuit& circuit, OpAmpBias& amp, std::vector<std::string>& warnings) {
@@ -208,10 +298,11 @@ BiasResult run_bias(const Circuit& circuit, const BiasOptions& options) {
   const DcSolver dc(circuit, options.solver);
   const MnaSystem& mna = dc.mna();
   BiasResult result;
-  const Vector x = dc.solve(nominal_rhs(circuit, dc));
+  Vector x = nominal_rhs(circuit, dc);
+  dc.solve(x, 1);
   require_finite(x, mna);
   for (std::size_t node = 1; node < circuit.node_count(); ++node)
-    result.nodes.push_back({circuit.node_names[node], at_node(mna, x, static_cast<int>(node)), 0, 0});
+    result.nodes.push_back({circuit.node_names[node], at_node(mna, x.data(), static_cast<int>(node)), 0, 0});
   for (std::size_t i = 0; i < circuit.elements.size(); ++i) {
     const auto& e = circuit.elements[i];
     if (e.kind != ElementKind::opamp) continue;
@@ -219,37 +310,55 @@ BiasResult run_bias(const Circuit& circuit, const BiasOptions& options) {
     amp.name = e.name;
     amp.element = i;
     amp.out = circuit.node_names[static_cast<std::size_t>(e.nodes[2])];
-    amp.nominal = at_node(mna, x, e.nodes[2]);
+    amp.nominal = at_node(mna, x.data(), e.nodes[2]);
     result.opamps.push_back(amp);
   }
 
-  std::vector<double> squares(result.nodes.size(), 0.0);
-  for (const DcError& error : dc_errors(circuit)) {
-    const Vector s = dc.solve(unit_rhs(circuit, dc, error));
-    require_finite(s, mna);
-    const std::string through =
-        error.kind == DcErrorKind::vos ? std::string() : busiest_resistor(circuit, mna, s, circuit.elements[error.element]);
-    if (error.kind != DcErrorKind::ib)
-      for (std::size_t k = 0; k < result.nodes.size(); ++k) {
-        const double term = std::abs(s[k].real()) * error.limit;
-        result.nodes[k].worst += term;
-        squares[k] += term * term;
+  // The DC errors in blocks of right-hand sides on the one factorisation,
+  // whole op amps at a time.
+  const PinNeighbours pins(circuit);
+  const std::vector<OpAmpErrors> amps = opamp_errors(circuit);
+  Bands bands{std::vector<double>(result.nodes.size(), 0.0), std::vector<double>(result.nodes.size(), 0.0), {}};
+  for (const auto& amp : result.opamps)
+    bands.outputs.push_back(mna.node_unknown(circuit.elements[amp.element].nodes[2]));
+  const std::size_t n = dc.size();
+  Vector block(n * kBlock), combined(n);
+  auto column = [&](std::size_t c) { return &block[c * n]; };
+  for (std::size_t first = 0, last = 0; first < amps.size(); first = last) {
+    std::size_t columns = 0;
+    while (last < amps.size() && columns + amps[last].columns() <= kBlock) columns += amps[last++].columns();
+    std::fill(block.begin(), block.begin() + static_cast<std::ptrdiff_t>(columns * n), 0.0);
+    for (std::size_t k = first, c = 0; k < last; c += amps[k++].columns()) unit_rhs(circuit, mna, amps[k], column(c));
+    dc.solve(block, static_cast<int>(columns));
+    if (!std::all_of(block.begin(), block.begin() + static_cast<std::ptrdiff_t>(columns * n),
+                     [](double v) { return std::isfinite(v); }))
+      for (std::size_t c = 0; c < columns; ++c) require_finite(Vector(column(c), column(c) + n), mna);
+    for (std::size_t k = first, c = 0; k < last; ++k) {
+      const OpAmpErrors& amp = amps[k];
+      if (amp.vos != 0) add_error(circuit, mna, pins, {amp.element, DcErrorKind::vos, amp.vos}, column(c++), result, bands);
+      if (!amp.pins()) continue;
+      const double* plus = column(c);
+      const double* minus = column(c + 1);
+      c += 2;
+      if (amp.ios != 0) {
+        for (std::size_t u = 0; u < n; ++u) combined[u] = 0.5 * (plus[u] - minus[u]);
+        add_error(circuit, mna, pins, {amp.element, DcErrorKind::ios, amp.ios}, combined.data(), result, bands);
       }
-    for (auto& amp : result.opamps) {
-      const double sensitivity = at_node(mna, s, circuit.elements[amp.element].nodes[2]);
-      const double volts = error.kind == DcErrorKind::ib ? sensitivity * error.limit
-                                                         : std::abs(sensitivity) * error.limit;
-      amp.largest.push_back(
-          {circuit.elements[error.element].name, error.kind, std::abs(sensitivity), volts, through});
+      if (amp.ib != 0) {
+        for (std::size_t u = 0; u < n; ++u) combined[u] = plus[u] + minus[u];
+        add_error(circuit, mna, pins, {amp.element, DcErrorKind::ib, amp.ib}, combined.data(), result, bands);
+      }
     }
   }
-  for (std::size_t k = 0; k < result.nodes.size(); ++k) result.nodes[k].rss = std::sqrt(squares[k]);
+  for (std::size_t k = 0; k < result.nodes.size(); ++k) {
+    result.nodes[k].worst = bands.worst[k];
+    result.nodes[k].rss = std::sqrt(bands.squares[k]);
+  }
 
   for (auto& amp : result.opamps) {
     const double worst = result.node(circuit.elements[amp.element].nodes[2]).worst;
     amp.low = amp.nominal - worst;
     amp.high = amp.nominal + worst;
-    keep_largest(amp.largest);
     check_rails(circuit, amp, result.warnings);
   }
   return result;

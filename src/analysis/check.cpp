@@ -6,6 +6,7 @@
 #include <memory>
 
 #include <fmt/format.h>
+#include <fmt/ranges.h>
 
 #include "tacet/common/errors.hpp"
 #include "tacet/common/format.hpp"
@@ -18,6 +19,29 @@
 
 namespace tacet {
 
+int CheckResult::unsolved() const {
+  return static_cast<int>(std::count_if(specs.begin(), specs.end(), [](const SpecResult& r) { return !r.unsolved.empty(); }));
+}
+
+SolveError CheckResult::unsolved_error() const {
+  std::vector<std::string> names;
+  const SpecResult* first = nullptr;
+  for (const auto& r : specs) {
+    if (r.unsolved.empty()) continue;
+    names.push_back("'" + r.spec.name + "'");
+    if (!first) first = &r;
+  }
+  // "circuit cannot be solved at DC: X" -> "spec 'dc' at DC: X"; "...: X" -> "spec 'g': X".
+  constexpr std::string_view kPrefix = "circuit cannot be solved";
+  std::string rest = first ? first->unsolved : std::string();
+  if (rest.rfind(kPrefix, 0) == 0) rest.erase(0, kPrefix.size());
+  if (!rest.empty() && rest.front() == ' ') rest.erase(0, 1);
+  const std::string who =
+      fmt::format("spec{} {}", names.size() == 1 ? "" : "s", fmt::join(names, ", "));
+  return SolveError::unsolvable(who + (rest.empty() || rest.front() == ':' ? "" : " ") + rest,
+                                first ? first->unsolved_hint : std::string());
+}
+
 int CheckResult::failed() const {
   return static_cast<int>(std::count_if(specs.begin(), specs.end(), [](const SpecResult& r) { return !r.pass; }));
 }
@@ -29,16 +53,43 @@ double window_margin(double value, std::optional<double> min, std::optional<doub
   return margin;
 }
 
+double phase_in_window(double degrees, std::optional<double> min, std::optional<double> max) {
+  if (!min && !max) return degrees;
+  const double target = min && max ? (*min + *max) / 2 : min ? *min : *max;
+  return degrees + 360 * std::round((target - degrees) / 360);
+}
+
 namespace {
 
 class SpecMeter {
  public:
-  explicit SpecMeter(const Circuit& circuit) : circuit_(circuit) {}
+  SpecMeter(const Circuit& circuit, const SharedAnalyses& shared)
+      : circuit_(circuit), bias_error_(shared.bias_error), shared_response_(shared.response),
+        shared_bias_(shared.bias) {}
 
   SpecResult measure(const Spec& spec) {
-    SpecResult r{spec, std::nullopt, 0, false, 0, {}};
+    SpecResult r{spec, std::nullopt, 0, false, 0, {}, {}, {}};
     if (!spec.probe.empty()) probe_ = resolve_probe(spec.probe, circuit_);
-    switch (spec.kind) {
+    try {
+      measure_kind(r);
+    } catch (const SolveError& e) {
+      // This spec's analysis cannot run; the others are still measured.
+      r = SpecResult{spec, std::nullopt, 0, false, 0, e.sentence(), e.sentence(), e.hint()};
+    }
+    if (r.value && !std::isfinite(*r.value)) {  // never a number that is not one
+      r.value.reset();
+      r.note = "the measured value is not finite: the circuit's values overflow a double";
+    }
+    if (r.value) {
+      r.margin = window_margin(*r.value, spec.min, spec.max);
+      r.pass = r.margin >= 0;
+    }
+    return r;
+  }
+
+ private:
+  void measure_kind(SpecResult& r) {
+    switch (r.spec.kind) {
       case SpecKind::gain: gain(r); break;
       case SpecKind::phase: phase(r); break;
       case SpecKind::flatness: flatness(r); break;
@@ -49,15 +100,11 @@ class SpecMeter {
       case SpecKind::offset: offset(r); break;
       case SpecKind::rails: rails(r); break;
     }
-    if (r.value) {
-      r.margin = window_margin(*r.value, spec.min, spec.max);
-      r.pass = r.margin >= 0;
-    }
-    return r;
   }
 
- private:
+  // One FrequencyResponse for every AC, noise and headroom spec.
   FrequencyResponse& response() {
+    if (shared_response_) return *shared_response_;
     if (!response_) response_ = std::make_unique<FrequencyResponse>(circuit_);
     return *response_;
   }
@@ -71,8 +118,11 @@ class SpecMeter {
   }
 
   void phase(SpecResult& r) {
-    r.value = to_degrees(h(r.spec.at));
+    const double measured = to_degrees(h(r.spec.at));
+    r.value = phase_in_window(measured, r.spec.min, r.spec.max);
     r.where = r.spec.at;
+    if (*r.value != measured)
+      r.note = fmt::format("measured {:.2f} deg, the same angle as {:.2f} deg", measured, *r.value);
   }
 
   /// Largest |dB(H(f)) - dB(H(ref))| over the band: grid, then a golden-section
@@ -132,25 +182,51 @@ class SpecMeter {
       options.input = s.input;
       options.level = s.level;
     }
-    const NoiseResult n = run_noise(circuit_, options);
+    const NoiseResult n = run_noise(circuit_, options, response());
     if (s.kind == SpecKind::noise) {
       r.value = n.total_rms;
-      if (!n.contributors.empty())
-        r.note = fmt::format("largest: {} {} {:.0f}%", n.contributors[0].source,
-                             to_string(n.contributors[0].mechanism), 100 * n.contributors[0].share);
+      r.note = n.total_rms > 0 ? fmt::format("largest: {} {} {:.0f}%", n.contributors[0].source,
+                                             to_string(n.contributors[0].mechanism),
+                                             100 * n.contributors[0].share)
+                               : "no noise reaches the probe";
     } else if (n.signal) {
-      r.value = n.signal->ratio_db;
-      r.note = fmt::format("signal {}V rms, noise {}V rms", format_si(n.signal->signal_rms), format_si(n.total_rms));
+      snr(r, *n.signal, n.total_rms);
     }
   }
 
+  /// A ratio in dB; without noise it is unbounded (and meets any minimum),
+  /// without signal there is none.
+  void snr(SpecResult& r, const SignalToNoise& signal, double noise_rms) {
+    if (std::isfinite(signal.ratio_db)) {
+      r.value = signal.ratio_db;
+      r.note = fmt::format("signal {}V rms, noise {}V rms", format_si(signal.signal_rms),
+                           format_si(noise_rms));
+    } else if (signal.signal_rms == 0) {
+      r.note = fmt::format("the signal from '{}' does not reach the probe at {}Hz", r.spec.input,
+                           format_si(signal.reference));
+    } else {
+      r.pass = !r.spec.max.has_value();
+      r.note = "no noise reaches the probe: the ratio is unbounded";
+    }
+  }
+
+  // One DC analysis for every spec; when it cannot run, every spec that needs
+  // it gets the same reason without running it again.
   const BiasResult& bias() {
-    if (!bias_) bias_ = std::make_unique<BiasResult>(run_bias(circuit_));
+    if (bias_error_) throw *bias_error_;
+    if (shared_bias_) return *shared_bias_;
+    try {
+      if (!bias_) bias_ = std::make_unique<BiasResult>(run_bias(circuit_));
+    } catch (const SolveError& e) {
+      bias_error_ = e;
+      throw;
+    }
     return *bias_;
   }
 
   const HeadroomResult& headroom() {
-    if (!headroom_) headroom_ = std::make_unique<HeadroomResult>(run_headroom(circuit_, bias()));
+    if (!headroom_)
+      headroom_ = std::make_unique<HeadroomResult>(run_headroom(circuit_, bias(), {}, response()));
     return *headroom_;
   }
 
@@ -192,16 +268,21 @@ class SpecMeter {
 
   const Circuit& circuit_;
   std::unique_ptr<BiasResult> bias_;
+  std::optional<SolveError> bias_error_;  ///< why the DC analysis cannot run; empty: it can (or not tried)
   std::unique_ptr<HeadroomResult> headroom_;
   std::unique_ptr<FrequencyResponse> response_;
+  FrequencyResponse* shared_response_;
+  const BiasResult* shared_bias_;
   Probe probe_;  ///< the probe of the spec being measured
 };
 
 }  // namespace
 
-CheckResult run_check(const Circuit& circuit) {
+CheckResult run_check(const Circuit& circuit) { return run_check(circuit, SharedAnalyses{}); }
+
+CheckResult run_check(const Circuit& circuit, const SharedAnalyses& shared) {
   CheckResult result;
-  SpecMeter meter(circuit);
+  SpecMeter meter(circuit, shared);
   for (const auto& spec : circuit.specs) result.specs.push_back(meter.measure(spec));
   return result;
 }

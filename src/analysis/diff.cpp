@@ -3,11 +3,14 @@
 #include <algorithm>
 #include <cmath>
 #include <map>
+#include <memory>
+#include <optional>
 #include <set>
 
 #include <fmt/format.h>
 
 #include "tacet/analysis/bias.hpp"
+#include "tacet/solve/response.hpp"
 #include "tacet/common/errors.hpp"
 #include "tacet/common/format.hpp"
 #include "tacet/circuit/circuit_text.hpp"
@@ -80,7 +83,7 @@ const AcTrace* find_trace(const AcResult& r, const std::string& probe) {
   return nullptr;
 }
 
-AcResult response_of(const Circuit& circuit, const AcOptions& options, const char* side) {
+void check_probes(const Circuit& circuit, const AcOptions& options, const char* side) {
   for (const auto& probe : options.probes) {
     try {
       resolve_probe(probe, circuit);
@@ -88,8 +91,31 @@ AcResult response_of(const Circuit& circuit, const AcOptions& options, const cha
       throw e.on_side(std::string(side) + " revision");
     }
   }
-  return run_ac(circuit, options);
 }
+
+// One side's analyses, each run once and shared by every section of the diff:
+// one MNA system with its factorisation, one DC analysis.
+struct Side {
+  const Circuit& circuit;
+  std::unique_ptr<FrequencyResponse> response;
+  std::optional<BiasResult> bias;
+  std::optional<SolveError> bias_error;  // why there is no DC point
+
+  explicit Side(const Circuit& c) : circuit(c) {}
+  FrequencyResponse& ac() {
+    if (!response) response = std::make_unique<FrequencyResponse>(circuit);
+    return *response;
+  }
+  // An AC-coupled circuit without DC paths has no DC point to compare.
+  void run_dc() {
+    try {
+      bias = run_bias(circuit);
+    } catch (const SolveError& e) {
+      bias_error = e;
+    }
+  }
+  SharedAnalyses shared() { return {response.get(), bias ? &*bias : nullptr, bias_error}; }
+};
 
 bool moved(const SpecResult& a, const SpecResult& b) {
   if (a.pass != b.pass || a.value.has_value() != b.value.has_value()) return true;
@@ -98,14 +124,14 @@ bool moved(const SpecResult& a, const SpecResult& b) {
   return std::abs(*a.value - *b.value) > 1e-9 * scale;
 }
 
-NoiseChange noise_change(const Circuit& old_c, const Circuit& new_c, const std::string& probe, const Band& band) {
+NoiseChange noise_change(Side& old_side, Side& new_side, const std::string& probe, const Band& band) {
   NoiseOptions options;
   options.sweep.kind = SweepKind::list;
   options.sweep.at = {band.from, band.to};
   options.probe = probe;
   options.band = band;
-  const NoiseResult before = run_noise(old_c, options);
-  const NoiseResult after = run_noise(new_c, options);
+  const NoiseResult before = run_noise(old_side.circuit, options, old_side.ac());
+  const NoiseResult after = run_noise(new_side.circuit, options, new_side.ac());
   NoiseChange change{probe, before.total_rms, after.total_rms, {}};
   auto rms_of = [](const NoiseResult& r, const NoiseContributor& c) {
     for (const auto& x : r.contributors)
@@ -188,9 +214,12 @@ DiffResult run_diff(const Circuit& old_circuit, const Circuit& new_circuit, cons
   result.circuit = diff_circuits(old_circuit, new_circuit);
   AcOptions ac = options.ac;
   if (ac.probes.empty()) ac.probes = spec_probes(old_circuit, new_circuit);
+  Side old_side(old_circuit), new_side(new_circuit);
   if (!ac.probes.empty()) {
-    result.old_response = response_of(old_circuit, ac, "old");
-    result.new_response = response_of(new_circuit, ac, "new");
+    check_probes(old_circuit, ac, "old");
+    check_probes(new_circuit, ac, "new");
+    result.old_response = run_ac(old_circuit, ac, old_side.ac());
+    result.new_response = run_ac(new_circuit, ac, new_side.ac());
   }
   for (const auto& new_trace : result.new_response.traces) {
     const AcTrace* old_trace = find_trace(result.old_response, new_trace.probe.text);
@@ -207,16 +236,15 @@ DiffResult run_diff(const Circuit& old_circuit, const Circuit& new_circuit, cons
   if (options.band)
     for (const auto& trace : result.new_response.traces)
       if (trace.probe.kind == ProbeKind::voltage)
-        result.noise.push_back(noise_change(old_circuit, new_circuit, trace.probe.text, *options.band));
-  try {
-    result.dc = dc_changes(run_bias(old_circuit), run_bias(new_circuit));
-  } catch (const SolveError& e) {
-    // An AC-coupled circuit without DC paths has no DC point to compare.
-    result.dc_note = e.sentence();
-  }
+        result.noise.push_back(noise_change(old_side, new_side, trace.probe.text, *options.band));
+  old_side.run_dc();
+  new_side.run_dc();
+  if (old_side.bias && new_side.bias) result.dc = dc_changes(*old_side.bias, *new_side.bias);
+  const auto& dc_error = old_side.bias ? new_side.bias_error : old_side.bias_error;
+  if (dc_error) result.dc_note = dc_error->sentence();
   if (!old_circuit.specs.empty() || !new_circuit.specs.empty()) {
-    const CheckResult before = run_check(old_circuit);
-    const CheckResult after = run_check(new_circuit);
+    const CheckResult before = run_check(old_circuit, old_side.shared());
+    const CheckResult after = run_check(new_circuit, new_side.shared());
     std::map<std::string, const SpecResult*> old_by_name;
     for (const auto& r : before.specs) old_by_name[r.spec.name] = &r;
     std::set<std::string> seen;

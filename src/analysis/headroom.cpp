@@ -11,6 +11,8 @@
 #include <algorithm>
 #include <cmath>
 #include <complex>
+#include <functional>
+#include <memory>
 
 #include "tacet/analysis/ac.hpp"
 #include "tacet/common/errors.hpp"
@@ -170,8 +172,10 @@ std::string HeadroomOptions::validate() const {
   return Band{band_low, band_high}.validate();
 }
 
-HeadroomResult run_headroom(const Circuit& circuit, const BiasResult& bias,
-                            const HeadroomOptions& options) {
+// The analysis; `response` gives the FrequencyResponse when the sweep needs one.
+static HeadroomResult headroom_of(const Circuit& circuit, const BiasResult& bias,
+                           const HeadroomOptions& options,
+                           const std::function<FrequencyResponse&()>& response_of) {
   if (auto problem = options.validate(); !problem.empty())
     throw InputError::usage(problem);
   HeadroomResult result;
@@ -197,7 +201,7 @@ HeadroomResult run_headroom(const Circuit& circuit, const BiasResult& bias,
 
   Sweep grid;
   grid.from = band.from, grid.to = band.to, grid.per_decade = options.per_decade;
-  FrequencyResponse response(circuit, options.solver);
+  FrequencyResponse& response = response_of();
   const MnaSystem& mna = response.mna();
   Vector x(static_cast<std::size_t>(mna.size()));
   std::vector<double> peaks(circuit.node_count());
@@ -216,6 +220,20 @@ HeadroomResult run_headroom(const Circuit& circuit, const BiasResult& bias,
   }
   for (const auto& amp : result.opamps) warn(amp, result.warnings);
   return result;
+}
+
+HeadroomResult run_headroom(const Circuit& circuit, const BiasResult& bias,
+                            const HeadroomOptions& options) {
+  std::unique_ptr<FrequencyResponse> response;  // only when some source declares a level
+  return headroom_of(circuit, bias, options, [&]() -> FrequencyResponse& {
+    if (!response) response = std::make_unique<FrequencyResponse>(circuit, options.solver);
+    return *response;
+  });
+}
+
+HeadroomResult run_headroom(const Circuit& circuit, const BiasResult& bias,
+                            const HeadroomOptions& options, FrequencyResponse& response) {
+  return headroom_of(circuit, bias, options, [&]() -> FrequencyResponse& { return response; });
 }
 
 }  // namespace tacet

@@ -9,6 +9,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <limits>
 
 #include "tacet/common/spelling.hpp"
 #include "tacet/common/errors.hpp"
@@ -29,6 +30,9 @@ struct NoiseSource {
   int plus = -1, minus = -1;
   double white = 0;   // white power density, A^2/Hz or V^2/Hz
   double corner = 0;  // 1/f corner, Hz
+  // The part of the source that reaches the probe without the network: a
+  // current probe on a resistor reads that resistor's own noise current too.
+  double direct = 0;
   double power(double f) const { return white * (1 + corner / f); }
 };
 
@@ -39,11 +43,26 @@ std::complex<double> transfer(const std::vector<std::complex<double>>& y, int pl
   return h;
 }
 
+// The source's transfer to the probe: through the network, plus its direct part.
+std::complex<double> transfer(const std::vector<std::complex<double>>& y, const NoiseSource& source) {
+  return transfer(y, source.plus, source.minus) + source.direct;
+}
+
+// i(R) is the current from R's first node through R to its second, i.e. the
+// conductance current plus the parallel noise current; the noise source pushes
+// its current into the first node, so it enters i(R) with the sign -1.
+double direct_coupling(const Probe& probe, std::size_t element, NoiseMechanism mechanism) {
+  const bool own = probe.kind == ProbeKind::current && probe.element == element;
+  return own && mechanism == NoiseMechanism::thermal ? -1.0 : 0.0;
+}
+
 std::vector<NoiseSource> noise_sources(const Circuit& circuit, const MnaSystem& mna,
-                                       double kelvin) {
+                                       const Probe& probe, double kelvin) {
   std::vector<NoiseSource> sources;
   auto add = [&](std::size_t i, NoiseMechanism m, int plus, int minus, double white, double corner) {
-    if (white > 0 && (plus >= 0 || minus >= 0)) sources.push_back({i, m, plus, minus, white, corner});
+    const double direct = direct_coupling(probe, i, m);
+    if (white > 0 && (plus >= 0 || minus >= 0 || direct != 0))
+      sources.push_back({i, m, plus, minus, white, corner, direct});
   };
   for (std::size_t i = 0; i < circuit.elements.size(); ++i) {
     const Element& e = circuit.elements[i];
@@ -114,6 +133,39 @@ Band integration_band(const NoiseOptions& options) {
   return {*low, *high};
 }
 
+// The power at the probe must be finite: a source or a transfer that
+// overflows leaves nothing finite to say (exit 3), never a printed inf.
+void require_finite_power(double power, double f, const Probe& probe) {
+  if (std::isfinite(power)) return;
+  throw SolveError::unsolvable_at(
+      f, fmt::format("the noise at probe '{}' is not finite: the circuit's values overflow a double",
+                     probe.text));
+}
+
+// Every source's density where it is largest in the analysis (its 1/f part
+// grows downward) must be a number, or no figure can be.
+void require_finite_sources(const Circuit& circuit, const std::vector<NoiseSource>& sources,
+                            double lowest) {
+  for (const NoiseSource& source : sources) {
+    if (std::isfinite(source.power(lowest))) continue;
+    const std::string& name = circuit.elements[source.element].name;
+    throw SolveError::unsolvable_at(
+        lowest,
+        fmt::format("the {} noise of '{}' is not finite: its density overflows a double",
+                    to_string(source.mechanism), name),
+        fmt::format("check the values that set it ({})",
+                    source.mechanism == NoiseMechanism::thermal ? "the resistance"
+                    : source.mechanism == NoiseMechanism::en    ? "the model's en and fce"
+                                                                : "the model's in and fci"));
+  }
+}
+
+// Output power over |G|^2: none when there is no noise to refer, infinite
+// where the input does not reach the probe.
+double input_referred_power(double output_power, std::complex<double> gain) {
+  return output_power == 0 ? 0.0 : output_power / std::norm(gain);
+}
+
 // Sweep points: the density, the densities of the `largest` sources, and with
 // an input the gain and the input-referred density.
 void fill_points(NoiseResult& result, AdjointSolver& adjoint, const Circuit& circuit,
@@ -127,17 +179,26 @@ void fill_points(NoiseResult& result, AdjointSolver& adjoint, const Circuit& cir
     const auto& y = adjoint.solve(f);
     double power = 0;
     for (std::size_t i = 0; i < sources.size(); ++i) {
-      part[i] = std::norm(transfer(y, sources[i].plus, sources[i].minus)) * sources[i].power(f);
+      part[i] = std::norm(transfer(y, sources[i])) * sources[i].power(f);
       power += part[i];
     }
+    require_finite_power(power, f, result.probe);
     for (std::size_t j = 0; j < largest.size(); ++j)
       result.contributor_density[j].density.push_back(std::sqrt(part[largest[j]]));
     result.density.push_back(std::sqrt(power));
     if (!input) continue;
     const auto g = transfer(y, input->plus, input->minus);
     result.gain.push_back(g);
-    result.input_density.push_back(std::sqrt(power) / std::abs(g));
+    result.input_density.push_back(power == 0 ? 0.0 : std::sqrt(power) / std::abs(g));
   }
+}
+
+// The statement for an input that does not reach the probe somewhere in the band.
+std::string unreached_note(const NoiseResult& result, double f) {
+  return fmt::format("the input '{}' does not reach the probe '{}' at {}Hz (between {}Hz and "
+                     "{}Hz): the input-referred noise is unbounded",
+                     result.input, result.probe.text, format_si(f), format_si(result.band.from),
+                     format_si(result.band.to));
 }
 
 // The band integral; components: total power, [input-referred power], each
@@ -146,6 +207,10 @@ std::vector<std::size_t> integrate_contributors(NoiseResult& result, AdjointSolv
                                                 const Circuit& circuit,
                                                 const std::vector<NoiseSource>& sources,
                                                 const InputPort* input) {
+  if (sources.empty()) {  // nothing makes noise: 0 V, and 0 referred to any input
+    if (input) result.input_referred_rms = 0.0;
+    return {};
+  }
   const std::size_t first = input ? 2 : 1;
   const auto integral = integrate_band(
       result.band.from, result.band.to, first + sources.size(), first,
@@ -154,15 +219,21 @@ std::vector<std::size_t> integrate_contributors(NoiseResult& result, AdjointSolv
         out[0] = 0;
         for (std::size_t i = 0; i < sources.size(); ++i) {
           const auto& source = sources[i];
-          out[first + i] = std::norm(transfer(y, source.plus, source.minus)) * source.power(f);
+          out[first + i] = std::norm(transfer(y, source)) * source.power(f);
           out[0] += out[first + i];
         }
-        if (input) out[1] = out[0] / std::norm(transfer(y, input->plus, input->minus));
+        require_finite_power(out[0], f, result.probe);
+        if (input) out[1] = input_referred_power(out[0], transfer(y, input->plus, input->minus));
       });
   result.band_evaluations = integral.evaluations;
+  if (!integral.converged)
+    result.notes.push_back(
+        "the band integral did not reach its tolerance (1e-8): the totals are approximate");
   const double total = integral.values[0];
   result.total_rms = std::sqrt(total);
-  if (input) result.input_referred_rms = std::sqrt(integral.values[1]);
+  if (input && integral.non_finite_at[1] == 0) result.input_referred_rms = std::sqrt(integral.values[1]);
+  if (input && integral.non_finite_at[1] != 0)
+    result.notes.push_back(unreached_note(result, integral.non_finite_at[1]));
   std::vector<std::size_t> order(sources.size());
   for (std::size_t i = 0; i < order.size(); ++i) order[i] = i;
   std::stable_sort(order.begin(), order.end(), [&](std::size_t a, std::size_t b) {
@@ -183,7 +254,10 @@ SignalToNoise signal_to_noise(const NoiseResult& result, const NoiseOptions& opt
   snr.level = *options.level;
   snr.reference = options.reference.value_or(std::sqrt(result.band.from * result.band.to));
   snr.signal_rms = snr.level * std::abs(transfer(adjoint.solve(snr.reference), input.plus, input.minus));
-  snr.ratio_db = 20 * std::log10(snr.signal_rms / result.total_rms);
+  // Without noise the ratio is unbounded, without signal it is none: neither is a number.
+  snr.ratio_db = snr.signal_rms > 0 && result.total_rms > 0
+                     ? 20 * std::log10(snr.signal_rms / result.total_rms)
+                     : std::numeric_limits<double>::quiet_NaN();
   return snr;
 }
 
@@ -225,6 +299,14 @@ std::string NoiseOptions::validate() const {
 
 NoiseResult run_noise(const Circuit& circuit, const NoiseOptions& options) {
   if (auto problem = options.validate(); !problem.empty()) throw InputError::usage(problem);
+  resolve_probe(options.probe, circuit);
+  FrequencyResponse response(circuit, options.solver);
+  return run_noise(circuit, options, response);
+}
+
+NoiseResult run_noise(const Circuit& circuit, const NoiseOptions& options,
+                      FrequencyResponse& response) {
+  if (auto problem = options.validate(); !problem.empty()) throw InputError::usage(problem);
   NoiseResult result;
   result.probe = resolve_probe(options.probe, circuit);
   result.input = options.input;
@@ -232,7 +314,6 @@ NoiseResult run_noise(const Circuit& circuit, const NoiseOptions& options) {
   result.temperature_kelvin = circuit.ambient_celsius + kZeroCelsius;
   result.frequencies = options.sweep.frequencies();
 
-  FrequencyResponse response(circuit, options.solver);
   const MnaSystem& mna = response.mna();
   std::optional<InputPort> input;
   if (!options.input.empty()) {
@@ -240,7 +321,9 @@ NoiseResult run_noise(const Circuit& circuit, const NoiseOptions& options) {
     const auto& source = circuit.elements[*circuit.find_element(options.input)];
     result.input_unit = traits(source.kind).drive == Drive::current ? "A" : "V";
   }
-  const auto sources = noise_sources(circuit, mna, result.temperature_kelvin);
+  const auto sources = noise_sources(circuit, mna, result.probe, result.temperature_kelvin);
+  const auto lowest = std::min_element(result.frequencies.begin(), result.frequencies.end());
+  require_finite_sources(circuit, sources, std::min(result.band.from, *lowest));
   AdjointSolver adjoint(response, result.probe);
   const InputPort* port = input ? &*input : nullptr;
   std::vector<std::size_t> largest = integrate_contributors(result, adjoint, circuit, sources, port);

@@ -1,5 +1,5 @@
 // tacet check: parse, elaborate, run what the specs need, write the verdict,
-// and exit 1 when any spec fails.
+// and exit 1 when any spec fails, 3 when some spec could not be measured.
 
 #include <memory>
 
@@ -25,6 +25,8 @@ void setup_check(CLI::App& app) {
                 "write for example: spec gain_1k gain (out) at=1kHz min=19.9dB max=20.1dB");
           return run_check(circuit);
         });
+    // A spec that could not be measured is worse news than one that failed.
+    if (result.unsolved() > 0) throw result.unsolved_error();
     if (result.failed() > 0) throw SpecFailed();
   });
 }

@@ -58,6 +58,15 @@ bool written_in_db(const ast::Expr& expr) {
   return q && q->suffix == "dB";
 }
 
+/// The limit of a gain spec written as a ratio that lies below 0, if any: a
+/// ratio limit bounds |H|, a magnitude, so it can never be met.
+const char* negative_ratio_limit(const Spec& spec) {
+  if (spec.unit != SpecUnit::ratio) return nullptr;
+  if (spec.min && *spec.min < 0) return "min";
+  if (spec.max && *spec.max < 0) return "max";
+  return nullptr;
+}
+
 }  // namespace
 
 std::optional<std::string> Elaborator::spec_probe(const ast::Spec& spec, int file,
@@ -157,6 +166,14 @@ bool Elaborator::read_gain_limits(Spec& spec, const ast::Spec& ast_spec, const S
   spec.unit = db ? SpecUnit::db : SpecUnit::ratio;
   spec.min = spec_number(given, "min", db ? Dimension::decibel : Dimension::gain, ok);
   spec.max = spec_number(given, "max", db ? Dimension::decibel : Dimension::gain, ok);
+  if (const char* key = negative_ratio_limit(spec)) {
+    const KeyValue& limit = given.at(key);
+    error(limit.file, extent(*limit.value),
+          fmt::format("a gain spec's {}= as a ratio bounds |H|, which is never below 0", key),
+          "for an inversion add a phase spec (180deg); for a level below the reference write dB, "
+          "min=-20dB");
+    return false;
+  }
   return true;
 }
 

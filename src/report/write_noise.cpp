@@ -22,7 +22,7 @@ const char* unit_of(const NoiseResult& r) { return probe_unit(r.probe); }
 
 // 6.225e-7, "V" -> "622.5 nV"; unit "" -> "622.5n" (for columns whose header has the unit).
 std::string si_cell(double v, const std::string& unit) {
-  if (!std::isfinite(v)) return "inf";
+  if (!std::isfinite(v)) return v > 0 ? "unbounded" : "-";
   const std::string text = format_si(v, 4);
   if (unit.empty()) return text;
   const auto prefix = text.find_first_not_of("0123456789.-+");
@@ -30,51 +30,68 @@ std::string si_cell(double v, const std::string& unit) {
                                      : text.substr(0, prefix) + " " + text.substr(prefix) + unit;
 }
 
+// A magnitude of 0 has no dB figure: "none" (a gain that does not reach the probe).
 std::string db_cell(double rms) {
+  if (rms == 0) return "none";
   const double db = 20 * std::log10(rms);
-  return std::isfinite(db) ? fmt::format("{:.1f}", db) : std::string("-inf");
+  return std::isfinite(db) ? fmt::format("{:.1f}", db) : std::string("-");
 }
 
+// No dB figure for 0: it has none.
 std::string total_line(const char* what, double rms, const std::string& unit) {
+  if (rms == 0) return fmt::format("{:<18}0 {} rms\n", what, unit);
   return fmt::format("{:<18}{} rms  ({} dB re 1 {} rms)\n", what, si_cell(rms, unit),
                      db_cell(rms), unit);
+}
+
+std::string snr_text(const SignalToNoise& s) {
+  if (std::isfinite(s.ratio_db)) return fmt::format("{:.1f} dB", s.ratio_db);
+  if (s.signal_rms == 0) return "none: the signal does not reach the probe";
+  return "unbounded: no noise reaches the probe";
 }
 
 std::string totals(const NoiseResult& r) {
   std::string out = total_line("output noise", r.total_rms, unit_of(r));
   if (r.input_referred_rms)
     out += total_line("input-referred", *r.input_referred_rms, r.input_unit);
+  else if (!r.input.empty())
+    out += fmt::format("{:<18}unbounded\n", "input-referred");
+  for (const auto& note : r.notes) out += "note: " + note + "\n";
   if (r.signal) {
     out += fmt::format("{:<18}{} rms  ({} rms at {} x gain at {} Hz)\n", "signal at probe",
                        si_cell(r.signal->signal_rms, unit_of(r)),
                        si_cell(r.signal->level, r.input_unit), r.input,
                        format_si(r.signal->reference));
-    out += fmt::format("{:<18}{} dB\n", "signal-to-noise",
-                       std::isfinite(r.signal->ratio_db) ? fmt::format("{:.1f}", r.signal->ratio_db)
-                                                         : std::string("inf"));
+    out += fmt::format("{:<18}{}\n", "signal-to-noise", snr_text(*r.signal));
   }
   return out;
 }
 
 std::string percent(double share) { return fmt::format("{:.2f} %", 100 * share); }
 
+// A share of no noise is no share.
+std::string share_cell(const NoiseResult& r, double share) {
+  return r.total_rms > 0 ? percent(share) : std::string("-");
+}
+
 std::string contributor_rows(const NoiseResult& r, std::size_t top) {
   if (r.contributors.empty()) return "no noise sources (every part is noiseless)\n";
   Table table({"source", "mechanism", "rms", "share"}, Table::Align::left);
   for (std::size_t k = 0; k < r.contributors.size() && k < top; ++k) {
     const auto& c = r.contributors[k];
-    table.add({c.source, to_string(c.mechanism), si_cell(c.rms, unit_of(r)), percent(c.share)});
+    table.add({c.source, to_string(c.mechanism), si_cell(c.rms, unit_of(r)), share_cell(r, c.share)});
   }
   std::string out = table.render();
   if (r.contributors.size() > top) {
     double rest = 0;
     for (std::size_t k = top; k < r.contributors.size(); ++k) rest += r.contributors[k].share;
-    out += fmt::format("and {} more, {} together\n", r.contributors.size() - top, percent(rest));
+    out += fmt::format("and {} more, {} together\n", r.contributors.size() - top, share_cell(r, rest));
   }
   return out;
 }
 
 std::string mechanism_line(const NoiseResult& r) {
+  if (!(r.total_rms > 0)) return {};
   std::array<double, 4> share{};
   for (const auto& c : r.contributors) share[static_cast<std::size_t>(c.mechanism)] += c.share;
   std::string out = "by mechanism:";
@@ -169,8 +186,10 @@ std::string noise_json(const NoiseResult& r, const ReportContext& context) {
   json contributors = json::array();
   for (const auto& c : r.contributors)
     contributors.push_back({{"source", c.source}, {"mechanism", to_string(c.mechanism)},
-                            {"rms", number(c.rms)}, {"share", number(c.share)}});
+                            {"rms", number(c.rms)},
+                            {"share", r.total_rms > 0 ? number(c.share) : json(nullptr)}});
   d["contributors"] = contributors;
+  if (!r.notes.empty()) d["notes"] = r.notes;
   return json_output::text(d);
 }
 

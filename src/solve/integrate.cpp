@@ -5,6 +5,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <limits>
 
 namespace tacet {
 namespace {
@@ -29,71 +30,187 @@ constexpr double kGaussWeights[4] = {  // at Kronrod nodes 1, 3, 5 and 7 (the ce
     0.129484966168869693270611432679082, 0.279705391489276667901467771423780,
     0.381830050505118944950369775488975, 0.417959183673469387755102040816327};
 
+// A smooth density's trapezoid estimate stays within this factor of its
+// Kronrod estimate on a decade (see the header); beyond it, a panel end sits
+// on a feature the interior nodes miss.
+constexpr double kEndExcess = 8;
+constexpr double kTiny = 1e-300;  // absolute floor of a tolerance: an all-zero integrand is done
+
+// One panel [a, b] in u = ln f; its Kronrod values and error estimates live
+// in the integrator's stores at `slot`.
+struct Panel {
+  double a, b;
+  int depth;
+  std::size_t slot;
+};
+
 class Integrator {
  public:
   Integrator(std::size_t m, std::size_t checked, const BandIntegrand& integrand,
-             const BandIntegrationOptions& options, double band_width)
-      : m_(m), checked_(checked), integrand_(integrand), options_(options),
-        band_width_(band_width), sample_(m),
-        scratch_(4 * static_cast<std::size_t>(options.max_depth + 1), std::vector<double>(m)) {}
+             const BandIntegrationOptions& options)
+      : m_(m), checked_(checked), integrand_(integrand), options_(options), sample_(m),
+        gauss_(checked), end_(checked), non_finite_at_(checked, 0.0) {}
 
-  /// K15 and G7 on [a, b] in u = ln f, written (not added) into kronrod and gauss.
-  void panel(double a, double b, double* kronrod, double* gauss) {
-    const double middle = 0.5 * (a + b), half = 0.5 * (b - a);
-    std::fill(kronrod, kronrod + m_, 0.0);
-    std::fill(gauss, gauss + m_, 0.0);
-    for (int k = 0; k < 15; ++k) {
-      const int node = k < 8 ? k : 14 - k;  // 0..7, then the mirrored 6..0
-      const double x = (k < 8 ? 1 : -1) * kKronrodNodes[node];
-      const double f = std::exp(middle + half * x);
-      integrand_(f, sample_.data());
-      ++evaluations_;
-      const double jacobian = half * f;
-      const double wk = jacobian * kKronrodWeights[node];
-      const double wg = node % 2 == 1 ? jacobian * kGaussWeights[node / 2] : node == 7 ? jacobian * kGaussWeights[3] : 0;
-      for (std::size_t j = 0; j < m_; ++j) {
-        kronrod[j] += wk * sample_[j];
-        gauss[j] += wg * sample_[j];
+  /// First cut: `count` equal panels over [ua, ub].
+  void cut(double ua, double ub, int count) {
+    const double width = (ub - ua) / count;
+    end_sample(ua, end_.data());
+    for (int p = 0; p < count && !stopped_; ++p) {
+      const double a = ua + p * width, b = p + 1 == count ? ub : ua + (p + 1) * width;
+      const Panel panel{a, b, 0, new_slot()};
+      std::copy(end_.begin(), end_.end(), end_at_a(panel));
+      end_sample(b, end_at_b(panel));
+      std::copy(end_at_b(panel), end_at_b(panel) + checked_, end_.begin());
+      panels_.push_back(panel);
+      estimate(panel);
+    }
+  }
+
+  /// Bisects the panel with the largest error until every live checked
+  /// component meets its tolerance, or nothing more can be bisected.
+  void refine() {
+    while (!stopped_) {
+      const int worst = worst_component();
+      if (worst < 0) return;
+      const int panel = worst_panel(static_cast<std::size_t>(worst));
+      if (panel < 0 || bisections_ == options_.max_bisections) {
+        converged_ = false;
+        return;
       }
+      bisect(static_cast<std::size_t>(panel));
     }
   }
 
-  /// Adds [a, b]'s K15 into `sum` when it agrees with G7 to this panel's share
-  /// of the tolerance, else bisects (adaptive bisection).
-  void refine(double a, double b, const double* kronrod, const double* gauss, int depth,
-              const std::vector<double>& tol, double* sum) {
-    const double share = (b - a) / band_width_;
-    bool agree = true;
+  BandIntegral result() const {
+    BandIntegral r;
+    r.values.assign(m_, stopped_ ? std::numeric_limits<double>::quiet_NaN() : 0.0);
+    if (!stopped_)
+      for (const Panel& p : panels_)
+        for (std::size_t j = 0; j < m_; ++j) r.values[j] += kronrod_[p.slot * m_ + j];
     for (std::size_t j = 0; j < checked_; ++j)
-      agree = agree && std::abs(kronrod[j] - gauss[j]) <= tol[j] * share;
-    if (agree || depth == options_.max_depth) {
-      if (!agree) converged_ = false;
-      for (std::size_t j = 0; j < m_; ++j) sum[j] += kronrod[j];
-      return;
-    }
-    double* left_k = scratch_[4 * static_cast<std::size_t>(depth)].data();
-    double* left_g = scratch_[4 * static_cast<std::size_t>(depth) + 1].data();
-    double* right_k = scratch_[4 * static_cast<std::size_t>(depth) + 2].data();
-    double* right_g = scratch_[4 * static_cast<std::size_t>(depth) + 3].data();
-    const double middle = 0.5 * (a + b);
-    panel(a, middle, left_k, left_g);
-    panel(middle, b, right_k, right_g);
-    refine(a, middle, left_k, left_g, depth + 1, tol, sum);
-    refine(middle, b, right_k, right_g, depth + 1, tol, sum);
+      if (non_finite_at_[j] != 0) r.values[j] = std::numeric_limits<double>::infinity();
+    r.evaluations = evaluations_;
+    r.converged = converged_ && !stopped_;
+    r.non_finite_at = non_finite_at_;
+    return r;
   }
-
-  int evaluations() const { return evaluations_; }
-  bool converged() const { return converged_; }
 
  private:
+  // One sample of every component at u; a checked component that is not
+  // finite is noted, and with none left finite the integral stops.
+  void sample(double u) {
+    const double f = std::exp(u);
+    integrand_(f, sample_.data());
+    ++evaluations_;
+    bool live = false;
+    for (std::size_t j = 0; j < checked_; ++j) {
+      if (non_finite_at_[j] == 0 && !std::isfinite(sample_[j])) non_finite_at_[j] = f;
+      live = live || non_finite_at_[j] == 0;
+    }
+    stopped_ = !live;
+  }
+
+  // The checked components of the u-space integrand g(e^u) e^u at a panel end.
+  void end_sample(double u, double* out) {
+    sample(u);
+    for (std::size_t j = 0; j < checked_; ++j) out[j] = sample_[j] * std::exp(u);
+  }
+
+  std::size_t new_slot() {
+    const std::size_t slot = slots_++;
+    kronrod_.resize(slots_ * m_);
+    error_.resize(slots_ * checked_);
+    ends_.resize(slots_ * 2 * checked_);
+    return slot;
+  }
+  double* end_at_a(const Panel& p) { return &ends_[p.slot * 2 * checked_]; }
+  double* end_at_b(const Panel& p) { return &ends_[p.slot * 2 * checked_ + checked_]; }
+
+  // K15 into the panel's slot, and per checked component the error estimate
+  // max(|K15 - G7|, end excess).
+  void estimate(const Panel& panel) {
+    double* kronrod = &kronrod_[panel.slot * m_];
+    std::fill(kronrod, kronrod + m_, 0.0);
+    std::fill(gauss_.begin(), gauss_.end(), 0.0);
+    const double middle = 0.5 * (panel.a + panel.b), half = 0.5 * (panel.b - panel.a);
+    for (int k = 0; k < 15 && !stopped_; ++k) {
+      const int node = k < 8 ? k : 14 - k;  // 0..7, then the mirrored 6..0
+      const double u = middle + half * (k < 8 ? 1 : -1) * kKronrodNodes[node];
+      sample(u);
+      const double jacobian = half * std::exp(u);
+      const double wk = jacobian * kKronrodWeights[node];
+      const double wg = node % 2 == 1 ? jacobian * kGaussWeights[node / 2]
+                        : node == 7   ? jacobian * kGaussWeights[3]
+                                      : 0;
+      for (std::size_t j = 0; j < m_; ++j) kronrod[j] += wk * sample_[j];
+      for (std::size_t j = 0; j < checked_; ++j) gauss_[j] += wg * sample_[j];
+    }
+    const double* at_a = end_at_a(panel);
+    const double* at_b = end_at_b(panel);
+    for (std::size_t j = 0; j < checked_; ++j) {
+      const double trapezoid = 0.5 * (std::abs(at_a[j]) + std::abs(at_b[j])) * (panel.b - panel.a);
+      const double excess = trapezoid - kEndExcess * std::abs(kronrod[j]);
+      error_[panel.slot * checked_ + j] = std::max(std::abs(kronrod[j] - gauss_[j]), excess);
+    }
+  }
+
+  // The left half keeps the parent's slot, the right half takes a new one.
+  void bisect(std::size_t index) {
+    const Panel parent = panels_[index];
+    ++bisections_;
+    const double middle = 0.5 * (parent.a + parent.b);
+    const Panel left{parent.a, middle, parent.depth + 1, parent.slot};
+    const Panel right{middle, parent.b, parent.depth + 1, new_slot()};
+    std::copy(end_at_b(left), end_at_b(left) + checked_, end_at_b(right));
+    end_sample(middle, end_at_b(left));
+    std::copy(end_at_b(left), end_at_b(left) + checked_, end_at_a(right));
+    panels_[index] = left;
+    panels_.push_back(right);
+    if (!stopped_) estimate(left);
+    if (!stopped_) estimate(right);
+  }
+
+  // The live checked component furthest above its tolerance; -1 when all meet it.
+  int worst_component() const {
+    int worst = -1;
+    double largest = 1;
+    for (std::size_t j = 0; j < checked_; ++j) {
+      if (non_finite_at_[j] != 0) continue;
+      double total = 0, error = 0;
+      for (const Panel& p : panels_) {
+        total += kronrod_[p.slot * m_ + j];
+        error += error_[p.slot * checked_ + j];
+      }
+      const double ratio = error / (options_.relative_tolerance * std::abs(total) + kTiny);
+      if (ratio > largest) largest = ratio, worst = static_cast<int>(j);
+    }
+    return worst;
+  }
+
+  // The panel with the largest error in component j that may still be
+  // bisected; -1: none.
+  int worst_panel(std::size_t j) const {
+    int worst = -1;
+    double largest = -1;
+    for (std::size_t p = 0; p < panels_.size(); ++p) {
+      const double error = error_[panels_[p].slot * checked_ + j];
+      if (panels_[p].depth < options_.max_depth && error > largest)
+        largest = error, worst = static_cast<int>(p);
+    }
+    return worst;
+  }
+
   std::size_t m_, checked_;
   const BandIntegrand& integrand_;
   const BandIntegrationOptions& options_;
-  double band_width_;
-  std::vector<double> sample_;
-  std::vector<std::vector<double>> scratch_;  // K and G of two halves per depth
-  int evaluations_ = 0;
-  bool converged_ = true;
+  std::vector<double> sample_, gauss_, end_;
+  // Per slot: m Kronrod values, `checked` errors, 2 x `checked` end values.
+  std::vector<double> kronrod_, error_, ends_;
+  std::size_t slots_ = 0;
+  std::vector<Panel> panels_;
+  std::vector<double> non_finite_at_;
+  int evaluations_ = 0, bisections_ = 0;
+  bool converged_ = true, stopped_ = false;
 };
 
 }  // namespace
@@ -128,28 +245,10 @@ BandIntegral integrate_band(double f1, double f2, std::size_t m, std::size_t che
   const double ua = std::log(f1), ub = std::log(f2);
   const double decades = (ub - ua) / std::log(10.0);
   const int panels = std::max(1, static_cast<int>(std::ceil(decades * options.panels_per_decade)));
-  const double width = (ub - ua) / panels;
-  Integrator integrator(m, std::min(checked, m), integrand, options, ub - ua);
-
-  // First cut: K15 and G7 per panel; the K15 sums set each checked tolerance.
-  const auto size = static_cast<std::size_t>(panels);
-  std::vector<std::vector<double>> kronrod(size, std::vector<double>(m)), gauss(size, std::vector<double>(m));
-  std::vector<double> tol(m, 0.0);
-  for (std::size_t p = 0; p < size; ++p) {
-    integrator.panel(ua + static_cast<double>(p) * width, p + 1 == size ? ub : ua + static_cast<double>(p + 1) * width,
-                     kronrod[p].data(), gauss[p].data());
-    for (std::size_t j = 0; j < m; ++j) tol[j] += kronrod[p][j];
-  }
-  for (double& t : tol) t = options.relative_tolerance * std::abs(t) + 1e-300;
-
-  BandIntegral result;
-  result.values.assign(m, 0.0);
-  for (std::size_t p = 0; p < size; ++p)
-    integrator.refine(ua + static_cast<double>(p) * width, p + 1 == size ? ub : ua + static_cast<double>(p + 1) * width,
-                      kronrod[p].data(), gauss[p].data(), 0, tol, result.values.data());
-  result.evaluations = integrator.evaluations();
-  result.converged = integrator.converged();
-  return result;
+  Integrator integrator(m, std::min(checked, m), integrand, options);
+  integrator.cut(ua, ub, panels);
+  integrator.refine();
+  return integrator.result();
 }
 
 }  // namespace tacet

@@ -346,6 +346,10 @@ void MnaSystem::assemble_varying(std::complex<double> s, std::complex<double>* v
   }
 }
 
+void MnaSystem::assemble_dc(double* values) const {
+  for (std::size_t k = 0; k < coefficients_.size(); ++k) values[k] = coefficients_[k].c0;
+}
+
 void MnaSystem::excitation(std::complex<double>* rhs) const {
   std::fill(rhs, rhs + pattern_.n, std::complex<double>{});
   const auto& elements = circuit_->elements;

@@ -6,6 +6,8 @@ namespace tacet {
 
 std::unique_ptr<SparseLu> make_klu_lu();
 std::unique_ptr<SparseLu> make_eigen_lu();
+std::unique_ptr<RealSparseLu> make_real_klu_lu();
+std::unique_ptr<RealSparseLu> make_real_eigen_lu();
 
 const char* to_string(SolverKind kind) {
   switch (kind) {
@@ -19,6 +21,10 @@ const char* to_string(SolverKind kind) {
 
 std::unique_ptr<SparseLu> make_sparse_lu(SolverKind kind) {
   return kind == SolverKind::eigen ? make_eigen_lu() : make_klu_lu();
+}
+
+std::unique_ptr<RealSparseLu> make_real_sparse_lu(SolverKind kind) {
+  return kind == SolverKind::eigen ? make_real_eigen_lu() : make_real_klu_lu();
 }
 
 }  // namespace tacet

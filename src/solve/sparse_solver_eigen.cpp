@@ -15,18 +15,24 @@ namespace {
 using Matrix = Eigen::SparseMatrix<std::complex<double>, Eigen::ColMajor, int>;
 using Vector = Eigen::Map<Eigen::VectorXcd>;
 
+// A compressed matrix with the pattern's entries (values to be overwritten).
+template <typename Scalar>
+void shape_like(const CscPattern& pattern, Eigen::SparseMatrix<Scalar, Eigen::ColMajor, int>& matrix) {
+  std::vector<Eigen::Triplet<Scalar, int>> entries;
+  entries.reserve(static_cast<std::size_t>(pattern.nonzeros()));
+  for (int c = 0; c < pattern.n; ++c)
+    for (int k = pattern.col_ptr[c]; k < pattern.col_ptr[c + 1]; ++k)
+      entries.emplace_back(pattern.row_index[k], c, Scalar(1));
+  matrix.resize(pattern.n, pattern.n);
+  matrix.setFromTriplets(entries.begin(), entries.end());
+  matrix.makeCompressed();
+}
+
 class EigenLu final : public SparseLu {
  public:
   void analyse(const CscPattern& pattern) override {
     n_ = pattern.n;
-    std::vector<Eigen::Triplet<std::complex<double>, int>> entries;
-    entries.reserve(static_cast<std::size_t>(pattern.nonzeros()));
-    for (int c = 0; c < n_; ++c)
-      for (int k = pattern.col_ptr[c]; k < pattern.col_ptr[c + 1]; ++k)
-        entries.emplace_back(pattern.row_index[k], c, 1.0);
-    matrix_.resize(n_, n_);
-    matrix_.setFromTriplets(entries.begin(), entries.end());
-    matrix_.makeCompressed();
+    shape_like(pattern, matrix_);
     work_.resize(n_);
     if (n_ == 0) return;  // nothing to factor: every call below is a no-op
     lu_.analyzePattern(matrix_);
@@ -86,8 +92,42 @@ class EigenLu final : public SparseLu {
   int factorizations_ = 0;
 };
 
+// The real DC system on Eigen's SparseLU, for comparison with KLU.
+class RealEigenLu final : public RealSparseLu {
+ public:
+  using RealMatrix = Eigen::SparseMatrix<double, Eigen::ColMajor, int>;
+
+  void analyse(const CscPattern& pattern) override {
+    n_ = pattern.n;
+    shape_like(pattern, matrix_);
+    if (n_ > 0) lu_.analyzePattern(matrix_);
+  }
+
+  FactorStatus factor(const double* values) override {
+    if (n_ == 0) return FactorStatus::ok;
+    std::copy(values, values + matrix_.nonZeros(), matrix_.valuePtr());
+    lu_.factorize(matrix_);
+    return lu_.info() == Eigen::Success ? FactorStatus::ok : FactorStatus::singular;
+  }
+
+  int singular_column() const override { return -1; }
+
+  void solve(double* rhs, int count) override {
+    if (n_ == 0 || count == 0) return;
+    Eigen::Map<Eigen::MatrixXd> b(rhs, n_, count);
+    Eigen::MatrixXd x = lu_.solve(b);
+    b = x;
+  }
+
+ private:
+  int n_ = 0;
+  RealMatrix matrix_;
+  Eigen::SparseLU<RealMatrix, Eigen::COLAMDOrdering<int>> lu_;
+};
+
 }  // namespace
 
 std::unique_ptr<SparseLu> make_eigen_lu() { return std::make_unique<EigenLu>(); }
+std::unique_ptr<RealSparseLu> make_real_eigen_lu() { return std::make_unique<RealEigenLu>(); }
 
 }  // namespace tacet

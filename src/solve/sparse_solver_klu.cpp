@@ -102,8 +102,62 @@ class KluLu final : public SparseLu {
   int full_factorizations_ = 0;
 };
 
+// The real DC system: one full factorisation, then any number of solves.
+class RealKluLu final : public RealSparseLu {
+ public:
+  RealKluLu() { klu_defaults(&common_); }
+  ~RealKluLu() override { release(); }
+  RealKluLu(const RealKluLu&) = delete;
+  RealKluLu& operator=(const RealKluLu&) = delete;
+
+  void analyse(const CscPattern& pattern) override {
+    release();
+    n_ = pattern.n;
+    col_ptr_ = pattern.col_ptr;
+    row_index_ = pattern.row_index;
+    if (n_ == 0) return;
+    symbolic_ = klu_analyze(n_, col_ptr_.data(), row_index_.data(), &common_);
+    if (symbolic_ == nullptr) throw std::runtime_error("klu_analyze failed");
+  }
+
+  FactorStatus factor(const double* values) override {
+    if (n_ == 0) return FactorStatus::ok;
+    if (numeric_ != nullptr) klu_free_numeric(&numeric_, &common_);
+    numeric_ = klu_factor(col_ptr_.data(), row_index_.data(), const_cast<double*>(values), symbolic_,
+                          &common_);
+    if (numeric_ == nullptr || common_.status == KLU_SINGULAR) {
+      singular_column_ = common_.singular_col < n_ ? common_.singular_col : -1;
+      if (numeric_ != nullptr) klu_free_numeric(&numeric_, &common_);
+      return FactorStatus::singular;
+    }
+    singular_column_ = -1;
+    return FactorStatus::ok;
+  }
+
+  int singular_column() const override { return singular_column_; }
+
+  void solve(double* rhs, int count) override {
+    if (n_ == 0 || count == 0) return;
+    klu_solve(symbolic_, numeric_, n_, count, rhs, &common_);
+  }
+
+ private:
+  void release() {
+    if (numeric_ != nullptr) klu_free_numeric(&numeric_, &common_);
+    if (symbolic_ != nullptr) klu_free_symbolic(&symbolic_, &common_);
+  }
+
+  klu_common common_{};
+  klu_symbolic* symbolic_ = nullptr;
+  klu_numeric* numeric_ = nullptr;
+  int n_ = 0;
+  std::vector<int> col_ptr_, row_index_;
+  int singular_column_ = -1;
+};
+
 }  // namespace
 
 std::unique_ptr<SparseLu> make_klu_lu() { return std::make_unique<KluLu>(); }
+std::unique_ptr<RealSparseLu> make_real_klu_lu() { return std::make_unique<RealKluLu>(); }
 
 }  // namespace tacet

@@ -12,6 +12,8 @@
 
 namespace tacet {
 
+class FrequencyResponse;
+
 enum class SweepKind { log, linear, list };
 const char* to_string(SweepKind kind);
 
@@ -54,5 +56,8 @@ struct AcResult {
 /// Throws InputError for a bad sweep or probe, SolveError when the circuit is
 /// singular at some frequency (the message names the unknown involved).
 AcResult run_ac(const Circuit& circuit, const AcOptions& options);
+/// The same on a caller's FrequencyResponse of `circuit` (options.solver is
+/// then the response's), so several analyses share one MNA system.
+AcResult run_ac(const Circuit& circuit, const AcOptions& options, FrequencyResponse& response);
 
 }  // namespace tacet

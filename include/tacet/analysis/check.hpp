@@ -9,6 +9,7 @@
 
 #include "tacet/circuit/circuit.hpp"
 #include "tacet/circuit/spec.hpp"
+#include "tacet/common/errors.hpp"
 
 namespace tacet {
 
@@ -19,17 +20,41 @@ struct SpecResult {
   bool pass = false;
   double where = 0;             ///< Hz of the worst point (flatness) or 0
   std::string note;             ///< why there is no value, or what was measured where
+  /// The solver's sentence when the analysis this spec needs cannot run (no
+  /// DC path, a singular matrix), and its hint; empty when it ran.
+  std::string unsolved, unsolved_hint;
 };
 
 struct CheckResult {
   std::vector<SpecResult> specs;  ///< in the order written
-  int failed() const;
+  int failed() const;    ///< specs that did not pass, the unsolved ones included
+  int unsolved() const;  ///< specs whose analysis could not run
+  /// The error of exit status 3 naming every unsolved spec with the first
+  /// one's reason and hint: "circuit cannot be solved: spec 'dc' at DC: ...".
+  SolveError unsolved_error() const;
 };
 
-/// Measures every spec. Throws SolveError when the circuit cannot be solved,
-/// and InputError when a spec's analysis refuses its input (a rails spec on
-/// a level source with no band, say).
+/// Measures every spec. A spec whose analysis cannot run (SolveError) fails
+/// with the reason in its note and `unsolved`; the other specs are still
+/// measured. Throws InputError for a probe that does not resolve.
 CheckResult run_check(const Circuit& circuit);
+
+class FrequencyResponse;
+struct BiasResult;
+
+/// Analyses of the same circuit a caller has already set up (diff does, for
+/// its own comparisons), so that every analysis runs once per circuit.
+struct SharedAnalyses {
+  FrequencyResponse* response = nullptr;  ///< the circuit's; nullptr: check makes its own
+  const BiasResult* bias = nullptr;       ///< the DC analysis; nullptr: check runs it if needed
+  std::optional<SolveError> bias_error;   ///< why the DC analysis could not run; empty: it could
+};
+CheckResult run_check(const Circuit& circuit, const SharedAnalyses& shared);
+
+/// A phase compared with its limits modulo 360 degrees: of the angles that
+/// differ from `degrees` by whole turns, the one nearest the window's centre
+/// (or its one limit). -180.6 and 179.4 deg are the same angle.
+double phase_in_window(double degrees, std::optional<double> min, std::optional<double> max);
 
 /// Margin of `value` inside the optional window [min, max]: the smaller
 /// distance to a given limit, negative when outside.

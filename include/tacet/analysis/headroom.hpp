@@ -31,6 +31,8 @@
 
 namespace tacet {
 
+class FrequencyResponse;
+
 /// The peak of a sine at `level`, V.
 double peak_volts(const SignalLevel& level);
 /// The rms of a sine at `level`, V.
@@ -98,5 +100,8 @@ struct HeadroomResult {
 /// SolveError when the circuit is singular in the band.
 HeadroomResult run_headroom(const Circuit& circuit, const BiasResult& bias,
                             const HeadroomOptions& options = {});
+/// The same on a caller's FrequencyResponse of `circuit` (shared with other analyses).
+HeadroomResult run_headroom(const Circuit& circuit, const BiasResult& bias,
+                            const HeadroomOptions& options, FrequencyResponse& response);
 
 }  // namespace tacet

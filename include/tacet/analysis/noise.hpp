@@ -27,7 +27,7 @@
 // input-referred total is the rms of that density integrated over the band
 // (not the output total divided by one gain).
 //
-// Band totals come from integrate_band (adaptive Gauss-Legendre in ln f), not
+// Band totals come from integrate_band (adaptive Gauss-Kronrod in ln f), not
 // from the printed sweep: total_rms = sqrt(integral of S over the band).
 
 #include <complex>
@@ -43,6 +43,8 @@
 #include "tacet/solve/sparse_solver.hpp"
 
 namespace tacet {
+
+class FrequencyResponse;
 
 /// Boltzmann constant, J/K (exact since the 2019 SI redefinition).
 constexpr double kBoltzmann = 1.380649e-23;
@@ -88,7 +90,7 @@ struct SignalToNoise {
   double level = 0;         ///< rms at the input source, V (or A)
   double reference = 0;     ///< Hz, where the gain is taken
   double signal_rms = 0;    ///< level x |G(reference)| at the probe
-  double ratio_db = 0;      ///< 20 log10(signal_rms / total_rms)
+  double ratio_db = 0;      ///< 20 log10(signal_rms / total_rms); NaN when either is 0
 };
 
 struct NoiseResult {
@@ -102,15 +104,24 @@ struct NoiseResult {
   std::vector<std::complex<double>> gain; ///< per point, G(f) (empty without input)
   std::vector<double> input_density;      ///< per point, density / |G| (empty without input)
   double total_rms = 0;                   ///< over the band, V (or A)
-  std::optional<double> input_referred_rms;  ///< over the band, input source's unit
+  /// Over the band, input source's unit; absent (and a note says why) when the
+  /// input does not reach the probe somewhere in the band: it is unbounded.
+  std::optional<double> input_referred_rms;
   std::vector<NoiseContributor> contributors;  ///< largest share first
   std::vector<ContributorDensity> contributor_density;  ///< the first `curves` contributors
   std::optional<SignalToNoise> signal;
   int band_evaluations = 0;               ///< adjoint solves spent on the band integral
+  std::vector<std::string> notes;         ///< for people: what a figure cannot say, and why
 };
 
 /// Throws InputError for bad options, probe or input, SolveError when the
-/// circuit is singular at some frequency.
+/// circuit is singular at some frequency or the noise at the probe is not
+/// finite (a source or a transfer overflows). Output noise of exactly 0 (no
+/// source reaches the probe) is 0, with every share 0; an input that does not
+/// reach the probe leaves input_referred_rms empty with a note.
 NoiseResult run_noise(const Circuit& circuit, const NoiseOptions& options);
+/// The same on a caller's FrequencyResponse of `circuit` (shared with other analyses).
+NoiseResult run_noise(const Circuit& circuit, const NoiseOptions& options,
+                      FrequencyResponse& response);
 
 }  // namespace tacet

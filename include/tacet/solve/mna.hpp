@@ -69,6 +69,8 @@ class MnaSystem {
   /// entries of a circuit matrix are conductances, so a sweep that keeps its
   /// values array pays for the few that change.
   void assemble_varying(std::complex<double> s, std::complex<double>* values) const;
+  /// Writes the real matrix Y(0) (the DC system) into `values`.
+  void assemble_dc(double* values) const;
   /// Writes b (size() entries) from every source's AC phasor.
   void excitation(std::complex<double>* rhs) const;
 

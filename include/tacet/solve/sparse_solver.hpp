@@ -47,9 +47,23 @@ class SparseLu {
   virtual int full_factorizations() const = 0;
 };
 
+/// LU of a real sparse matrix: the DC system (s = 0 leaves every entry real),
+/// at a quarter of the complex work, with many right-hand sides per call.
+class RealSparseLu {
+ public:
+  virtual ~RealSparseLu() = default;
+  virtual void analyse(const CscPattern& pattern) = 0;
+  virtual FactorStatus factor(const double* values) = 0;
+  virtual int singular_column() const = 0;
+  /// rhs_in_out: `count` columns of n values each (column after column), each
+  /// b on entry and x with A x = b on return; solved together, in blocks.
+  virtual void solve(double* rhs_in_out, int count) = 0;
+};
+
 enum class SolverKind { klu, eigen };
 const char* to_string(SolverKind kind);
 
 std::unique_ptr<SparseLu> make_sparse_lu(SolverKind kind = SolverKind::klu);
+std::unique_ptr<RealSparseLu> make_real_sparse_lu(SolverKind kind = SolverKind::klu);
 
 }  // namespace tacet

@@ -1,0 +1,2 @@
+check
+@/check_no_dc.tacet

@@ -1,0 +1,10 @@
+noise
+@/noise_unreached.tacet
+--probe
+out
+--input
+Vin
+--at
+100,1k
+--band
+20..20k

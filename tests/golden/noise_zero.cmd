@@ -1,0 +1,12 @@
+noise
+@/noise_zero.tacet
+--probe
+in
+--input
+Vin
+--level
+1
+--at
+100,1k
+--band
+20..20k

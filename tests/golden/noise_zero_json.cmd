@@ -1,0 +1,10 @@
+noise
+@/noise_zero.tacet
+--probe
+in
+--at
+1k
+--band
+20..20k
+--format
+json
