@@ -374,6 +374,12 @@ int MnaSystem::opamp_gain_row(std::size_t element) const {
   return circuit_->elements[element].kind == ElementKind::opamp ? branch_of_[element] : -1;
 }
 
+int MnaSystem::opamp_source_unknown(std::size_t element) const {
+  const Element& e = circuit_->elements[element];
+  if (e.kind != ElementKind::opamp) return -1;
+  return internal_of_[element] >= 0 ? internal_of_[element] : node_unknown(e.nodes[2]);
+}
+
 std::string MnaSystem::unknown_name(int unknown) const {
   if (unknown < 0 || unknown >= pattern_.n) return fmt::format("unknown {}", unknown);
   if (unknown < node_unknowns_)

@@ -79,6 +79,9 @@ class MnaSystem {
   /// Row of an op amp's gain equation (its branch unknown's row); -1 if not an
   /// op amp. A voltage e in series with the + input enters as rhs[row] += e.
   int opamp_gain_row(std::size_t element) const;
+  /// Unknown of the voltage an op amp's gain source sets (its internal node
+  /// when rout > 0, else its output pin); -1 if not an op amp.
+  int opamp_source_unknown(std::size_t element) const;
   /// For people: "node out", "current in V1", "internal node of U1".
   std::string unknown_name(int unknown) const;
 
