@@ -137,9 +137,8 @@ std::vector<std::size_t> resolve_opamps(const Circuit& circuit,
       all_names.push_back(circuit.elements[i].name);
     }
   if (all.empty())
-    throw InputError(
-        "error: the circuit has no op amp: loop gain is the return ratio of an op amp's gain "
-        "source\n");
+    throw InputError::usage(
+        "the circuit has no op amp: loop gain is the return ratio of an op amp's gain source");
   if (names.empty()) return all;
   std::vector<std::size_t> chosen;
   for (const auto& name : names) {
@@ -148,11 +147,10 @@ std::vector<std::size_t> resolve_opamps(const Circuit& circuit,
       chosen.push_back(all[static_cast<std::size_t>(found - all_names.begin())]);
       continue;
     }
-    std::string message = fmt::format("error: --opamp '{}' is not an op amp of the circuit", name);
+    std::string message = fmt::format("--opamp '{}' is not an op amp of the circuit", name);
     if (const auto element = circuit.find_element(name))
       message += fmt::format(" (it is a {})", to_keyword(circuit.elements[*element].kind));
-    const std::string hint = choice_hint(name, all_names, "op amps");
-    throw InputError(message + "\n" + (hint.empty() ? "" : "hint: " + hint + "\n"));
+    throw InputError::usage(message, choice_hint(name, all_names, "op amps"));
   }
   return chosen;
 }
@@ -176,9 +174,9 @@ std::complex<double> LoopGain::at(std::size_t opamp, double f) {
   const std::complex<double> s(0, kTwoPi * f);
   const std::complex<double> t = -opamp_gain(model_of(mna.circuit(), opamp), s) * d / vx;
   if (!std::isfinite(t.real()) || !std::isfinite(t.imag()))
-    throw SolveError(fmt::format(
-        "error: loop gain of '{}' is not finite at {}Hz: its gain source sets no voltage there",
-        e.name, format_si(f)));
+    throw SolveError::unsolvable_at(
+        f, fmt::format("the loop gain of '{}' is not finite: its gain source sets no voltage",
+                       e.name));
   return t;
 }
 
@@ -187,7 +185,7 @@ LoopResult run_loop(const Circuit& circuit, const LoopOptions& options) {
   LoopResult result;
   result.sweep = options.sweep ? *options.sweep : default_loop_sweep(circuit);
   if (auto problem = result.sweep.validate(); !problem.empty())
-    throw InputError("error: " + problem);
+    throw InputError::usage(problem);
   result.frequencies = result.sweep.frequencies();
   LoopGain gain(circuit, options.solver);
   result.loops.resize(opamps.size());

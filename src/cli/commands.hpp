@@ -14,5 +14,6 @@ void setup_check(CLI::App& app);
 void setup_diff(CLI::App& app);
 void setup_report(CLI::App& app);
 void setup_loop(CLI::App& app);
+void setup_poles(CLI::App& app);
 
 }  // namespace tacet::cli

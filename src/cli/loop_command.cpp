@@ -18,40 +18,31 @@ namespace {
 
 struct LoopCommandOptions {
   CommonOptions common;
-  SweepFlags sweep{.from = "", .to = "", .per_decade = 0, .points = 0, .at = ""};
+  SweepFlags sweep{.from = "", .to = "", .per_decade = {}, .points = {}, .at = {}};
   std::vector<std::string> opamps;
 };
 
 // The flags given, the default range for the rest: --from and --to each fall
 // back to the circuit's default, and with no flag at all the default sweep.
 std::optional<Sweep> sweep_from(const SweepFlags& given, const Circuit& circuit) {
-  if (given.from.empty() && given.to.empty() && given.per_decade == 0 && given.points == 0 &&
-      given.at.empty())
+  if (given.from.empty() && given.to.empty() && !given.per_decade && !given.points && !given.at)
     return std::nullopt;
   SweepFlags flags = given;
   const Sweep fallback = default_loop_sweep(circuit);
   if (flags.from.empty()) flags.from = format_exact(fallback.from);
   if (flags.to.empty()) flags.to = format_exact(fallback.to);
-  if (flags.per_decade == 0 && flags.points == 0) flags.per_decade = fallback.per_decade;
+  if (!flags.per_decade && !flags.points) flags.per_decade = fallback.per_decade;
   return parse_sweep(flags);
 }
 
 void run(const LoopCommandOptions& o) {
-  const OutputFormat format = output_format(o.common);
-  ReportContext context;
-  const Circuit circuit = load(o.common, context);
-  LoopOptions options;
-  options.opamps = o.opamps;
-  resolve_opamps(circuit, options.opamps);  // name errors before sweep errors
-  options.sweep = sweep_from(o.sweep, circuit);
-  const LoopResult result = run_loop(circuit, options);
-  std::string text;
-  switch (format) {
-    case OutputFormat::table: text = loop_table(result, context); break;
-    case OutputFormat::csv: text = loop_csv(result); break;
-    case OutputFormat::json: text = loop_json(result, context); break;
-  }
-  write_output(o.common.output, text);
+  analyse_and_write(o.common, loop_writers(), [&](const Circuit& circuit) {
+    LoopOptions options;
+    options.opamps = o.opamps;
+    resolve_opamps(circuit, options.opamps);  // name errors before sweep errors
+    options.sweep = sweep_from(o.sweep, circuit);
+    return run_loop(circuit, options);
+  });
 }
 
 }  // namespace
@@ -60,7 +51,7 @@ void setup_loop(CLI::App& app) {
   auto options = std::make_shared<LoopCommandOptions>();
   CLI::App* loop = app.add_subcommand(
       "loop", "Loop gain of every op amp (its return ratio): crossovers, phase and gain margins");
-  add_common_options(*loop, options->common);
+  add_common_options(*loop, options->common, loop_writers().formats());
   loop->add_option("--opamp", options->opamps, "Only this op amp (U1, F1.U2); repeatable");
   add_sweep_options(*loop, options->sweep);
   loop->footer(

@@ -48,6 +48,15 @@ std::string point_rows(const LoopResult& r, const LoopTrace& trace) {
 
 }  // namespace
 
+const Writers<LoopResult>& loop_writers() {
+  static const Writers<LoopResult> writers{
+      {OutputFormat::table, loop_table},
+      {OutputFormat::csv, loop_csv},
+      {OutputFormat::json, loop_json},
+  };
+  return writers;
+}
+
 const char* loop_verdict(const LoopTrace& t) {
   if (!t.phase_margin) return "no crossover";
   const double pm = *t.phase_margin;

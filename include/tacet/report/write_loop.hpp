@@ -10,8 +10,12 @@
 
 #include "tacet/analysis/loop.hpp"
 #include "tacet/report/output.hpp"
+#include "tacet/report/writers.hpp"
 
 namespace tacet {
+
+/// table, csv, json.
+const Writers<LoopResult>& loop_writers();
 
 /// The verdict for people, by the common-practice margins (45 deg, 6 dB):
 /// "ample" (phase margin >= 60 deg and gain margin >= 10 dB or none),
