@@ -35,6 +35,7 @@
 #include <vector>
 
 #include "tacet/analysis/ac.hpp"
+#include "tacet/analysis/loop.hpp"
 #include "tacet/solve/mna.hpp"
 #include "tacet/analysis/noise.hpp"
 #include "tacet/report/write_svg.hpp"
@@ -287,6 +288,70 @@ void svg_section() {
   }
 }
 
+// A chain of RC sections each buffered by a follower (single-pole op amp).
+tacet::Circuit buffered_chain(int stages) {
+  tacet::Circuit c;
+  tacet::OpAmpModel model;
+  model.name = "bench_amp";
+  model.gbw = 1e6;
+  model.rout = 50;
+  c.models.push_back(model);
+  auto add = [&](ElementKind kind, std::string name, std::vector<int> nodes, double value) {
+    tacet::Element e;
+    e.kind = kind;
+    e.name = std::move(name);
+    e.nodes = std::move(nodes);
+    e.value = value;
+    e.model = kind == ElementKind::opamp ? 0 : -1;
+    c.elements.push_back(std::move(e));
+    return c.elements.size() - 1;
+  };
+  int previous = c.node("b0");
+  c.elements[add(ElementKind::vsource, "Vin", {previous, 0}, 0)].ac_magnitude = 1;
+  for (int k = 1; k <= stages; ++k) {
+    const int rc = c.node(numbered("r", k)), out = c.node(numbered("b", k));
+    add(ElementKind::resistor, numbered("R", k), {previous, rc}, 1e3);
+    add(ElementKind::capacitor, numbered("C", k), {rc, 0}, 1e-9);
+    add(ElementKind::opamp, numbered("U", k), {rc, out, out}, 0);
+    add(ElementKind::capacitor, numbered("CL", k), {out, 0}, 1e-9);
+    previous = out;
+  }
+  return c;
+}
+
+// T of every op amp at the sweep's points (the sweep part of tacet loop,
+// without the crossover searches) against the AC sweep of the same circuit.
+void loop_section(const std::vector<int>& stages) {
+  std::printf("\nLoop gain of every op amp on a buffered RC chain (KLU), %d points, against AC\n",
+              kPoints);
+  std::printf("%7s  %8s  %10s  %10s  %8s  %14s\n", "op amps", "unknowns", "ac ms", "loop ms",
+              "ratio", "per op amp/pt");
+  const auto frequencies = sweep_frequencies();
+  for (int n : stages) {
+    const auto circuit = buffered_chain(n);
+    tacet::AcOptions ac;
+    ac.sweep.kind = tacet::SweepKind::list;
+    ac.sweep.at = frequencies;
+    ac.probes = {numbered("b", n)};
+    std::vector<std::size_t> opamps;
+    for (std::size_t i = 0; i < circuit.elements.size(); ++i)
+      if (circuit.elements[i].kind == ElementKind::opamp) opamps.push_back(i);
+    const double ac_us =
+        fastest_of_repeats([&] { return microseconds_per_call([&] { tacet::run_ac(circuit, ac); }); });
+    const double loop_us = fastest_of_repeats([&] {
+      return microseconds_per_call([&] {
+        tacet::LoopGain gain(circuit);
+        for (double f : frequencies)
+          for (std::size_t u : opamps) (void)gain.at(u, f);
+      });
+    });
+    std::printf("%7d  %8d  %10.3f  %10.3f  %8.2f  %14.3f\n", n, tacet::MnaSystem(circuit).size(),
+                ac_us / 1e3, loop_us / 1e3, loop_us / ac_us,
+                (loop_us - ac_us) / ac_us / static_cast<double>(n));
+    std::fflush(stdout);
+  }
+}
+
 }  // namespace
 
 
@@ -318,5 +383,6 @@ int main(int argc, char** argv) {
     if (sections <= 10000) noise_sizes.push_back(sections);
   noise_section(noise_sizes);
   svg_section();
+  loop_section({1, 10, 100});
   return 0;
 }

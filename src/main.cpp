@@ -20,6 +20,8 @@ int main(int argc, char** argv) {
   tacet::cli::setup_check(app);
   tacet::cli::setup_diff(app);
   tacet::cli::setup_report(app);
+  tacet::cli::setup_loop(app);
+  tacet::cli::setup_poles(app);
   try {
     app.parse(argc, argv);
   } catch (const CLI::ParseError& e) {

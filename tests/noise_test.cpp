@@ -339,6 +339,7 @@ TEST_CASE("only the asked number of largest contributors get a density per point
   CHECK(r.contributor_density[0].source == r.contributors[0].source);
   CHECK(r.contributor_density[1].source == r.contributors[1].source);
   CHECK(r.contributor_density[0].density.size() == 2);
+}
 
 TEST_CASE("a current probe on a resistor includes that resistor's own noise current",
           "[noise]") {

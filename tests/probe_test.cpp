@@ -8,6 +8,7 @@
 #include "is_close.hpp"
 #include "reference_circuits.hpp"
 #include "tacet/analysis/ac.hpp"
+#include "tacet/analysis/noise.hpp"
 #include "tacet/common/errors.hpp"
 #include "tacet/solve/response.hpp"
 
@@ -106,4 +107,79 @@ TEST_CASE("a current probe reads the current from the first connection to the se
   const cplx a = 1e6 / (1.0 + s * 1e6 / (2 * kPi * 10e6));
   CHECK_THAT(read(c, "o"), IsClose(a / (1.0 + a), 1e-9));
   CHECK_THAT(read(c, "i(U1)"), IsClose(a / (1.0 + a) / 1e3, 1e-9));
+}
+
+// --- impedance probes: driving-point impedances with every independent source
+// zeroed, against closed forms.
+
+namespace {
+
+AcResult ac_at(const Circuit& circuit, std::vector<double> f, std::vector<std::string> probes) {
+  AcOptions options;
+  options.sweep.kind = SweepKind::list;
+  options.sweep.at = std::move(f);
+  options.probes = std::move(probes);
+  return run_ac(circuit, options);
+}
+
+}  // namespace
+
+TEST_CASE("z of a node is the parallel impedance to gnd with voltage sources shorted",
+          "[probe]") {
+  // Ohm's law and the parallel combination: Vin shorted, z(out) = R1 || 1/(sC).
+  const Circuit circuit = rc_lowpass(10e3, 1e-9);
+  const std::vector<double> f{10, 15.9e3, 1e6};
+  const AcResult r = ac_at(circuit, f, {"z(out)", "z(in)"});
+  for (std::size_t k = 0; k < f.size(); ++k) {
+    const cplx zc = 1.0 / (jw(f[k]) * 1e-9);
+    CHECK_THAT(r.traces[0].values[k], IsClose(10e3 * zc / (10e3 + zc), 1e-12));
+    CHECK(std::abs(r.traces[1].values[k]) == 0.0);  // a node held by a voltage source
+  }
+  CHECK(std::string(probe_unit(r.traces[0].probe)) == "ohm");
+}
+
+TEST_CASE("z between two nodes sees the element between them and the path through gnd",
+          "[probe]") {
+  // Series-parallel reduction: R between a and b, Ra and Rb from each to gnd:
+  // z(a,b) = R || (Ra + Rb). A current source is open and changes nothing.
+  CircuitBuilder b;
+  b.add(ElementKind::resistor, "R", {"a", "b"}, 1e3);
+  b.add(ElementKind::resistor, "Ra", {"a", "gnd"}, 2e3);
+  b.add(ElementKind::resistor, "Rb", {"b", "gnd"}, 3e3);
+  b.isrc("I1", "gnd", "a", 1.0);
+  const AcResult r = ac_at(b.circuit, {100}, {"z(a,b)", "z(b, a)"});
+  CHECK_THAT(r.traces[0].values[0], IsClose(1e3 * 5e3 / 6e3, 1e-12));
+  CHECK_THAT(r.traces[1].values[0], IsClose(1e3 * 5e3 / 6e3, 1e-12));
+}
+
+TEST_CASE("the output impedance of a follower is rout / (1 + A)", "[probe]") {
+  // Feedback lowers the open-loop output resistance by the loop gain: with the
+  // test current at the pin, v_x = -A v and I = v (1 + A) / rout.
+  OpAmpModel m = single_pole(10e6, 1e5);
+  m.fp2 = 30e6;
+  m.rout = 75;
+  CircuitBuilder b;
+  b.vsrc("Vin", "in", "gnd", 1.0);
+  b.opamp("U1", "in", "out", "out", m);
+  const std::vector<double> f{1, 1e3, 1e5, 1e6, 1e7};
+  const AcResult r = ac_at(b.circuit, f, {"z(out)"});
+  for (std::size_t k = 0; k < f.size(); ++k) {
+    const cplx a = m.aol / ((1.0 + jw(f[k]) * m.aol / (2 * kPi * m.gbw)) *
+                            (1.0 + jw(f[k]) / (2 * kPi * m.fp2)));
+    CHECK_THAT(r.traces[0].values[k], IsClose(75.0 / (1.0 + a), 1e-9));
+  }
+}
+
+TEST_CASE("z of an unknown node names the nearest node", "[probe]") {
+  const Circuit circuit = rc_lowpass(1e3, 1e-9);
+  CHECK_THROWS_WITH(resolve_probe("z(outt)", circuit),
+                    "error: unknown node 'outt' in probe 'z(outt)'\nhint: did you mean 'out'?\n");
+  CHECK_THROWS_AS(resolve_probe("z(out,out)", circuit), InputError);
+}
+
+TEST_CASE("noise refuses an impedance probe", "[probe]") {
+  NoiseOptions options;
+  options.probe = "z(out)";
+  options.band = Band{10, 1e3};
+  CHECK_THROWS_AS(run_noise(rc_lowpass(1e3, 1e-9), options), InputError);
 }

@@ -309,6 +309,11 @@ NoiseResult run_noise(const Circuit& circuit, const NoiseOptions& options,
   if (auto problem = options.validate(); !problem.empty()) throw InputError::usage(problem);
   NoiseResult result;
   result.probe = resolve_probe(options.probe, circuit);
+  if (result.probe.kind == ProbeKind::impedance)
+    throw InputError::usage(
+        fmt::format("noise needs a voltage or current probe, not the impedance '{}'",
+                    result.probe.text),
+        "probe the node the impedance is seen at: --probe out");
   result.input = options.input;
   result.band = integration_band(options);
   result.temperature_kelvin = circuit.ambient_celsius + kZeroCelsius;

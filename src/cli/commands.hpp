@@ -13,5 +13,7 @@ void setup_show(CLI::App& app);
 void setup_check(CLI::App& app);
 void setup_diff(CLI::App& app);
 void setup_report(CLI::App& app);
+void setup_loop(CLI::App& app);
+void setup_poles(CLI::App& app);
 
 }  // namespace tacet::cli

@@ -21,11 +21,14 @@ std::string db_cell(std::complex<double> z) {
 std::string sweep_line(const AcResult& result) {
   const auto& f = result.frequencies;
   if (f.empty()) return "no frequencies\n";
-  bool currents = std::any_of(result.traces.begin(), result.traces.end(),
-                              [](const AcTrace& t) { return t.probe.kind == ProbeKind::current; });
-  return fmt::format("AC response, {} point{} from {}Hz to {}Hz; dB re 1 V{} (a gain when the source has ac=1)\n",
+  auto any = [&](ProbeKind kind) {
+    return std::any_of(result.traces.begin(), result.traces.end(),
+                       [&](const AcTrace& t) { return t.probe.kind == kind; });
+  };
+  return fmt::format("AC response, {} point{} from {}Hz to {}Hz; dB re 1 V{}{} (a gain when the source has ac=1)\n",
                      f.size(), f.size() == 1 ? "" : "s", format_si(f.front()), format_si(f.back()),
-                     currents ? " or 1 A" : "");
+                     any(ProbeKind::current) ? " or 1 A" : "",
+                     any(ProbeKind::impedance) ? " or 1 ohm" : "");
 }
 
 }  // namespace

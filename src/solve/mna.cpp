@@ -378,6 +378,23 @@ int MnaSystem::opamp_gain_row(std::size_t element) const {
   return circuit_->elements[element].kind == ElementKind::opamp ? branch_of_[element] : -1;
 }
 
+std::vector<MnaSystem::EntryPolynomial> MnaSystem::polynomials() const {
+  std::vector<EntryPolynomial> out;
+  out.reserve(coefficients_.size());
+  for (int col = 0; col < pattern_.n; ++col)
+    for (int k = pattern_.col_ptr[col]; k < pattern_.col_ptr[col + 1]; ++k) {
+      const Coefficients& c = coefficients_[static_cast<std::size_t>(k)];
+      out.push_back({pattern_.row_index[static_cast<std::size_t>(k)], col, c.c0, c.c1, c.c2});
+    }
+  return out;
+}
+
+int MnaSystem::opamp_source_unknown(std::size_t element) const {
+  const Element& e = circuit_->elements[element];
+  if (e.kind != ElementKind::opamp) return -1;
+  return internal_of_[element] >= 0 ? internal_of_[element] : node_unknown(e.nodes[2]);
+}
+
 std::string MnaSystem::unknown_name(int unknown) const {
   if (unknown < 0 || unknown >= pattern_.n) return fmt::format("unknown {}", unknown);
   if (unknown < node_unknowns_)

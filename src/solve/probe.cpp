@@ -54,14 +54,29 @@ Probe resolve_probe(const std::string& text, const Circuit& circuit) {
     probe.element = resolve_element(trimmed(t.substr(2, t.size() - 3)), t, circuit);
     return probe;
   }
-  const auto comma = t.find(',');
-  probe.plus = resolve_node(trimmed(t.substr(0, comma)), t, circuit);
+  std::string pair = t;
+  if (t.size() > 3 && t.rfind("z(", 0) == 0 && t.back() == ')') {
+    probe.kind = ProbeKind::impedance;
+    pair = t.substr(2, t.size() - 3);
+  }
+  const auto comma = pair.find(',');
+  probe.plus = resolve_node(trimmed(pair.substr(0, comma)), t, circuit);
   if (comma != std::string::npos)
-    probe.minus = resolve_node(trimmed(t.substr(comma + 1)), t, circuit);
+    probe.minus = resolve_node(trimmed(pair.substr(comma + 1)), t, circuit);
+  if (probe.kind == ProbeKind::impedance && probe.plus == probe.minus)
+    throw InputError::usage(fmt::format("probe '{}' names the same node twice", t),
+                            "z(out) is the impedance from out to gnd; z(a,b) between a and b");
   return probe;
 }
 
-const char* probe_unit(const Probe& probe) { return probe.kind == ProbeKind::current ? "A" : "V"; }
+const char* probe_unit(const Probe& probe) {
+  switch (probe.kind) {
+    case ProbeKind::voltage: return "V";
+    case ProbeKind::current: return "A";
+    case ProbeKind::impedance: return "ohm";
+  }
+  return "?";
+}
 
 std::complex<double> probe_functional(const Probe& probe, const MnaSystem& mna,
                                       std::complex<double> s, std::vector<ProbeTerm>& terms) {
@@ -71,7 +86,7 @@ std::complex<double> probe_functional(const Probe& probe, const MnaSystem& mna,
     if (unknown >= 0) terms.push_back({unknown, coefficient});
   };
   auto across = [&](int a, int b, std::complex<double> y) { add(a, y), add(b, -y); };
-  if (probe.kind == ProbeKind::voltage) {
+  if (probe.kind != ProbeKind::current) {  // an impedance: the voltage its test current makes
     across(probe.plus, probe.minus, 1.0);
     return 0.0;
   }

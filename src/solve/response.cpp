@@ -16,6 +16,7 @@ FrequencyResponse::FrequencyResponse(const Circuit& circuit, SolverKind solver)
   excitation_.resize(static_cast<std::size_t>(mna_.size()));
   x_.resize(excitation_.size());
   y_.resize(excitation_.size());
+  z_.resize(excitation_.size());
   scratch_.reserve(8);
   mna_.excitation(excitation_.data());
   mna_.assemble(0.0, values_.data());  // the constant entries, once
@@ -49,9 +50,20 @@ const std::vector<std::complex<double>>& FrequencyResponse::adjoint(const Probe&
   return y_;
 }
 
+std::complex<double> FrequencyResponse::impedance(const Probe& probe) {
+  std::fill(z_.begin(), z_.end(), std::complex<double>{});
+  const int plus = mna_.node_unknown(probe.plus), minus = mna_.node_unknown(probe.minus);
+  if (plus >= 0) z_[static_cast<std::size_t>(plus)] += 1.0;  // a unit current into plus
+  if (minus >= 0) z_[static_cast<std::size_t>(minus)] -= 1.0;
+  lu_->solve(z_.data());
+  return (plus >= 0 ? z_[static_cast<std::size_t>(plus)] : 0.0) -
+         (minus >= 0 ? z_[static_cast<std::size_t>(minus)] : 0.0);
+}
+
 std::complex<double> FrequencyResponse::value(const Probe& probe) {
   const std::complex<double> s(0, 2 * std::numbers::pi * solved_);
-  const auto v = probe_value(probe, mna_, s, x_.data(), scratch_);
+  const auto v = probe.kind == ProbeKind::impedance ? impedance(probe)
+                                                    : probe_value(probe, mna_, s, x_.data(), scratch_);
   if (!std::isfinite(v.real()) || !std::isfinite(v.imag()))
     throw SolveError::unsolvable_at(solved_, fmt::format("probe '{}' is not finite", probe.text));
   return v;

@@ -81,8 +81,20 @@ class MnaSystem {
   /// Row of an op amp's gain equation (its branch unknown's row); -1 if not an
   /// op amp. A voltage e in series with the + input enters as rhs[row] += e.
   int opamp_gain_row(std::size_t element) const;
+  /// Unknown of the voltage an op amp's gain source sets (its internal node
+  /// when rout > 0, else its output pin); -1 if not an op amp.
+  int opamp_source_unknown(std::size_t element) const;
   /// For people: "node out", "current in V1", "internal node of U1".
   std::string unknown_name(int unknown) const;
+
+  /// One matrix entry as the polynomial c0 + c1 s + c2 s^2 it is.
+  struct EntryPolynomial {
+    int row, col;
+    double c0, c1, c2;
+  };
+  /// Every pattern entry (CSC order), for analyses that need the matrices
+  /// themselves rather than their value at one s (poles: G, C and the s^2 part).
+  std::vector<EntryPolynomial> polynomials() const;
 
   /// Position of entry (row, col) in the values array; -1 if not in the pattern.
   int slot(int row, int col) const;

@@ -2,12 +2,18 @@
 // What a user asks to see: a node voltage (`out`), a node pair (`out,ref`),
 // or the current through an element (`i(R1)`, flowing from its first
 // connection through it to its second; for an op amp, `i(U1)` is the current
-// its output delivers into the output pin).
+// its output delivers into the output pin), or the driving-point impedance
+// at a node (`z(out)`, to gnd) or between two nodes (`z(a,b)`): V/I for a unit
+// test current into the first node and out of the second, with every
+// independent source zeroed (voltage sources shorted, current sources open).
 //
 // Every probe is a linear functional of the MNA unknowns x plus a constant:
 //   value = constant + sum_k coefficient_k x_k
 // (a current source's probe is just its phasor). The noise analysis uses the
 // coefficients as the right-hand side of its adjoint (transposed) solve.
+// An impedance probe is no functional of the circuit's solution: it needs a
+// solve of its own (FrequencyResponse::value does it), so analyses built on
+// the functional (noise) refuse it.
 
 #include <complex>
 #include <cstddef>
@@ -19,12 +25,12 @@
 
 namespace tacet {
 
-enum class ProbeKind { voltage, current };
+enum class ProbeKind { voltage, current, impedance };
 
 struct Probe {
   std::string text;  ///< as the user wrote it, for headers and JSON
   ProbeKind kind = ProbeKind::voltage;
-  int plus = 0;   ///< voltage: node ids; gnd is 0
+  int plus = 0;   ///< voltage, impedance: node ids; gnd is 0
   int minus = 0;
   std::size_t element = 0;  ///< current: index into Circuit::elements
 };
@@ -33,7 +39,7 @@ struct Probe {
 /// unknown node or element, with the nearest name as a hint.
 Probe resolve_probe(const std::string& text, const Circuit& circuit);
 
-/// The unit a probe's values carry: "V" or "A".
+/// The unit a probe's values carry: "V", "A" or "ohm".
 const char* probe_unit(const Probe& probe);
 
 /// One term of a probe's functional: coefficient times unknown `unknown`.

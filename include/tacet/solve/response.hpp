@@ -28,6 +28,7 @@ class FrequencyResponse {
   /// unless f is the frequency solved last.
   void solve_at(double f);
   /// The probe's phasor at the last frequency solved; SolveError if not finite.
+  /// An impedance probe costs one more solve on the same factorisation.
   std::complex<double> value(const Probe& probe);
   /// solve_at(f), then value(probe).
   std::complex<double> at(const Probe& probe, double f);
@@ -42,9 +43,11 @@ class FrequencyResponse {
   SparseLu& lu() { return *lu_; }
 
  private:
+  std::complex<double> impedance(const Probe& probe);
+
   MnaSystem mna_;
   std::unique_ptr<SparseLu> lu_;
-  std::vector<std::complex<double>> values_, excitation_, x_, y_;
+  std::vector<std::complex<double>> values_, excitation_, x_, y_, z_;
   std::vector<ProbeTerm> scratch_;
   double factored_ = -1;  ///< Hz of the current factorisation; -1: none
   double solved_ = -1;    ///< Hz of x_; -1: none

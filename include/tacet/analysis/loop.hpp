@@ -1,0 +1,101 @@
+#pragma once
+// Loop gain of every op amp, with the loop closed and no element added.
+//
+// T(s) is Bode's return ratio of the op amp's internal gain source
+// A(s)(v+ - v-): with every independent source zeroed, that controlled source
+// is replaced by an independent one of value 1, and T is minus what the
+// controlled source would then produce. With h(s) the transfer from the
+// source's voltage v_x to its control voltage d = v+ - v-, T = -A(s) h(s).
+//
+// One solve per op amp on the closed-loop factorisation gives h: a unit
+// voltage e in series with the + input (rhs of the op amp's gain row) makes
+// v_x / A - d = e, so d = h v_x and h = d / v_x, each read from the solution.
+// Both are components of one solve, so no difference of nearly equal numbers
+// is formed at either end of the range (|T| >> 1 or |T| << 1).
+//
+// Every other op amp stays active: in nested loops each op amp's T is its own
+// return ratio with the rest of the circuit, other loops closed, around it.
+//
+// Crossovers (|T| = 1) and phase crossovers (unwrapped phase at -180 - 360k)
+// are bracketed on a scan grid of at least 100 points a decade and then
+// located by bisection on the continuous response to 1e-12 relative.
+
+#include <complex>
+#include <cstddef>
+#include <optional>
+#include <string>
+#include <vector>
+
+#include "tacet/analysis/ac.hpp"
+#include "tacet/circuit/circuit.hpp"
+#include "tacet/solve/response.hpp"
+
+namespace tacet {
+
+struct LoopOptions {
+  std::optional<Sweep> sweep;        ///< nullopt: default_loop_sweep(circuit)
+  std::vector<std::string> opamps;   ///< names; empty: every op amp, in netlist order
+  SolverKind solver = SolverKind::klu;
+};
+
+struct LoopCrossover {
+  double f = 0;             ///< Hz, |T| = 1
+  double phase_margin = 0;  ///< deg, 180 + unwrapped arg T
+};
+
+struct LoopPhaseCrossover {
+  double f = 0;            ///< Hz, unwrapped arg T = -180 - 360k
+  double gain_margin = 0;  ///< dB, -20 log10 |T|
+};
+
+struct LoopTrace {
+  std::string opamp;
+  std::vector<std::complex<double>> t;  ///< T at each sweep frequency, V/V
+  std::vector<double> deg;              ///< arg T unwrapped along the sweep, degrees
+  std::vector<LoopCrossover> crossovers;             ///< sorted by frequency
+  std::vector<LoopPhaseCrossover> phase_crossovers;  ///< sorted by frequency
+  std::optional<double> phase_margin;  ///< deg, smallest over crossovers; none: no crossover
+  std::optional<double> gain_margin;   ///< dB, smallest over phase crossovers
+};
+
+struct LoopResult {
+  Sweep sweep;                      ///< the sweep used (the default when none was given)
+  std::vector<double> frequencies;  ///< Hz
+  std::vector<LoopTrace> loops;     ///< one per op amp
+};
+
+/// From a decade below the lowest dominant pole (gbw/aol) of any op amp to two
+/// decades above the highest gbw or fp2, on whole decades, 20 points a decade.
+Sweep default_loop_sweep(const Circuit& circuit);
+
+/// Element indices of the named op amps (every op amp when `names` is empty).
+/// Throws InputError for a name that is not an op amp, with the nearest op
+/// amp's name as a hint, and when the circuit has no op amp.
+std::vector<std::size_t> resolve_opamps(const Circuit& circuit,
+                                        const std::vector<std::string>& names);
+
+/// The op amp's open-loop gain A(s), the same function its MNA row divides by.
+std::complex<double> opamp_gain(const OpAmpModel& model, std::complex<double> s);
+
+/// T of one op amp at one frequency on a shared closed-loop factorisation:
+/// the first call at f factors, each op amp then costs one solve.
+class LoopGain {
+ public:
+  explicit LoopGain(const Circuit& circuit, SolverKind solver = SolverKind::klu);
+  std::complex<double> at(std::size_t opamp, double f);
+  FrequencyResponse& response() { return response_; }
+
+ private:
+  FrequencyResponse response_;
+  std::vector<std::complex<double>> rhs_;
+};
+
+/// Throws InputError for a bad sweep or op-amp name, SolveError when the
+/// circuit cannot be solved at some frequency.
+LoopResult run_loop(const Circuit& circuit, const LoopOptions& options);
+
+/// The unwrapped phase step from `previous` (deg) to the phase of `t`: the
+/// nearest value congruent to arg t modulo 360.
+double unwrap_deg(double previous, std::complex<double> t);
+
+}  // namespace tacet

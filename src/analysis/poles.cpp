@@ -1,0 +1,175 @@
+// Poles and zeros: a dense linear pencil from the MNA polynomials, then
+// Eigen's real QZ; see poles.hpp for the method and its limits.
+
+#include "tacet/analysis/poles.hpp"
+
+#include <Eigen/Dense>
+#include <Eigen/Eigenvalues>
+#include <fmt/format.h>
+
+#include <algorithm>
+#include <cmath>
+
+#include "tacet/analysis/loop.hpp"
+#include "tacet/common/constants.hpp"
+#include "tacet/common/errors.hpp"
+#include "tacet/common/spelling.hpp"
+#include "tacet/solve/mna.hpp"
+#include "tacet/solve/probe.hpp"
+
+namespace tacet {
+namespace {
+
+using Matrix = Eigen::MatrixXd;
+
+// Zeros beyond this many times the highest pole's |s| are taken as infinite.
+constexpr double kZeroReach = 1e4;
+
+struct Pencil {
+  Matrix g, c;
+};
+
+// G + s C from the MNA polynomials, one more unknown per quadratic entry;
+// `extra` rows and columns are left zero at the end for the caller.
+Pencil linear_pencil(const MnaSystem& mna, int extra) {
+  const auto entries = mna.polynomials();
+  int n = mna.size();
+  const int quadratic = static_cast<int>(
+      std::count_if(entries.begin(), entries.end(), [](const auto& e) { return e.c2 != 0; }));
+  const int size = n + quadratic + extra;
+  if (size > kMaxPoleUnknowns)
+    throw InputError::usage(
+        fmt::format("poles: the circuit has {} unknowns; the dense eigenvalue method serves at "
+                    "most {}",
+                    size, kMaxPoleUnknowns),
+        "use tacet loop for each op amp's margins, or analyse the stage on its own");
+  Pencil p{Matrix::Zero(size, size), Matrix::Zero(size, size)};
+  for (const auto& e : entries) {
+    p.g(e.row, e.col) += e.c0;
+    if (e.c2 == 0) {
+      p.c(e.row, e.col) += e.c1;
+      continue;
+    }
+    const double sigma = e.c1 != 0 ? std::abs(e.c1 / e.c2) : 1 / std::sqrt(std::abs(e.c2));
+    const int w = n++;  // w = (s / sigma) x_col
+    p.g(w, w) = 1;
+    p.c(w, e.col) = -1 / sigma;
+    p.c(e.row, e.col) += e.c1;
+    p.c(e.row, w) += e.c2 * sigma;
+  }
+  return p;
+}
+
+// Finite generalised eigenvalues s of (G + s C) x = 0.
+std::vector<Root> finite_roots(const Pencil& p) {
+  const double norm_c = p.c.norm();
+  if (norm_c == 0) return {};  // no storage element: no natural frequency
+  const double w0 = p.g.norm() / norm_c;
+  // G x = lambda (w0 C) x with lambda = -s / w0.
+  Eigen::GeneralizedEigenSolver<Matrix> qz(p.g, w0 * p.c, false);
+  if (qz.info() != Eigen::Success)
+    throw SolveError::unsolvable("the eigenvalue iteration (QZ) did not converge");
+  std::vector<Root> roots;
+  const auto& alpha = qz.alphas();
+  const auto& beta = qz.betas();
+  for (Eigen::Index k = 0; k < alpha.size(); ++k) {
+    if (!(std::abs(alpha(k)) < 1e10 * std::abs(beta(k)))) continue;  // infinite
+    std::complex<double> s = -w0 * alpha(k) / beta(k);
+    if (std::abs(s) < 1e-12 * w0) s = 0;  // a pole at the origin, not a rounding of it
+    if (std::abs(s.imag()) < 1e-12 * std::abs(s)) s.imag(0);
+    roots.push_back({s});
+  }
+  std::sort(roots.begin(), roots.end(), [](const Root& a, const Root& b) {
+    return a.f0() != b.f0() ? a.f0() < b.f0() : a.s.imag() < b.s.imag();
+  });
+  return roots;
+}
+
+std::size_t resolve_source(const Circuit& circuit, const std::string& name) {
+  std::vector<std::string> sources;
+  for (const auto& e : circuit.elements)
+    if (e.kind == ElementKind::vsource || e.kind == ElementKind::isource) sources.push_back(e.name);
+  if (const auto element = circuit.find_element(name)) {
+    const auto kind = circuit.elements[*element].kind;
+    if (kind == ElementKind::vsource || kind == ElementKind::isource) return *element;
+    throw InputError::usage(
+        fmt::format("--input '{}' is a {}, not a source", name, to_keyword(kind)),
+        choice_hint(name, sources, "sources"));
+  }
+  throw InputError::unknown("source", name, "--input", nearest_word(name, sources));
+}
+
+std::vector<Root> transfer_zeros(const MnaSystem& mna, const Probe& probe, std::size_t input) {
+  const int n = static_cast<int>(linear_pencil(mna, 0).g.rows());
+  Pencil p = linear_pencil(mna, 1);
+  const Element& source = mna.circuit().elements[input];
+  if (source.kind == ElementKind::vsource) {
+    p.g(mna.branch_unknown(input), n) = -1;
+  } else {  // a unit current out of its first node, into its second
+    const int plus = mna.node_unknown(source.nodes[0]), minus = mna.node_unknown(source.nodes[1]);
+    if (plus >= 0) p.g(plus, n) = 1;
+    if (minus >= 0) p.g(minus, n) = -1;
+  }
+  std::vector<ProbeTerm> at0, at1;
+  probe_functional(probe, mna, 0.0, at0);
+  probe_functional(probe, mna, 1.0, at1);
+  for (std::size_t k = 0; k < at0.size(); ++k) {
+    p.g(n, at0[k].unknown) += at0[k].coefficient.real();
+    p.c(n, at1[k].unknown) += (at1[k].coefficient - at0[k].coefficient).real();
+  }
+  return finite_roots(p);
+}
+
+std::vector<std::string> unstable_loops(const Circuit& circuit) {
+  std::vector<std::string> names;
+  bool any = false;
+  for (const auto& e : circuit.elements) any = any || e.kind == ElementKind::opamp;
+  if (!any) return names;
+  for (const auto& loop : run_loop(circuit, LoopOptions{}).loops)
+    if ((loop.phase_margin && *loop.phase_margin < 0) || (loop.gain_margin && *loop.gain_margin < 0))
+      names.push_back(loop.opamp);
+  return names;
+}
+
+}  // namespace
+
+double Root::re_hz() const { return s.real() / kTwoPi; }
+double Root::im_hz() const { return s.imag() / kTwoPi; }
+double Root::f0() const { return std::abs(s) / kTwoPi; }
+double Root::q() const { return std::abs(s) / (-2 * s.real()); }
+
+PolesResult run_poles(const Circuit& circuit, const PolesOptions& options) {
+  if (options.probe.empty() != options.input.empty())
+    throw InputError::usage("zeros need both --probe and --input",
+                            "--probe out --input Vin, or neither for the poles alone");
+  PolesResult result;
+  std::optional<Probe> probe;
+  std::size_t input = 0;
+  if (!options.probe.empty()) {
+    probe = resolve_probe(options.probe, circuit);
+    if (probe->kind == ProbeKind::impedance)
+      throw InputError::usage("zeros need a voltage or current probe, not an impedance");
+    input = resolve_source(circuit, options.input);
+  }
+  const MnaSystem mna(circuit);
+  const Pencil pencil = linear_pencil(mna, 0);
+  result.unknowns = static_cast<int>(pencil.g.rows());
+  result.poles = finite_roots(pencil);
+  for (const Root& pole : result.poles) result.stable = result.stable && pole.s.real() < 0;
+  if (probe) {
+    result.probe = probe->text;
+    result.input = options.input;
+    result.zeros = transfer_zeros(mna, *probe, input);
+    // The system pencil's infinite eigenvalues sit in longer chains than the
+    // circuit's, and QZ resolves them only to about eps^(1/k): a "zero" far
+    // beyond every pole is one of them, not a property of the transfer.
+    double highest = 0;
+    for (const Root& pole : result.poles) highest = std::max(highest, std::abs(pole.s));
+    if (highest > 0)
+      std::erase_if(result.zeros, [&](const Root& z) { return std::abs(z.s) > kZeroReach * highest; });
+  }
+  if (!result.stable) result.unstable_loops = unstable_loops(circuit);
+  return result;
+}
+
+}  // namespace tacet

@@ -1,0 +1,6 @@
+loop
+@/loop_follower.tacet
+--opamp
+U2
+--output
+@/loop_bad_opamp.out

@@ -1,0 +1,6 @@
+loop
+@/loop_follower.tacet
+--format
+json
+--at
+1M,10M

@@ -1,0 +1,4 @@
+poles
+@/loop_follower.tacet
+--format
+json

@@ -1,0 +1,6 @@
+poles
+@/loop_follower.tacet
+--probe
+out
+--input
+Vin
