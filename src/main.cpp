@@ -13,6 +13,8 @@ int main(int argc, char** argv) {
   CLI::App app{"tacet: small-signal solver for precision op-amp stages"};
   app.set_version_flag("--version", std::string("tacet ") + TACET_VERSION);
   app.require_subcommand(1);
+  app.footer("'--' ends the options: a netlist whose name starts with '-' follows it "
+             "(tacet show -- -x.tacet).");
   tacet::cli::setup_ac(app);
   tacet::cli::setup_noise(app);
   tacet::cli::setup_bias(app);

@@ -122,7 +122,10 @@ Circuit load(const CommonOptions& options, ReportContext& context) {
     auto eq = assignment.find('=');
     if (eq == std::string::npos || eq == 0 || eq + 1 == assignment.size())
       throw InputError::bad_value("--set", assignment, "NAME=VALUE", "write --set R1=12k");
-    elaborate.overrides.push_back({assignment.substr(0, eq), assignment.substr(eq + 1)});
+    const std::string name = assignment.substr(0, eq);
+    // The later of two --set for one name wins (docs/language.md, Overrides).
+    std::erase_if(elaborate.overrides, [&](const Override& o) { return o.name == name; });
+    elaborate.overrides.push_back({name, assignment.substr(eq + 1)});
   }
   if (!options.ambient.empty()) {
     elaborate.ambient_celsius = parse_quantity("--ambient", options.ambient, Dimension::temperature);
