@@ -242,6 +242,8 @@ DiffResult run_diff(const Circuit& old_circuit, const Circuit& new_circuit, cons
   if (old_side.bias && new_side.bias) result.dc = dc_changes(*old_side.bias, *new_side.bias);
   const auto& dc_error = old_side.bias ? new_side.bias_error : old_side.bias_error;
   if (dc_error) result.dc_note = dc_error->sentence();
+  if (static_cast<bool>(old_side.bias) != static_cast<bool>(new_side.bias))
+    result.dc_unsolved_side = old_side.bias ? "new" : "old";
   if (!old_circuit.specs.empty() || !new_circuit.specs.empty()) {
     const CheckResult before = run_check(old_circuit, old_side.shared());
     const CheckResult after = run_check(new_circuit, new_side.shared());

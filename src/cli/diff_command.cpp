@@ -79,6 +79,14 @@ void run(const DiffCommandOptions& o) {
                             "--band 20..20k --fail-above 5%");
   const DiffResult result = run_diff(old_circuit, new_circuit, options);
   write_output(o.common.output, diff_writers().write(format, result, context));
+  // A side that cannot be analysed is a failure for CI whatever the thresholds.
+  if (!result.dc_unsolved_side.empty()) {
+    constexpr std::string_view said = "circuit cannot be solved at DC: ";
+    std::string_view why = result.dc_note;
+    if (why.substr(0, said.size()) == said) why.remove_prefix(said.size());
+    throw SolveError::unsolvable_at(
+        0, fmt::format("the {} revision (the other has a DC point): {}", result.dc_unsolved_side, why));
+  }
   if (exceeds(result, thresholds)) throw SpecFailed();
 }
 

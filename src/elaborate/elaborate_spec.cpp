@@ -1,6 +1,8 @@
 // Elaboration of `spec` lines: the kind, its options with their units, the
 // probe and every name checked against the flat circuit.
 
+#include <cmath>
+
 #include <fmt/format.h>
 
 #include "elaborate/elaborator.hpp"
@@ -216,6 +218,11 @@ bool Elaborator::read_spec_limits(Spec& spec, const ast::Spec& ast_spec, const S
       spec.min = spec_number(given, "min", Dimension::frequency, ok);
       spec.max = spec_number(given, "max", Dimension::frequency, ok);
       if (auto drop = spec_number(given, "drop", Dimension::decibel, ok)) spec.drop = std::abs(*drop);
+      if (ok && !(spec.drop > 0)) {  // a 0 dB drop finds the reference itself and always passes
+        const KeyValue& drop = given.at("drop");
+        error(drop.file, extent(*drop.value), "drop= must be above 0 dB", "write drop=3dB");
+        return false;
+      }
       if (!given.count("from")) spec.from = upper ? spec.ref : spec.ref * 1e-6;
       if (!given.count("to")) spec.to = upper ? spec.ref * 1e6 : spec.ref;
       return needs_a_limit();
@@ -229,6 +236,12 @@ bool Elaborator::read_spec_limits(Spec& spec, const ast::Spec& ast_spec, const S
       spec.unit = SpecUnit::db;
       spec.min = spec_number(given, "min", Dimension::decibel, ok);
       spec.level = spec_number(given, "level", Dimension::voltage, ok).value_or(0);
+      if (ok && !(spec.level > 0 && std::isfinite(spec.level))) {
+        const KeyValue& level = given.at("level");
+        error(level.file, extent(*level.value), "level= must be a finite level above 0 V",
+              "the signal's rms level at the input, e.g. level=2V");
+        return false;
+      }
       return read_snr_input(spec, given);
     case SpecKind::rails:
       spec.unit = SpecUnit::volts;

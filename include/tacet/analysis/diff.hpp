@@ -77,6 +77,9 @@ struct DiffResult {
   std::vector<NoiseChange> noise;  ///< per voltage probe, when a band is given
   std::vector<NodeChange> dc;      ///< nodes on both sides whose DC point or band moved, largest first
   std::string dc_note;             ///< why there is no DC comparison (no DC path), or empty
+  /// "old" or "new" when only that side has no DC point: the revision broke
+  /// (or mended) a DC path, which the diff reports and then fails on (exit 3).
+  std::string dc_unsolved_side;
   AcResult old_response;
   AcResult new_response;
 };

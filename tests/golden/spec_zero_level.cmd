@@ -1,0 +1,2 @@
+check
+@/spec_zero_level.tacet
