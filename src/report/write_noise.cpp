@@ -93,12 +93,19 @@ std::string contributor_rows(const NoiseResult& r, std::size_t top) {
 std::string mechanism_line(const NoiseResult& r) {
   if (!(r.total_rms > 0)) return {};
   std::array<double, 4> share{};
-  for (const auto& c : r.contributors) share[static_cast<std::size_t>(c.mechanism)] += c.share;
+  std::array<bool, 4> present{};  // a circuit without op amps has no en or in rows to show
+  for (const auto& c : r.contributors) {
+    share[static_cast<std::size_t>(c.mechanism)] += c.share;
+    present[static_cast<std::size_t>(c.mechanism)] = true;
+  }
   std::string out = "by mechanism:";
+  const char* separator = " ";
   for (auto m : {NoiseMechanism::thermal, NoiseMechanism::en, NoiseMechanism::in_plus,
-                 NoiseMechanism::in_minus})
-    out += fmt::format(" {} {}{}", to_string(m), percent(share[static_cast<std::size_t>(m)]),
-                       m == NoiseMechanism::in_minus ? "" : ",");
+                 NoiseMechanism::in_minus}) {
+    if (!present[static_cast<std::size_t>(m)]) continue;
+    out += fmt::format("{}{} {}", separator, to_string(m), percent(share[static_cast<std::size_t>(m)]));
+    separator = ", ";
+  }
   return out + "\n";
 }
 
