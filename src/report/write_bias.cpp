@@ -182,7 +182,8 @@ std::string bias_table(const BiasReport& report, const ReportContext& context) {
   out += opamp_table(bias);
   out += bias.warnings.empty() ? "" : "\n" + lines(bias.warnings, "warning: ");
   out += "\n" + headroom_section(headroom);
-  out += "\nNodes: nominal with ib flowing, worst-case band over vos and ios, root-sum-square\n\n";
+  out += "\nNodes: nominal with each model's ib flowing (typical, not a limit), worst-case band "
+         "over every vos and ios sign at their limits, root-sum-square\n\n";
   return out + node_table(bias);
 }
 
