@@ -45,6 +45,7 @@ const char* to_string(SpecUnit unit) {
   switch (unit) {
     case SpecUnit::db: return "dB";
     case SpecUnit::ratio: return "V/V";
+    case SpecUnit::amps_per_volt: return "A/V";
     case SpecUnit::degrees: return "deg";
     case SpecUnit::hertz: return "Hz";
     case SpecUnit::volts: return "V";

@@ -63,7 +63,7 @@ bool written_in_db(const ast::Expr& expr) {
 /// The limit of a gain spec written as a ratio that lies below 0, if any: a
 /// ratio limit bounds |H|, a magnitude, so it can never be met.
 const char* negative_ratio_limit(const Spec& spec) {
-  if (spec.unit != SpecUnit::ratio) return nullptr;
+  if (spec.unit != SpecUnit::ratio && spec.unit != SpecUnit::amps_per_volt) return nullptr;
   if (spec.min && *spec.min < 0) return "min";
   if (spec.max && *spec.max < 0) return "max";
   return nullptr;
@@ -299,6 +299,8 @@ void Elaborator::elaborate_spec(const ast::Spec& ast_spec, int file) {
   ok = read_spec_band(spec, given);
   if (!read_spec_limits(spec, ast_spec, given, ok)) return;  // limits in the unit the spec reports
   if (!attach_spec_probe(spec, ast_spec, given, file)) return;
+  // A gain on a branch current i(NAME) is amperes per volt of the source, not V/V.
+  if (spec.unit == SpecUnit::ratio && spec.probe.rfind("i(", 0) == 0) spec.unit = SpecUnit::amps_per_volt;
   if (ok) circuit_.specs.push_back(std::move(spec));
 }
 

@@ -14,6 +14,7 @@ std::string format_spec_value(double value, SpecUnit unit) {
   switch (unit) {
     case SpecUnit::db: return fmt::format("{:.4f} dB", value);
     case SpecUnit::ratio: return fmt::format("{:.6g} V/V", value);
+    case SpecUnit::amps_per_volt: return fmt::format("{:.6g} A/V", value);
     case SpecUnit::degrees: return fmt::format("{:.2f} deg", value);
     case SpecUnit::hertz: return format_si(value, 5) + "Hz";
     case SpecUnit::volts: return format_si(value, 4) + "V";
@@ -37,6 +38,7 @@ std::string unit_suffix(SpecUnit unit) {
   switch (unit) {
     case SpecUnit::db: return " dB";
     case SpecUnit::ratio: return " V/V";
+    case SpecUnit::amps_per_volt: return " A/V";
     case SpecUnit::degrees: return " deg";
     case SpecUnit::hertz:
     case SpecUnit::volts: return "";

@@ -30,7 +30,9 @@ std::optional<SpecKind> parse_spec_kind(std::string_view text);
 const std::vector<std::string>& spec_kind_names();
 
 /// How a spec's value and limits are written and shown.
-enum class SpecUnit { db, ratio, degrees, hertz, volts };
+/// `ratio` is V/V; `amps_per_volt` the ratio of a branch-current probe i(NAME)
+/// to a voltage source's ac, as a gain spec on a current reports it.
+enum class SpecUnit { db, ratio, amps_per_volt, degrees, hertz, volts };
 const char* to_string(SpecUnit unit);
 
 struct Spec {

@@ -1,0 +1,2 @@
+check
+@/spec_current_gain.tacet
