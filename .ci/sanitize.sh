@@ -1,5 +1,6 @@
 #!/usr/bin/env bash
-# Part of the test command (.ci/test.sh), runnable alone after .ci/deps.sh.
+# The sanitizer build, its whole suite and the fuzz smoke test; run after .ci/deps.sh.
+# To join .ci/test.sh once a clean run of it passes (DEVELOPERS.md).
 set -euo pipefail
 cd "$(dirname "$0")/.."
 # The same suite again under AddressSanitizer and UndefinedBehaviorSanitizer

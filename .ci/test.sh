@@ -6,6 +6,3 @@ source .ci/deps.sh
 cmake -S . -B build -DCMAKE_BUILD_TYPE=RelWithDebInfo -DTACET_WERROR=ON
 cmake --build build -j"$(nproc)"
 ctest --test-dir build --output-on-failure -j"$(nproc)"
-
-# The same suite again under the sanitizers, and the fuzz smoke test.
-bash .ci/sanitize.sh
