@@ -152,3 +152,106 @@ TEST_CASE("what cannot be evaluated is reported word for word", "[expression]") 
         "par(1k)\n"
         "^~~~~~~\n");
 }
+
+// ---- expressions in s -------------------------------------------------------
+
+namespace {
+
+struct Compiled {
+  std::optional<ComplexExpression> expression;
+  std::string diagnostics;
+};
+
+Compiled compile_text(const std::string& text, const Scope& scope = {}) {
+  SourceManager sources;
+  const int id = sources.add("expr", text);
+  Diagnostics diagnostics(sources);
+  const auto expr = parse_expression(sources.file(id).text, id, diagnostics);
+  REQUIRE(expr.has_value());
+  Compiled out;
+  out.expression = compile_in_s(*expr, id, scope, diagnostics);
+  out.diagnostics = diagnostics.render_all();
+  return out;
+}
+
+std::complex<double> value_in_s(const std::string& text, std::complex<double> s, const Scope& scope = {}) {
+  const Compiled c = compile_text(text, scope);
+  INFO(c.diagnostics);
+  REQUIRE(c.expression.has_value());
+  return (*c.expression)(s);
+}
+
+}  // namespace
+
+TEST_CASE("an expression in s does complex arithmetic with s and j", "[expression]") {
+  using C = std::complex<double>;
+  const C s(1, 2);
+  // Against std::complex, the C++ standard's complex arithmetic.
+  CHECK(value_in_s("(1 + s*2) / (3 - j)", s) == (1.0 + s * 2.0) / (3.0 - C(0, 1)));
+  CHECK(value_in_s("-s + 2*j", s) == -s + C(0, 2));
+  CHECK(value_in_s("s^2", C(0, 1)) == C(-1, 0));  // a whole power is exact: j^2 = -1
+  CHECK(value_in_s("s^-2", C(0, 2)) == C(-0.25, 0));
+  CHECK(value_in_s("2^s", C(1, 0)) == C(2, 0));
+  CHECK(std::abs(value_in_s("s^0.5", C(-4, 0)) - C(0, 2)) < 1e-15);  // principal branch
+}
+
+TEST_CASE("functions of an expression in s take complex arguments", "[expression]") {
+  using C = std::complex<double>;
+  CHECK(std::abs(value_in_s("sqrt(s)", C(-4, 0)) - C(0, 2)) < 1e-15);
+  CHECK(std::abs(value_in_s("exp(j*pi)", C(0, 0)) - C(-1, 0)) < 1e-15);  // Euler's identity
+  CHECK(value_in_s("abs(s)", C(3, 4)) == C(5, 0));
+  CHECK(value_in_s("re(s) + im(s)", C(3, 4)) == C(7, 0));
+  CHECK(value_in_s("conj(s)", C(3, 4)) == C(3, -4));
+  CHECK(value_in_s("arg(s)", C(0, 1)) == C(std::acos(0.0), 0));
+  CHECK(value_in_s("db(s)", C(0, 10)) == C(20, 0));
+  CHECK(std::abs(value_in_s("undb(20)", C(0, 0)) - C(10, 0)) < 1e-14);
+  // Two impedances in parallel, Z1 Z2 / (Z1 + Z2): a resistor and a capacitor (Kirchhoff's laws).
+  const C s(0, 1e4);
+  CHECK(std::abs(value_in_s("par(1k, 1/(s*100n))", s) - (1e3 / (1.0 + s * 1e3 * 100e-9))) < 1e-12);
+  CHECK(std::abs(value_in_s("log10(s) + ln(s)", C(10, 0)) - C(1 + std::log(10.0), 0)) < 1e-15);
+}
+
+TEST_CASE("an expression in s reads params, units and dB as a param does", "[expression]") {
+  using C = std::complex<double>;
+  Scope scope;
+  scope.params["tau"] = {75e-6, {}};
+  scope.params["s"] = {42, {}};  // a param named s is shadowed by the complex frequency
+  const C s(0, 1 / 75e-6);
+  CHECK(std::abs(value_in_s("1/(1 + s*tau)", s, scope) - 1.0 / C(1, 1)) < 1e-15);
+  CHECK(std::abs(value_in_s("1/(1 + s*75u)", s) - 1.0 / C(1, 1)) < 1e-15);
+  CHECK(std::abs(value_in_s("-6dB * s", C(1, 0)) - C(std::pow(10.0, -6 / 20.0), 0)) < 1e-15);
+  CHECK(value_in_s("max(2, 3) * s", C(0, 1)) == C(0, 3));  // a real function where s is absent
+}
+
+TEST_CASE("what an expression in s cannot compile is reported word for word", "[expression]") {
+  CHECK(compile_text("1/(1 + s*tua)").diagnostics ==
+        "expr:1:10: error: unknown name 'tua'\n"
+        "1/(1 + s*tua)\n"
+        "         ^~~\n"
+        "hint: declare it with 'param tua = ...' before this line\n");
+  CHECK(compile_text("min(s, 2)").diagnostics ==
+        "expr:1:1: error: unknown function 'min' in an expression in s\n"
+        "min(s, 2)\n"
+        "^~~\n"
+        "hint: did you mean 'sin'?\n");
+  CHECK(compile_text("par(s)").diagnostics ==
+        "expr:1:1: error: par() takes 2 arguments, not 1\n"
+        "par(s)\n"
+        "^~~~~~\n");
+}
+
+TEST_CASE("s and j in a real value are an error at their position", "[expression]") {
+  CHECK(evaluate_text("1k * (1 + s)", Dimension::resistance).diagnostics ==
+        "expr:1:11: error: 's' is the complex frequency, which only an expression in s may use\n"
+        "1k * (1 + s)\n"
+        "          ^\n"
+        "hint: a value here is a real number; expressions in s are written after target=\n");
+  CHECK(evaluate_text("2*j", Dimension::none).diagnostics ==
+        "expr:1:3: error: 'j' is the imaginary unit, which only an expression in s may use\n"
+        "2*j\n"
+        "  ^\n"
+        "hint: a value here is a real number; expressions in s are written after target=\n");
+  Scope scope;  // a param named s keeps working in a real value, as it always has
+  scope.params["s"] = {2, {}};
+  CHECK(value_of("s * 3", Dimension::none, scope) == 6);
+}
