@@ -8,6 +8,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <optional>
 
 #include "tacet/common/errors.hpp"
 #include "tacet/common/format.hpp"
@@ -88,6 +89,7 @@ AcResult run_ac(const Circuit& circuit, const AcOptions& options) {
   if (auto problem = options.sweep.validate(); !problem.empty())
     throw InputError::usage(problem);
   for (const auto& text : options.probes) resolve_probe(text, circuit);
+  if (!options.input.empty()) resolve_source(options.input, circuit, "--input");
   FrequencyResponse response(circuit, options.solver);
   return run_ac(circuit, options, response);
 }
@@ -101,8 +103,19 @@ AcResult run_ac(const Circuit& circuit, const AcOptions& options, FrequencyRespo
   result.frequencies = options.sweep.frequencies();
   for (auto& trace : result.traces) trace.values.resize(result.frequencies.size());
 
+  result.input = options.input;
+  std::optional<std::size_t> source;
+  if (!options.input.empty()) {
+    source = resolve_source(options.input, circuit, "--input");
+    result.input_unit = traits(circuit.elements[*source].kind).drive == Drive::current ? "A" : "V";
+  }
   for (std::size_t point = 0; point < result.frequencies.size(); ++point) {
-    response.solve_at(result.frequencies[point]);
+    const double f = result.frequencies[point];
+    if (source) {
+      for (auto& trace : result.traces) trace.values[point] = response.transfer_at(trace.probe, *source, f);
+      continue;
+    }
+    response.solve_at(f);
     for (auto& trace : result.traces) trace.values[point] = response.value(trace.probe);
   }
   return result;

@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <cmath>
+#include <functional>
 #include <limits>
 #include <memory>
 
@@ -70,6 +71,9 @@ class SpecMeter {
   SpecResult measure(const Spec& spec) {
     SpecResult r{spec, std::nullopt, 0, false, 0, {}, {}, {}};
     if (!spec.probe.empty()) probe_ = resolve_probe(spec.probe, circuit_);
+    input_.reset();
+    if (!spec.input.empty() && spec.kind != SpecKind::snr)
+      input_ = resolve_source(spec.input, circuit_, "input=");
     try {
       measure_kind(r);
     } catch (const SolveError& e) {
@@ -99,6 +103,8 @@ class SpecMeter {
       case SpecKind::snr: noise(r); break;
       case SpecKind::offset: offset(r); break;
       case SpecKind::rails: rails(r); break;
+      case SpecKind::deviation: deviation(r); break;
+      case SpecKind::mask: mask(r); break;
     }
   }
 
@@ -108,7 +114,10 @@ class SpecMeter {
     if (!response_) response_ = std::make_unique<FrequencyResponse>(circuit_);
     return *response_;
   }
-  std::complex<double> h(double f) { return response().at(probe_, f); }
+  // The response to every source's ac, or with input= the transfer from that source alone.
+  std::complex<double> h(double f) {
+    return input_ ? response().transfer_at(probe_, *input_, f) : response().at(probe_, f);
+  }
   double db_at(double f) { return to_db(h(f)); }
 
   void gain(SpecResult& r) {
@@ -130,22 +139,75 @@ class SpecMeter {
   void flatness(SpecResult& r) {
     const Spec& s = r.spec;
     const double reference = db_at(s.ref);
-    auto deviation = [&](double f) { return std::abs(db_at(f) - reference); };
-    const auto grid = log_grid(s.from, s.to);
+    const Peak worst = largest_over(s.from, s.to, [&](double f) { return std::abs(db_at(f) - reference); });
+    r.value = worst.value;
+    r.where = worst.f;
+  }
+
+  /// Largest |dB(H/H(ref)) - dB(T/T(ref))| over the band, found as flatness is.
+  void deviation(SpecResult& r) {
+    const Spec& s = r.spec;
+    const double reference = db_at(s.ref) - to_db(s.target.at(s.ref));
+    const Peak worst = largest_over(s.from, s.to, [&](double f) {
+      return std::abs(db_at(f) - to_db(s.target.at(f)) - reference);
+    });
+    r.value = worst.value;
+    r.where = worst.f;
+  }
+
+  /// The closest approach of dB(H) to the mask's bounds (negative: outside),
+  /// each bound of each segment on its own (a smooth function of log f there),
+  /// found as flatness is, and every point's own bounds at its frequency.
+  void mask(SpecResult& r) {
+    const Spec& s = r.spec;
+    const double reference = s.relative ? db_at(s.ref) : 0.0;
+    auto level = [&](double f) { return db_at(f) - reference; };
+    Peak closest{0, std::numeric_limits<double>::infinity()};
+    bool upper = false;
+    auto take = [&](Peak p, bool is_upper) {
+      if (p.value < closest.value) closest = p, upper = is_upper;
+    };
+    for (const MaskPoint& p : s.mask) {
+      if (p.low) take({p.f, level(p.f) - *p.low}, false);
+      if (p.high) take({p.f, *p.high - level(p.f)}, true);
+    }
+    for (std::size_t i = 0; i + 1 < s.mask.size(); ++i) {
+      const MaskPoint &a = s.mask[i], &b = s.mask[i + 1];
+      auto bound_at = [&](double f, double bound_a, double bound_b) {
+        return bound_a + (bound_b - bound_a) * std::log(f / a.f) / std::log(b.f / a.f);
+      };
+      if (a.low && b.low) {
+        const Peak p = largest_over(a.f, b.f, [&](double f) { return bound_at(f, *a.low, *b.low) - level(f); });
+        take({p.f, -p.value}, false);
+      }
+      if (a.high && b.high) {
+        const Peak p = largest_over(a.f, b.f, [&](double f) { return level(f) - bound_at(f, *a.high, *b.high); });
+        take({p.f, -p.value}, true);
+      }
+    }
+    r.value = closest.value;
+    r.where = closest.f;
+    r.note = fmt::format("closest at {}Hz to the {} bound{}", format_si(closest.f),
+                         upper ? "upper" : "lower",
+                         s.relative ? fmt::format(", re {}Hz", format_si(s.ref)) : std::string());
+  }
+
+  /// The largest value of `fn` over [from, to]: a log grid, then a
+  /// golden-section refinement around the largest grid point.
+  static Peak largest_over(double from, double to, const std::function<double(double)>& fn) {
+    const auto grid = log_grid(from, to);
     std::size_t worst = 0;
-    double worst_value = -1;
+    double worst_value = -std::numeric_limits<double>::infinity();
     for (std::size_t i = 0; i < grid.size(); ++i) {
-      const double d = deviation(grid[i]);
+      const double d = fn(grid[i]);
       if (d > worst_value) worst = i, worst_value = d;
     }
-    double where = grid[worst];
+    Peak best{grid[worst], worst_value};
     if (worst > 0 && worst + 1 < grid.size()) {
-      if (const Peak peak = golden_max_log(grid[worst - 1], grid[worst + 1], deviation);
-          peak.value > worst_value)
-        worst_value = peak.value, where = peak.f;
+      if (const Peak peak = golden_max_log(grid[worst - 1], grid[worst + 1], fn); peak.value > best.value)
+        best = peak;
     }
-    r.value = worst_value;
-    r.where = where;
+    return best;
   }
 
   /// The first frequency, going away from ref, where the response has fallen
@@ -168,6 +230,14 @@ class SpecMeter {
     r.note = fmt::format("the response stays within {:.4g} dB of its value at {}Hz from {}Hz to {}Hz",
                          s.drop, format_si(s.ref), format_si(upward ? s.ref : s.from),
                          format_si(upward ? s.to : s.ref));
+    // The corner lies beyond the search range, on the side a one-sided window allows.
+    const bool beyond_is_inside = upward ? s.min && !s.max : s.max && !s.min;
+    if (beyond_is_inside) {
+      r.pass = true;
+      r.note += fmt::format(": the corner lies {} {}Hz, so {} {}={}Hz", upward ? "above" : "below",
+                            format_si(upward ? s.to : s.from), upward ? "above" : "below",
+                            upward ? "min" : "max", format_si(upward ? *s.min : *s.max));
+    }
   }
 
   /// Noise over the spec's band: the rms total, or the SNR at the spec's level.
@@ -181,6 +251,7 @@ class SpecMeter {
     if (s.kind == SpecKind::snr) {
       options.input = s.input;
       options.level = s.level;
+      if (s.ref > 0) options.reference = s.ref;
     }
     const NoiseResult n = run_noise(circuit_, options, response());
     if (s.kind == SpecKind::noise) {
@@ -199,8 +270,8 @@ class SpecMeter {
   void snr(SpecResult& r, const SignalToNoise& signal, double noise_rms) {
     if (std::isfinite(signal.ratio_db)) {
       r.value = signal.ratio_db;
-      r.note = fmt::format("signal {}V rms, noise {}V rms", format_si(signal.signal_rms),
-                           format_si(noise_rms));
+      r.note = fmt::format("signal {}V rms at {}Hz, noise {}V rms", format_si(signal.signal_rms),
+                           format_si(signal.reference), format_si(noise_rms));
     } else if (signal.signal_rms == 0) {
       r.note = fmt::format("the signal from '{}' does not reach the probe at {}Hz", r.spec.input,
                            format_si(signal.reference));
@@ -274,6 +345,7 @@ class SpecMeter {
   FrequencyResponse* shared_response_;
   const BiasResult* shared_bias_;
   Probe probe_;  ///< the probe of the spec being measured
+  std::optional<std::size_t> input_;  ///< input=: the one source driving it; empty: every source
 };
 
 }  // namespace

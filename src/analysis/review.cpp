@@ -12,7 +12,8 @@ namespace {
 
 bool measures_response(SpecKind kind) {
   return kind == SpecKind::gain || kind == SpecKind::phase || kind == SpecKind::flatness ||
-         kind == SpecKind::upper_corner || kind == SpecKind::lower_corner;
+         kind == SpecKind::upper_corner || kind == SpecKind::lower_corner ||
+         kind == SpecKind::deviation || kind == SpecKind::mask;
 }
 
 void add_positive(std::vector<double>& out, double f) {
@@ -53,6 +54,7 @@ NoiseOptions noise_options(const Spec& spec) {
   if (spec.kind == SpecKind::snr) {
     options.input = spec.input;
     options.level = spec.level;
+    if (spec.ref > 0) options.reference = spec.ref;
   }
   return options;
 }

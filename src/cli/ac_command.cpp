@@ -15,6 +15,7 @@ namespace {
 struct AcCommandOptions {
   CommonOptions common;
   std::vector<std::string> probes;
+  std::string input;
   SweepFlags sweep;
 };
 
@@ -22,6 +23,7 @@ void run(const AcCommandOptions& o) {
   AcOptions options;
   options.sweep = parse_sweep(o.sweep);
   options.probes = o.probes;
+  options.input = o.input;
   analyse_and_write(o.common, ac_writers(), [&](const Circuit& circuit) {
     if (o.probes.empty())
       throw InputError::usage("tacet ac needs at least one --probe",
@@ -38,6 +40,8 @@ void setup_ac(CLI::App& app) {
   add_common_options(*ac, options->common, ac_writers().formats());
   ac->add_option("--probe", options->probes,
                  "A node (out), a node pair (out,ref) or a current (i(R1)); repeatable");
+  ac->add_option("--input", options->input,
+                 "A source: the transfer from it alone, every other source's ac zeroed");
   add_sweep_options(*ac, options->sweep);
   ac->callback([options] { run(*options); });
 }

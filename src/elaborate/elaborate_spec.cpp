@@ -15,24 +15,39 @@ constexpr KeyRule kAt{"at", Dimension::frequency, KeyForm::value, Need::required
 constexpr KeyRule kFrom{"from", Dimension::frequency, KeyForm::value, Need::required};
 constexpr KeyRule kTo{"to", Dimension::frequency, KeyForm::value, Need::required};
 constexpr KeyRule kCurrent{"current", Dimension::none};  // an element name: current=R1
+constexpr KeyRule kInput{"input", Dimension::none};      // a source's name: input=Vin
 
-constexpr KeyRule kGainKeys[] = {kAt, {"min", Dimension::gain}, {"max", Dimension::gain}, kCurrent};
+constexpr KeyRule kGainKeys[] = {kAt, {"min", Dimension::gain}, {"max", Dimension::gain}, kCurrent,
+                                 kInput};
 constexpr KeyRule kFlatnessKeys[] = {
     kFrom, kTo, {"ref", Dimension::frequency},
-    {"max", Dimension::decibel, KeyForm::value, Need::required}, kCurrent};
-constexpr KeyRule kPhaseKeys[] = {kAt, {"min", Dimension::angle}, {"max", Dimension::angle}, kCurrent};
+    {"max", Dimension::decibel, KeyForm::value, Need::required}, kCurrent, kInput};
+constexpr KeyRule kPhaseKeys[] = {kAt, {"min", Dimension::angle}, {"max", Dimension::angle}, kCurrent,
+                                  kInput};
 constexpr KeyRule kCornerKeys[] = {
     {"ref", Dimension::frequency, KeyForm::value, Need::required},
     {"min", Dimension::frequency}, {"max", Dimension::frequency}, {"drop", Dimension::decibel},
-    {"from", Dimension::frequency}, {"to", Dimension::frequency}, kCurrent};
+    {"from", Dimension::frequency}, {"to", Dimension::frequency}, kCurrent, kInput};
 constexpr KeyRule kNoiseKeys[] = {kFrom, kTo,
-                                  {"max", Dimension::voltage, KeyForm::value, Need::required}};
+                                  {"max", Dimension::voltage, KeyForm::value, Need::required},
+                                  kCurrent};
 constexpr KeyRule kSnrKeys[] = {kFrom, kTo,
                                 {"input", Dimension::none, KeyForm::value, Need::required},
                                 {"level", Dimension::voltage, KeyForm::value, Need::required},
-                                {"min", Dimension::decibel, KeyForm::value, Need::required}};
+                                {"min", Dimension::decibel, KeyForm::value, Need::required},
+                                {"ref", Dimension::frequency}, kCurrent};
 constexpr KeyRule kOffsetKeys[] = {{"max", Dimension::voltage, KeyForm::value, Need::required}};
 constexpr KeyRule kRailsKeys[] = {{"margin", Dimension::voltage}};
+constexpr KeyRule kDeviationKeys[] = {
+    kFrom, kTo, {"ref", Dimension::frequency},
+    {"target", Dimension::none, KeyForm::value, Need::required},
+    {"max", Dimension::decibel, KeyForm::value, Need::required}, kCurrent, kInput};
+// A mask's points: each at= starts one, the min= and max= after it bound it.
+constexpr KeyRule kMaskKeys[] = {
+    {"at", Dimension::frequency, KeyForm::value, Need::repeated},
+    {"min", Dimension::decibel, KeyForm::value, Need::repeated},
+    {"max", Dimension::decibel, KeyForm::value, Need::repeated},
+    {"ref", Dimension::frequency}, kCurrent, kInput};
 
 KeyTable options_for(SpecKind kind) {
   switch (kind) {
@@ -45,6 +60,8 @@ KeyTable options_for(SpecKind kind) {
     case SpecKind::snr: return kSnrKeys;
     case SpecKind::offset: return kOffsetKeys;
     case SpecKind::rails: return kRailsKeys;
+    case SpecKind::deviation: return kDeviationKeys;
+    case SpecKind::mask: return kMaskKeys;
   }
   return {};
 }
@@ -179,7 +196,8 @@ bool Elaborator::read_gain_limits(Spec& spec, const ast::Spec& ast_spec, const S
   return true;
 }
 
-bool Elaborator::read_snr_input(Spec& spec, const SpecKeys& given) {
+bool Elaborator::read_input_source(Spec& spec, const SpecKeys& given) {
+  if (!given.count("input")) return true;
   const KeyValue& input = given.at("input");
   const auto* id = boost::get<ast::Identifier>(&unwrap(*input.value));
   const auto index = id ? circuit_.find_element(id->text) : std::nullopt;
@@ -228,6 +246,12 @@ bool Elaborator::read_spec_limits(Spec& spec, const ast::Spec& ast_spec, const S
       return needs_a_limit();
     }
     case SpecKind::noise:
+      if (given.count("current")) {  // the rms of a branch current, in A
+        spec.unit = SpecUnit::amps;
+        spec.max = spec_number(given, "max", Dimension::current, ok);
+        return true;
+      }
+      [[fallthrough]];
     case SpecKind::offset:
       spec.unit = SpecUnit::volts;
       spec.max = spec_number(given, "max", Dimension::voltage, ok);
@@ -242,12 +266,22 @@ bool Elaborator::read_spec_limits(Spec& spec, const ast::Spec& ast_spec, const S
               "the signal's rms level at the input, e.g. level=2V");
         return false;
       }
-      return read_snr_input(spec, given);
+      return true;
     case SpecKind::rails:
       spec.unit = SpecUnit::volts;
       spec.margin = spec_number(given, "margin", Dimension::voltage, ok).value_or(0);
       spec.min = spec.margin;
       return true;
+    case SpecKind::deviation:
+      spec.unit = SpecUnit::db;
+      spec.max = spec_number(given, "max", Dimension::decibel, ok);
+      if (!given.count("ref")) spec.ref = spec.from;
+      return ok && read_target(spec, given);
+    case SpecKind::mask:
+      spec.unit = SpecUnit::db;
+      spec.min = 0.0;  // the closest approach to the mask, inside it
+      spec.relative = given.count("ref") > 0;
+      return ok && read_mask(spec, ast_spec, spec.where.file);
   }
   return true;
 }
@@ -298,9 +332,16 @@ void Elaborator::elaborate_spec(const ast::Spec& ast_spec, int file) {
   if (!ok) return;
   ok = read_spec_band(spec, given);
   if (!read_spec_limits(spec, ast_spec, given, ok)) return;  // limits in the unit the spec reports
+  if (!read_input_source(spec, given)) return;
   if (!attach_spec_probe(spec, ast_spec, given, file)) return;
   // A gain on a branch current i(NAME) is amperes per volt of the source, not V/V.
   if (spec.unit == SpecUnit::ratio && spec.probe.rfind("i(", 0) == 0) spec.unit = SpecUnit::amps_per_volt;
+  // From a current source alone (input=I1) a gain is V/A, or A/A on a current.
+  if (!spec.input.empty() && spec.kind != SpecKind::snr &&
+      traits(circuit_.elements[*circuit_.find_element(spec.input)].kind).drive == Drive::current) {
+    if (spec.unit == SpecUnit::ratio) spec.unit = SpecUnit::volts_per_amp;
+    if (spec.unit == SpecUnit::amps_per_volt) spec.unit = SpecUnit::amps_per_amp;
+  }
   if (ok) circuit_.specs.push_back(std::move(spec));
 }
 

@@ -126,7 +126,9 @@ class Elaborator {
   bool read_spec_band(Spec& spec, const SpecKeys& given);
   bool read_spec_limits(Spec& spec, const ast::Spec& ast_spec, const SpecKeys& given, bool& ok);
   bool read_gain_limits(Spec& spec, const ast::Spec& ast_spec, const SpecKeys& given, bool& ok);
-  bool read_snr_input(Spec& spec, const SpecKeys& given);
+  bool read_input_source(Spec& spec, const SpecKeys& given);
+  bool read_target(Spec& spec, const SpecKeys& given);
+  bool read_mask(Spec& spec, const ast::Spec& ast_spec, int file);
   bool attach_spec_probe(Spec& spec, const ast::Spec& ast_spec, const SpecKeys& given, int file);
 
   // elaborate_instance.cpp: elements and blocks

@@ -56,7 +56,7 @@ KeysRead Elaborator::read_keys(const std::vector<WrittenKey>& written, KeyTable 
     const KeyRule* rule = find_key(table, key.key->text);
     if (!check_key(key, rule, wording, file, names)) {
       read.ok = false;
-    } else if (!given.insert(rule->name).second) {
+    } else if (!given.insert(rule->name).second && rule->need != Need::repeated) {
       error(file, *key.key, fmt::format(fmt::runtime(wording.twice), key.key->text));
       read.ok = false;
     } else if (ParsedOverride* o = override_of(*rule)) {

@@ -22,8 +22,12 @@ std::string ac_json(const AcResult& result, const ReportContext& context) {
       points.push_back({{"f", number(result.frequencies[i])}, {"re", number(z.real())},
                         {"im", number(z.imag())}, {"db", number(to_db(z))}, {"deg", number(to_degrees(z))}});
     }
-    traces.push_back({{"probe", trace.probe.text}, {"unit", probe_unit(trace.probe)}, {"points", points}});
+    // From one source the values are a transfer: V/A from a current source.
+    const std::string unit = std::string(probe_unit(trace.probe)) +
+                             (result.input.empty() ? "" : "/" + result.input_unit);
+    traces.push_back({{"probe", trace.probe.text}, {"unit", unit}, {"points", points}});
   }
+  if (!result.input.empty()) document["input"] = result.input;
   document["traces"] = traces;
   return json_output::text(document);
 }

@@ -25,6 +25,12 @@ std::string sweep_line(const AcResult& result) {
     return std::any_of(result.traces.begin(), result.traces.end(),
                        [&](const AcTrace& t) { return t.probe.kind == kind; });
   };
+  if (!result.input.empty())
+    return fmt::format("AC transfer from {} alone (a unit at it, every other source's ac zeroed), {} "
+                       "point{} from {}Hz to {}Hz; dB re 1 V/{}{}\n",
+                       result.input, f.size(), f.size() == 1 ? "" : "s", format_si(f.front()),
+                       format_si(f.back()), result.input_unit,
+                       any(ProbeKind::current) ? " or 1 A/" + result.input_unit : "");
   return fmt::format("AC response, {} point{} from {}Hz to {}Hz; dB re 1 V{}{} (a gain when the source has ac=1)\n",
                      f.size(), f.size() == 1 ? "" : "s", format_si(f.front()), format_si(f.back()),
                      any(ProbeKind::current) ? " or 1 A" : "",

@@ -15,9 +15,12 @@ std::string format_spec_value(double value, SpecUnit unit) {
     case SpecUnit::db: return fmt::format("{:.4f} dB", value);
     case SpecUnit::ratio: return fmt::format("{:.6g} V/V", value);
     case SpecUnit::amps_per_volt: return fmt::format("{:.6g} A/V", value);
+    case SpecUnit::volts_per_amp: return fmt::format("{:.6g} V/A", value);
+    case SpecUnit::amps_per_amp: return fmt::format("{:.6g} A/A", value);
     case SpecUnit::degrees: return fmt::format("{:.2f} deg", value);
     case SpecUnit::hertz: return format_si(value, 5) + "Hz";
     case SpecUnit::volts: return format_si(value, 4) + "V";
+    case SpecUnit::amps: return format_si(value, 4) + "A";
   }
   return fmt::format("{}", value);
 }
@@ -29,6 +32,7 @@ std::string bare(double value, SpecUnit unit) {
   switch (unit) {
     case SpecUnit::hertz: return format_si(value, 6) + "Hz";
     case SpecUnit::volts: return format_si(value, 6) + "V";
+    case SpecUnit::amps: return format_si(value, 6) + "A";
     default: return fmt::format("{:g}", value);
   }
 }
@@ -39,9 +43,12 @@ std::string unit_suffix(SpecUnit unit) {
     case SpecUnit::db: return " dB";
     case SpecUnit::ratio: return " V/V";
     case SpecUnit::amps_per_volt: return " A/V";
+    case SpecUnit::volts_per_amp: return " V/A";
+    case SpecUnit::amps_per_amp: return " A/A";
     case SpecUnit::degrees: return " deg";
     case SpecUnit::hertz:
-    case SpecUnit::volts: return "";
+    case SpecUnit::volts:
+    case SpecUnit::amps: return "";
   }
   return "";
 }
@@ -59,14 +66,24 @@ std::string format_spec_limit(const Spec& spec) {
 
 namespace {
 
-std::string where_text(const SpecResult& r) {
+std::string where_measured(const SpecResult& r) {
   if (!r.note.empty()) return r.note;
   switch (r.spec.kind) {
     case SpecKind::flatness: return fmt::format("worst at {}Hz, ref {}Hz", format_si(r.where), format_si(r.spec.ref));
+    case SpecKind::deviation:
+      return fmt::format("worst at {}Hz, ref {}Hz, target {}", format_si(r.where), format_si(r.spec.ref),
+                         r.spec.target.text);
     case SpecKind::gain:
     case SpecKind::phase: return fmt::format("at {}Hz", format_si(r.where));
     default: return "";
   }
+}
+
+// A response spec measured from one source says which.
+std::string where_text(const SpecResult& r) {
+  std::string text = where_measured(r);
+  if (r.spec.input.empty() || r.spec.kind == SpecKind::snr) return text;
+  return fmt::format("from {}{}{}", r.spec.input, text.empty() ? "" : ": ", text);
 }
 
 }  // namespace

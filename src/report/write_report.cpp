@@ -90,6 +90,8 @@ std::vector<plot::VerticalLine> spec_markers(const CheckResult& check) {
       case SpecKind::gain:
       case SpecKind::phase: lines.push_back({s.at, s.name}); break;
       case SpecKind::flatness:
+      case SpecKind::deviation:
+      case SpecKind::mask:
         lines.push_back({s.from, s.name + " from"});
         lines.push_back({s.to, s.name + " to"});
         break;

@@ -4,8 +4,10 @@
 #include <numbers>
 
 #include <fmt/format.h>
+#include <fmt/ranges.h>
 
 #include "tacet/common/errors.hpp"
+#include "tacet/common/spelling.hpp"
 
 namespace tacet {
 
@@ -17,6 +19,7 @@ FrequencyResponse::FrequencyResponse(const Circuit& circuit, SolverKind solver)
   x_.resize(excitation_.size());
   y_.resize(excitation_.size());
   z_.resize(excitation_.size());
+  w_.resize(excitation_.size());
   scratch_.reserve(8);
   mna_.excitation(excitation_.data());
   mna_.assemble(0.0, values_.data());  // the constant entries, once
@@ -25,6 +28,7 @@ FrequencyResponse::FrequencyResponse(const Circuit& circuit, SolverKind solver)
 void FrequencyResponse::factor_at(double f) {
   if (f == factored_) return;
   solved_ = -1;
+  single_solved_ = -1;
   mna_.assemble_varying(std::complex<double>(0, 2 * std::numbers::pi * f), values_.data());
   if (lu_->factor(values_.data()) == FactorStatus::singular) {
     factored_ = -1;
@@ -67,6 +71,58 @@ std::complex<double> FrequencyResponse::value(const Probe& probe) {
   if (!std::isfinite(v.real()) || !std::isfinite(v.imag()))
     throw SolveError::unsolvable_at(solved_, fmt::format("probe '{}' is not finite", probe.text));
   return v;
+}
+
+std::complex<double> FrequencyResponse::transfer_at(const Probe& probe, std::size_t source, double f) {
+  factor_at(f);
+  if (probe.kind == ProbeKind::impedance) return value_after_solve(probe, f, impedance(probe));
+  if (f != single_solved_ || source != single_source_) {
+    std::fill(w_.begin(), w_.end(), std::complex<double>{});
+    const Element& e = mna_.circuit().elements[source];
+    if (traits(e.kind).drive == Drive::voltage) {
+      w_[static_cast<std::size_t>(mna_.branch_unknown(source))] = 1.0;
+    } else {  // a current source draws its current out of its first node into its second
+      const int plus = mna_.node_unknown(e.nodes[0]), minus = mna_.node_unknown(e.nodes[1]);
+      if (plus >= 0) w_[static_cast<std::size_t>(plus)] -= 1.0;
+      if (minus >= 0) w_[static_cast<std::size_t>(minus)] += 1.0;
+    }
+    lu_->solve(w_.data());
+    single_solved_ = f;
+    single_source_ = source;
+  }
+  const std::complex<double> s(0, 2 * std::numbers::pi * f);
+  std::complex<double> v = probe_functional(probe, mna_, s, scratch_);
+  for (const auto& term : scratch_) v += term.coefficient * w_[static_cast<std::size_t>(term.unknown)];
+  // A current source's own current is its phasor: here the unit, or 0 for any other source.
+  if (probe.kind == ProbeKind::current &&
+      mna_.circuit().elements[probe.element].kind == ElementKind::isource)
+    v = probe.element == source ? 1.0 : 0.0;
+  return value_after_solve(probe, f, v);
+}
+
+std::complex<double> FrequencyResponse::value_after_solve(const Probe& probe, double f,
+                                                          std::complex<double> v) const {
+  if (!std::isfinite(v.real()) || !std::isfinite(v.imag()))
+    throw SolveError::unsolvable_at(f, fmt::format("probe '{}' is not finite", probe.text));
+  return v;
+}
+
+std::size_t resolve_source(const std::string& name, const Circuit& circuit, std::string_view flag) {
+  std::vector<std::string> sources;
+  for (const Element& e : circuit.elements)
+    if (traits(e.kind).drive != Drive::none) sources.push_back(e.name);
+  const std::string listed = sources.empty() ? "the circuit has none"
+                                             : "the sources are " + fmt::format("{}", fmt::join(sources, ", "));
+  const auto index = circuit.find_element(name);
+  if (index && traits(circuit.elements[*index].kind).drive != Drive::none) return *index;
+  if (!index) {
+    const std::string near = nearest_word(name, sources);
+    throw InputError::usage(fmt::format("{} '{}' is not an element of the circuit", flag, name),
+                            near.empty() ? listed : "did you mean '" + near + "'?");
+  }
+  throw InputError::usage(
+      fmt::format("{} '{}' is a {}, not a source", flag, name, to_keyword(circuit.elements[*index].kind)),
+      "name a vsrc or isrc; " + listed);
 }
 
 std::complex<double> FrequencyResponse::at(const Probe& probe, double f) {

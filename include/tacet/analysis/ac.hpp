@@ -40,6 +40,9 @@ struct Sweep {
 struct AcOptions {
   Sweep sweep;
   std::vector<std::string> probes;  ///< probe texts, resolved by run_ac
+  /// A source's name: the transfer from it alone (a unit at it, every other
+  /// source's ac zeroed); empty: every source's ac, superposed.
+  std::string input;
   SolverKind solver = SolverKind::klu;  ///< sparse LU backend (Eigen: for comparison)
 };
 
@@ -51,6 +54,8 @@ struct AcTrace {
 struct AcResult {
   std::vector<double> frequencies;  ///< Hz
   std::vector<AcTrace> traces;      ///< one per probe, in the order asked
+  std::string input;                ///< the one source driving it, or empty (AcOptions::input)
+  std::string input_unit;           ///< "V" or "A": what a unit at `input` is; empty without input
 };
 
 /// Throws InputError for a bad sweep or probe, SolveError when the circuit is

@@ -16,8 +16,10 @@ namespace tacet {
 /// Whether a key is written with a value (`tol=1%`) or bare (`noiseless`).
 enum class KeyForm { value, flag };
 
-/// Whether a statement must give the key.
-enum class Need { optional, required };
+/// Whether a statement must give the key. A `repeated` key may be given more
+/// than once (a mask's points: `at= min= max=` for each), read in order by the
+/// statement itself.
+enum class Need { optional, required, repeated };
 
 /// One key of a statement. A value key of Dimension::none is a name
 /// (`current=R1`, `input=Vin`), read by the statement itself.

@@ -6,6 +6,8 @@
 
 #include <complex>
 #include <memory>
+#include <string>
+#include <string_view>
 #include <vector>
 
 #include "tacet/circuit/circuit.hpp"
@@ -32,6 +34,12 @@ class FrequencyResponse {
   std::complex<double> value(const Probe& probe);
   /// solve_at(f), then value(probe).
   std::complex<double> at(const Probe& probe, double f);
+  /// The probe's value with a unit (1 V or 1 A, phase 0) at the independent
+  /// source `source` (an index into Circuit::elements) and every other
+  /// source's ac zeroed: the transfer from that source alone, in V/V, V/A,
+  /// A/V or A/A. One more solve on the factorisation at f, kept for the next
+  /// probe at the same f and source.
+  std::complex<double> transfer_at(const Probe& probe, std::size_t source, double f);
   /// The adjoint solution y of A(s)^T y = c at the frequency factored last, c
   /// the probe's functional: y_k is the transfer from a unit injected into row
   /// k to the probe (the noise analysis reads every source's transfer here).
@@ -44,13 +52,22 @@ class FrequencyResponse {
 
  private:
   std::complex<double> impedance(const Probe& probe);
+  /// `v`, or SolveError when it is not finite.
+  std::complex<double> value_after_solve(const Probe& probe, double f, std::complex<double> v) const;
 
   MnaSystem mna_;
   std::unique_ptr<SparseLu> lu_;
-  std::vector<std::complex<double>> values_, excitation_, x_, y_, z_;
+  std::vector<std::complex<double>> values_, excitation_, x_, y_, z_, w_;
   std::vector<ProbeTerm> scratch_;
   double factored_ = -1;  ///< Hz of the current factorisation; -1: none
   double solved_ = -1;    ///< Hz of x_; -1: none
+  double single_solved_ = -1;    ///< Hz of w_, the response to one source; -1: none
+  std::size_t single_source_ = 0;  ///< the source of w_
 };
+
+/// The element index of the independent source `name`, for `--input` and
+/// `input=`. Throws InputError naming the circuit's sources when `name` is
+/// not one; `flag` is how the caller's user wrote it ("--input").
+std::size_t resolve_source(const std::string& name, const Circuit& circuit, std::string_view flag);
 
 }  // namespace tacet

@@ -1,0 +1,6 @@
+ac
+@/ac_input.tacet
+--probe
+out
+--input
+R1

@@ -1,0 +1,10 @@
+ac
+@/ac_input.tacet
+--probe
+out
+--probe
+i(R1)
+--input
+I2
+--at
+1591.5494309189535

@@ -1,0 +1,2 @@
+check
+@/../../netlists/examples/phono_stage.tacet

@@ -1,0 +1,2 @@
+check
+@/mask_not_increasing.tacet

@@ -1,0 +1,4 @@
+ac
+@/s_in_real_value.tacet
+--probe
+out

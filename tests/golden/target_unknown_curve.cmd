@@ -1,0 +1,2 @@
+check
+@/target_unknown_curve.tacet
