@@ -5,6 +5,7 @@
 #include <functional>
 #include <limits>
 #include <memory>
+#include <unordered_map>
 
 #include <fmt/format.h>
 #include <fmt/ranges.h>
@@ -161,7 +162,13 @@ class SpecMeter {
   void mask(SpecResult& r) {
     const Spec& s = r.spec;
     const double reference = s.relative ? db_at(s.ref) : 0.0;
-    auto level = [&](double f) { return db_at(f) - reference; };
+    // Both bounds of a segment scan the same grid: each point is solved once.
+    std::unordered_map<double, double> solved;
+    auto level = [&](double f) {
+      const auto [it, added] = solved.try_emplace(f, 0.0);
+      if (added) it->second = db_at(f) - reference;
+      return it->second;
+    };
     Peak closest{0, std::numeric_limits<double>::infinity()};
     bool upper = false;
     auto take = [&](Peak p, bool is_upper) {
