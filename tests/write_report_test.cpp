@@ -101,3 +101,22 @@ TEST_CASE("a netlist without specs still gets a page with bias and the circuit",
   CHECK(page.find("<h2>DC operating point and headroom</h2>") != std::string::npos);
   CHECK(page.find("<h2>Circuit</h2>") != std::string::npos);
 }
+
+TEST_CASE("the review's response is from the one source every response spec names", "[report]") {
+  // Two sources: V1 ac=1 through R1 and I2 (1 A into out); C1 to gnd. From V1 alone the
+  // low-frequency gain is 1 (0 dB); superposed with I2's 1 kohm x 1 A it would be 1001.
+  const std::string two =
+      "vsrc V1 (a, gnd) ac=1\nisrc I2 (gnd, out) ac=1\nres R1 (a, out) 1k\ncap C1 (out, gnd) 100n\n";
+  auto from_v1 = elaborate_text(two + "spec g gain (out) at=10Hz min=-0.1dB input=V1\n");
+  REQUIRE(from_v1.circuit);
+  const ReviewResult review = run_review(*from_v1.circuit);
+  REQUIRE(review.response);
+  CHECK(review.response->input == "V1");
+  CHECK(std::abs(review.response->traces[0].values[0]) == Approx(1).epsilon(1e-3));
+  auto mixed = elaborate_text(two + "spec g gain (out) at=10Hz min=-0.1dB input=V1\n"
+                                    "spec h gain (out) at=10Hz min=-0.1dB\n");
+  REQUIRE(mixed.circuit);
+  const ReviewResult superposed = run_review(*mixed.circuit);
+  REQUIRE(superposed.response);
+  CHECK(superposed.response->input.empty());
+}

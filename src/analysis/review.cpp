@@ -38,6 +38,14 @@ std::optional<AcResult> response_for(const Circuit& circuit, const CheckResult& 
     if (corner && r.value) add_positive(frequencies, *r.value);
   }
   if (options.probes.empty() || frequencies.empty()) return std::nullopt;
+  // When every response spec measures from the same source (input=), so does the picture.
+  std::optional<std::string> input;
+  for (const SpecResult& r : check.specs) {
+    if (!measures_response(r.spec.kind)) continue;
+    if (!input) input = r.spec.input;
+    if (*input != r.spec.input) input = std::string();
+  }
+  options.input = input.value_or(std::string());
   const auto [low, high] = std::minmax_element(frequencies.begin(), frequencies.end());
   options.sweep.from = std::pow(10.0, std::floor(std::log10(*low) - 1e-9));
   options.sweep.to = std::pow(10.0, std::ceil(std::log10(*high) + 1e-9));
