@@ -320,3 +320,29 @@ TEST_CASE("input= must name a source", "[elaborate]") {
         "                                        ^~\n"
         "hint: write input=Vin\n");
 }
+
+TEST_CASE("buffered RC sections at the standard's poles deviate from a_weighting by < 1e-6 dB",
+          "[check]") {
+  // IEC 61672-1's weighting A is four zeros at 0, two poles at f1, one at f2, one at f3 and
+  // two at f4 (the standard's formula, from memory: 20.598997 Hz, 107.65265 Hz,
+  // 737.86223 Hz, 12194.217 Hz). Four buffered CR high-passes give s/(s + w) each, two
+  // buffered RC low-passes w/(s + w) each (first-order sections, closed form).
+  std::string net = "param r = 10k\nvsrc Vin (n0, gnd) ac=1\n";
+  const char* kinds[] = {"hp", "hp", "hp", "hp", "lp", "lp"};
+  const char* poles[] = {"20.598997", "20.598997", "107.65265", "737.86223", "12194.217", "12194.217"};
+  for (int k = 0; k < 6; ++k) {
+    const std::string in = "n" + std::to_string(k), mid = "m" + std::to_string(k),
+                      out = "n" + std::to_string(k + 1), c = "1/(2*pi*" + std::string(poles[k]) + "*r)";
+    if (std::string(kinds[k]) == "hp")
+      net += "cap C" + std::to_string(k) + " (" + in + ", " + mid + ") " + c + "\nres R" + std::to_string(k) +
+             " (" + mid + ", gnd) r\n";
+    else
+      net += "res R" + std::to_string(k) + " (" + in + ", " + mid + ") r\ncap C" + std::to_string(k) + " (" +
+             mid + ", gnd) " + c + "\n";
+    net += "vcvs E" + std::to_string(k) + " (" + out + ", gnd; " + mid + ", gnd) gain=1\n";
+  }
+  const auto r = check_one(net, "spec a deviation (n6) target=a_weighting from=10Hz to=20kHz ref=1kHz max=0.01dB");
+  REQUIRE(r.value);
+  CHECK(*r.value < 1e-6);
+  CHECK(r.pass);
+}
