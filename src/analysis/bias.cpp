@@ -29,9 +29,9 @@ class DcSolver {
   DcSolver(const Circuit& circuit, SolverKind kind)
       : mna_(circuit, AnalysisKind::dc), lu_(make_real_sparse_lu(kind)) {
     lu_->analyse(mna_.pattern());
-    Vector values(static_cast<std::size_t>(mna_.pattern().nonzeros()));
-    mna_.assemble_dc(values.data());
-    if (lu_->factor(values.data()) == FactorStatus::singular) throw_singular(mna_, lu_->singular_column(), 0.0);
+    values_.resize(static_cast<std::size_t>(mna_.pattern().nonzeros()));
+    mna_.assemble_dc(values_.data());
+    if (lu_->factor(values_.data()) == FactorStatus::singular) throw_singular(mna_, lu_->singular_column(), 0.0);
   }
   const MnaSystem& mna() const { return mna_; }
   std::size_t size() const { return static_cast<std::size_t>(mna_.size()); }
@@ -41,6 +41,7 @@ class DcSolver {
  private:
   MnaSystem mna_;
   std::unique_ptr<RealSparseLu> lu_;
+  Vector values_;  // the factored matrix: the solution check reads it
 };
 
 // A current `amps` leaving `node` (into an op-amp pin or a source): KCL row -= amps.
@@ -116,10 +117,7 @@ void unit_rhs(const Circuit& circuit, const MnaSystem& mna, const OpAmpErrors& a
   draw_current(mna, rhs + n, pins[1], 1.0);
 }
 
-double at_node(const MnaSystem& mna, const double* x, int node) {
-  const int u = mna.node_unknown(node);
-  return u >= 0 ? x[u] : 0.0;
-}
+double at_node(const MnaSystem& mna, const double* x, int node) { return mna.node_voltage(x, node); }
 
 // The resistors at every node, and which nodes an op amp drives: looked up
 // by node, so finding where a bias current turns into a voltage costs the
@@ -219,19 +217,20 @@ void add_error(const Circuit& circuit, const MnaSystem& mna, const PinNeighbours
   if (error.kind != DcErrorKind::ib) {
     double total = 0;
     for (std::size_t k = 0; k < bands.worst.size(); ++k) {
-      const double term = std::abs(x[k]) * error.limit;
+      const double term = std::abs(mna.voltage_at_unknown(x, static_cast<int>(k))) * error.limit;
       total += term;
       bands.worst[k] += term;
       bands.squares[k] += term * term;
     }
     if (!std::isfinite(total))  // rare: find the node to name
       for (std::size_t k = 0; k < bands.worst.size(); ++k)
-        if (!std::isfinite(std::abs(x[k]) * error.limit)) overflowing(circuit, error, result.nodes[k].name);
+        if (!std::isfinite(std::abs(mna.voltage_at_unknown(x, static_cast<int>(k))) * error.limit))
+          overflowing(circuit, error, result.nodes[k].name);
   }
   std::optional<std::string> through;
   for (std::size_t a = 0; a < result.opamps.size(); ++a) {
     const int u = bands.outputs[a];
-    const double sensitivity = u >= 0 ? x[u] : 0.0;
+    const double sensitivity = mna.voltage_at_unknown(x, u);
     if (sensitivity == 0) continue;
     auto& amp = result.opamps[a];
     const double volts = error.kind == DcErrorKind::ib ? sensitivity * error.limit

@@ -17,6 +17,11 @@
 
 namespace tacet {
 
+namespace {
+constexpr double kRoundingDb = 1e-9;   // dB: 1.2e-10 relative in magnitude
+constexpr double kRoundingDeg = 1e-8;  // degrees: 1.7e-10 rad
+}  // namespace
+
 const char* to_string(ChangeKind kind) {
   switch (kind) {
     case ChangeKind::added: return "added";
@@ -228,8 +233,13 @@ DiffResult run_diff(const Circuit& old_circuit, const Circuit& new_circuit, cons
       const double f = result.new_response.frequencies[i];
       const double ddb = to_db(new_trace.values[i]) - to_db(old_trace->values[i]);
       const double ddeg = wrap_degrees(to_degrees(new_trace.values[i]) - to_degrees(old_trace->values[i]));
-      if (std::isfinite(ddb) && std::abs(ddb) > std::abs(change.max_db_change)) change.max_db_change = ddb, change.db_at = f;
-      if (std::isfinite(ddeg) && std::abs(ddeg) > std::abs(change.max_deg_change)) change.max_deg_change = ddeg, change.deg_at = f;
+      // Two revisions solved apart differ in the last bits even where nothing
+      // changed (a part that turns stiff changes how a node is written):
+      // below kRoundingDb / kRoundingDeg (1e-10 relative) is no change.
+      if (std::isfinite(ddb) && std::abs(ddb) > kRoundingDb && std::abs(ddb) > std::abs(change.max_db_change))
+        change.max_db_change = ddb, change.db_at = f;
+      if (std::isfinite(ddeg) && std::abs(ddeg) > kRoundingDeg && std::abs(ddeg) > std::abs(change.max_deg_change))
+        change.max_deg_change = ddeg, change.deg_at = f;
     }
     result.probes.push_back(change);
   }

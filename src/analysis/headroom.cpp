@@ -112,7 +112,7 @@ void signal_peaks(const MnaSystem& mna, SparseLu& lu, const std::vector<LevelDri
     x[static_cast<std::size_t>(drive.row)] = drive.peak;
     lu.solve(x.data());
     for (std::size_t node = 1; node < peaks.size(); ++node)
-      peaks[node] += std::abs(x[static_cast<std::size_t>(mna.node_unknown(static_cast<int>(node)))]);
+      peaks[node] += std::abs(mna.node_voltage(x.data(), static_cast<int>(node)));
   }
 }
 

@@ -165,12 +165,9 @@ std::complex<double> LoopGain::at(std::size_t opamp, double f) {
   rhs_[static_cast<std::size_t>(mna.opamp_gain_row(opamp))] = 1.0;
   response_.lu().solve(rhs_.data());
   const auto& e = mna.circuit().elements[opamp];
-  auto voltage = [&](int node) {
-    const int u = mna.node_unknown(node);
-    return u < 0 ? std::complex<double>{} : rhs_[static_cast<std::size_t>(u)];
-  };
-  const std::complex<double> d = voltage(e.nodes[0]) - voltage(e.nodes[1]);
-  const std::complex<double> vx = rhs_[static_cast<std::size_t>(mna.opamp_source_unknown(opamp))];
+  const std::complex<double> d =
+      mna.node_voltage(rhs_.data(), e.nodes[0]) - mna.node_voltage(rhs_.data(), e.nodes[1]);
+  const std::complex<double> vx = mna.voltage_at_unknown(rhs_.data(), mna.opamp_source_unknown(opamp));
   const std::complex<double> s(0, kTwoPi * f);
   const std::complex<double> t = -opamp_gain(model_of(mna.circuit(), opamp), s) * d / vx;
   if (!std::isfinite(t.real()) || !std::isfinite(t.imag()))

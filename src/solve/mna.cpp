@@ -7,6 +7,9 @@
 #include <fmt/format.h>
 
 #include <algorithm>
+#include <cmath>
+#include <limits>
+#include <optional>
 #include <numeric>
 #include <queue>
 
@@ -197,6 +200,91 @@ MnaSystem::MnaSystem(const Circuit& circuit, AnalysisKind kind) : circuit_(&circ
   build_pattern();
 }
 
+namespace {
+
+// See "Stiff parts" in mna.hpp. 1e4 keeps the error of summing a part into
+// its neighbours' entries under 1e-12 relative; a part stiffer than that
+// (a 10 ohm link between two nodes that see only megohms otherwise) is
+// stamped on differences, which costs nothing: the system keeps its size.
+constexpr double kStiffRatio = 1e4;
+
+// What a stiff-part test compares: conductance for a resistor, capacitance for
+// a capacitor (they never share the real or the imaginary part of an entry).
+std::optional<double> admittance_scale(const Element& e) {
+  if (e.kind == ElementKind::resistor) return 1.0 / std::abs(e.value);
+  if (e.kind == ElementKind::capacitor) return std::abs(e.value);
+  return std::nullopt;
+}
+
+// A part is stiff when, at both of its nodes, its admittance is more than
+// kStiffRatio times the sum of the small admittances of its kind there: every
+// part to gnd, and every other part at most 1/kStiffRatio of its own (parts
+// of comparable size between two nodes, the links of a chain of milliohms,
+// join its group instead). It then holds its two nodes within a tiny voltage
+// of each other, and that tiny voltage is what the difference unknown keeps
+// exact. Dominance at both ends matters: a part that dominates only one end
+// does not pin its nodes together.
+std::vector<bool> find_stiff_parts(const Circuit& circuit) {
+  const auto& elements = circuit.elements;
+  auto kind_index = [](const Element& e) -> std::size_t { return e.kind == ElementKind::resistor ? 0 : 1; };
+  // Per node and kind (0 resistor, 1 capacitor): the sum to gnd, and the
+  // admittances of parts to other nodes, sorted, with their running sums.
+  struct Side {
+    double to_gnd = 0;
+    std::vector<double> links, below;  // below[k] = sum of links[0..k)
+  };
+  std::vector<std::array<Side, 2>> sides(circuit.node_count());
+  for (const Element& e : elements) {
+    const auto y = admittance_scale(e);
+    if (!y || e.nodes[0] == e.nodes[1]) continue;
+    for (std::size_t k = 0; k < 2; ++k) {
+      Side& side = sides[static_cast<std::size_t>(e.nodes[k])][kind_index(e)];
+      if (e.nodes[1 - k] == 0) side.to_gnd += *y;
+      else side.links.push_back(*y);
+    }
+  }
+  for (auto& node : sides)
+    for (Side& side : node) {
+      std::sort(side.links.begin(), side.links.end());
+      side.below.assign(1, 0.0);
+      for (const double y : side.links) side.below.push_back(side.below.back() + y);
+    }
+  std::vector<bool> stiff(elements.size(), false);
+  for (std::size_t i = 0; i < elements.size(); ++i) {
+    const Element& e = elements[i];
+    const auto y = admittance_scale(e);
+    // To gnd a stiff part swamps nothing that matters: its node's voltage is small.
+    if (!y || e.nodes[0] == 0 || e.nodes[1] == 0 || e.nodes[0] == e.nodes[1]) continue;
+    auto dominates = [&](int node) {
+      const Side& side = sides[static_cast<std::size_t>(node)][kind_index(e)];
+      const auto small = std::lower_bound(side.links.begin(), side.links.end(), *y / kStiffRatio);
+      const double soft = side.to_gnd + side.below[static_cast<std::size_t>(small - side.links.begin())];
+      return soft > 0 && *y > kStiffRatio * soft;
+    };
+    stiff[i] = dominates(e.nodes[0]) && dominates(e.nodes[1]);
+  }
+  return stiff;
+}
+
+// The node of a group that keeps its voltage: the one held hardest to gnd
+// (largest conductance, then capacitance, to gnd). Where a group is not
+// pinned to one voltage after all (its parts dominate only within their own
+// kind), the others are then written as that small voltage minus a large
+// difference, which cancels nothing.
+std::vector<std::array<double, 2>> grip_to_gnd(const Circuit& circuit) {
+  std::vector<std::array<double, 2>> grip(circuit.node_count(), {0.0, 0.0});
+  for (const Element& e : circuit.elements) {
+    const auto y = admittance_scale(e);
+    if (!y) continue;
+    const std::size_t kind = e.kind == ElementKind::resistor ? 0 : 1;
+    if (e.nodes[1] == 0) grip[static_cast<std::size_t>(e.nodes[0])][kind] += *y;
+    if (e.nodes[0] == 0) grip[static_cast<std::size_t>(e.nodes[1])][kind] += *y;
+  }
+  return grip;
+}
+
+}  // namespace
+
 void MnaSystem::number_unknowns() {
   const auto& elements = circuit_->elements;
   node_unknowns_ = static_cast<int>(circuit_->node_count()) - 1;
@@ -215,6 +303,42 @@ void MnaSystem::number_unknowns() {
     }
   }
   pattern_.n = next;
+  group_stiff_nodes();
+}
+
+// Nodes joined by stiff parts form groups; each group's representative keeps
+// its voltage, the others become differences from it.
+void MnaSystem::group_stiff_nodes() {
+  stiff_ = find_stiff_parts(*circuit_);
+  stiff_parts_ = static_cast<int>(std::count(stiff_.begin(), stiff_.end(), true));
+  root_of_.assign(static_cast<std::size_t>(node_unknowns_), -1);
+  if (stiff_parts_ == 0) return;
+  DisjointSets groups(circuit_->node_count());
+  for (std::size_t i = 0; i < stiff_.size(); ++i)
+    if (stiff_[i]) groups.join(circuit_->elements[i].nodes[0], circuit_->elements[i].nodes[1]);
+  const auto grip = grip_to_gnd(*circuit_);
+  std::vector<int> keeper(circuit_->node_count(), -1);  // per set representative
+  for (int node = 1; node < static_cast<int>(circuit_->node_count()); ++node) {
+    int& best = keeper[static_cast<std::size_t>(groups.find(node))];
+    if (best < 0 || grip[static_cast<std::size_t>(node)] > grip[static_cast<std::size_t>(best)]) best = node;
+  }
+  for (int node = 1; node < static_cast<int>(circuit_->node_count()); ++node) {
+    const int root = keeper[static_cast<std::size_t>(groups.find(node))];
+    if (root != node) root_of_[static_cast<std::size_t>(node_unknown(node))] = node_unknown(root);
+  }
+}
+
+MnaSystem::VoltageTerms MnaSystem::voltage_terms(int node) const {
+  VoltageTerms terms;
+  const int u = node_unknown(node);
+  if (u < 0) return terms;
+  const int root = root_of_[static_cast<std::size_t>(u)];
+  if (root < 0) {
+    terms.term[0] = {u, 1.0}, terms.count = 1;
+  } else {
+    terms.term[0] = {root, 1.0}, terms.term[1] = {u, -1.0}, terms.count = 2;
+  }
+  return terms;
 }
 
 // Calls visit(row, col, coefficients) for every stamp entry off gnd, in
@@ -223,8 +347,30 @@ void MnaSystem::number_unknowns() {
 // faults than the stamps cost to compute.
 template <typename Visit>
 void MnaSystem::for_each_term(Visit&& visit) const {
+  // A term on a node's voltage becomes terms on its group's root and on the
+  // node's difference (v = v_root - delta); other unknowns stand as they are.
   auto add = [&](int row, int col, Coefficients c) {
-    if (row >= 0 && col >= 0) visit(row, col, c);
+    if (row < 0 || col < 0) return;
+    const int root = col < node_unknowns_ ? root_of_[static_cast<std::size_t>(col)] : -1;
+    if (root < 0) return visit(row, col, c);
+    visit(row, root, c);
+    visit(row, col, Coefficients{-c.c0, -c.c1, -c.c2});
+  };
+  // A stiff part's voltage v_a - v_b = delta_b - delta_a (the root's delta is
+  // zero): it is stamped on the differences only, never on the root, so its
+  // large admittance is never summed with the small ones on the root's column.
+  auto difference_of = [&](int unknown) {
+    return unknown >= 0 && root_of_[static_cast<std::size_t>(unknown)] >= 0 ? unknown : -1;
+  };
+  auto stiff_admittance = [&](int a, int b, Coefficients y) {
+    const Coefficients minus{-y.c0, -y.c1, -y.c2};
+    const int da = difference_of(a), db = difference_of(b);
+    for (const auto& [row, sign] : {std::pair{a, 1.0}, std::pair{b, -1.0}}) {
+      if (row < 0) continue;
+      const Coefficients plus_y = sign > 0 ? y : minus, minus_y = sign > 0 ? minus : y;
+      if (db >= 0) visit(row, db, plus_y);
+      if (da >= 0) visit(row, da, minus_y);
+    }
   };
   auto admittance = [&](int a, int b, Coefficients y) {
     const Coefficients minus{-y.c0, -y.c1, -y.c2};
@@ -242,10 +388,12 @@ void MnaSystem::for_each_term(Visit&& visit) const {
     const int br = branch_of_[i];
     switch (e.kind) {
       case ElementKind::resistor:
-        admittance(u[0], u[1], {1.0 / e.value, 0, 0});
+        if (stiff_[i]) stiff_admittance(u[0], u[1], {1.0 / e.value, 0, 0});
+        else admittance(u[0], u[1], {1.0 / e.value, 0, 0});
         break;
       case ElementKind::capacitor:
-        admittance(u[0], u[1], {0, e.value, 0});
+        if (stiff_[i]) stiff_admittance(u[0], u[1], {0, e.value, 0});
+        else admittance(u[0], u[1], {0, e.value, 0});
         break;
       case ElementKind::inductor:
         incidence(u[0], u[1], br);

@@ -3,6 +3,8 @@
 
 #include "tacet/solve/probe.hpp"
 
+#include <algorithm>
+
 #include <fmt/format.h>
 
 #include "tacet/common/spelling.hpp"
@@ -81,9 +83,18 @@ const char* probe_unit(const Probe& probe) {
 std::complex<double> probe_functional(const Probe& probe, const MnaSystem& mna,
                                       std::complex<double> s, std::vector<ProbeTerm>& terms) {
   terms.clear();
+  // Terms on one unknown are merged as they come: across a part stamped on
+  // voltage differences both nodes share their group's root, whose terms
+  // cancel exactly here instead of in a sum of large and small products.
   auto add = [&](int node, std::complex<double> coefficient) {
-    const int unknown = mna.node_unknown(node);
-    if (unknown >= 0) terms.push_back({unknown, coefficient});
+    const auto voltage = mna.voltage_terms(node);
+    for (int k = 0; k < voltage.count; ++k) {
+      const auto [unknown, c] = voltage.term[k];
+      const auto same = std::find_if(terms.begin(), terms.end(),
+                                     [&](const ProbeTerm& t) { return t.unknown == unknown; });
+      if (same != terms.end()) same->coefficient += coefficient * c;
+      else terms.push_back({unknown, coefficient * c});
+    }
   };
   auto across = [&](int a, int b, std::complex<double> y) { add(a, y), add(b, -y); };
   if (probe.kind != ProbeKind::current) {  // an impedance: the voltage its test current makes

@@ -30,6 +30,7 @@ void FrequencyResponse::factor_at(double f) {
   solved_ = -1;
   single_solved_ = -1;
   mna_.assemble_varying(std::complex<double>(0, 2 * std::numbers::pi * f), values_.data());
+  lu_->at_point(f);
   if (lu_->factor(values_.data()) == FactorStatus::singular) {
     factored_ = -1;
     throw_singular(mna_, lu_->singular_column(), f);
@@ -60,8 +61,7 @@ std::complex<double> FrequencyResponse::impedance(const Probe& probe) {
   if (plus >= 0) z_[static_cast<std::size_t>(plus)] += 1.0;  // a unit current into plus
   if (minus >= 0) z_[static_cast<std::size_t>(minus)] -= 1.0;
   lu_->solve(z_.data());
-  return (plus >= 0 ? z_[static_cast<std::size_t>(plus)] : 0.0) -
-         (minus >= 0 ? z_[static_cast<std::size_t>(minus)] : 0.0);
+  return mna_.node_voltage(z_.data(), probe.plus) - mna_.node_voltage(z_.data(), probe.minus);
 }
 
 std::complex<double> FrequencyResponse::value(const Probe& probe) {

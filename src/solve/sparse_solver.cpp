@@ -19,12 +19,20 @@ const char* to_string(SolverKind kind) {
   return "?";
 }
 
-std::unique_ptr<SparseLu> make_sparse_lu(SolverKind kind) {
+std::unique_ptr<SparseLu> make_unchecked_sparse_lu(SolverKind kind) {
   return kind == SolverKind::eigen ? make_eigen_lu() : make_klu_lu();
 }
 
-std::unique_ptr<RealSparseLu> make_real_sparse_lu(SolverKind kind) {
+std::unique_ptr<RealSparseLu> make_unchecked_real_sparse_lu(SolverKind kind) {
   return kind == SolverKind::eigen ? make_real_eigen_lu() : make_real_klu_lu();
+}
+
+std::unique_ptr<SparseLu> make_sparse_lu(SolverKind kind) {
+  return checked(make_unchecked_sparse_lu(kind));
+}
+
+std::unique_ptr<RealSparseLu> make_real_sparse_lu(SolverKind kind) {
+  return checked(make_unchecked_real_sparse_lu(kind));
 }
 
 }  // namespace tacet

@@ -11,6 +11,7 @@
 
 #include <klu.h>
 
+#include <limits>
 #include <stdexcept>
 
 #include "tacet/solve/sparse_solver.hpp"
@@ -43,9 +44,24 @@ class KluLu final : public SparseLu {
   }
 
   FactorStatus factor(const std::complex<double>* values) override {
+    values_ = values;
     if (pattern_->n == 0) return FactorStatus::ok;
     if (numeric_ != nullptr && refactor(values)) return FactorStatus::ok;
     return factor_fresh(values);
+  }
+
+  FactorStatus factor_new_pivots(const std::complex<double>* values) override {
+    values_ = values;
+    if (pattern_->n == 0) return FactorStatus::ok;
+    return factor_fresh(values);
+  }
+
+  double condition_estimate() override {
+    if (pattern_->n == 0 || numeric_ == nullptr || values_ == nullptr)
+      return std::numeric_limits<double>::quiet_NaN();
+    if (!klu_z_condest(col_ptr_.data(), as_doubles(values_), symbolic_, numeric_, &common_))
+      return std::numeric_limits<double>::quiet_NaN();
+    return common_.condest;
   }
 
   int singular_column() const override { return singular_column_; }
@@ -96,6 +112,7 @@ class KluLu final : public SparseLu {
   klu_symbolic* symbolic_ = nullptr;
   klu_numeric* numeric_ = nullptr;
   const CscPattern* pattern_ = nullptr;
+  const std::complex<double>* values_ = nullptr;  // of the last factorisation
   std::vector<int> col_ptr_, row_index_;  // KLU wants mutable int arrays
   double rcond_at_factor_ = 0;
   int singular_column_ = -1;
@@ -121,6 +138,7 @@ class RealKluLu final : public RealSparseLu {
   }
 
   FactorStatus factor(const double* values) override {
+    values_ = values;
     if (n_ == 0) return FactorStatus::ok;
     if (numeric_ != nullptr) klu_free_numeric(&numeric_, &common_);
     numeric_ = klu_factor(col_ptr_.data(), row_index_.data(), const_cast<double*>(values), symbolic_,
@@ -141,6 +159,14 @@ class RealKluLu final : public RealSparseLu {
     klu_solve(symbolic_, numeric_, n_, count, rhs, &common_);
   }
 
+  double condition_estimate() override {
+    if (n_ == 0 || numeric_ == nullptr || values_ == nullptr)
+      return std::numeric_limits<double>::quiet_NaN();
+    if (!klu_condest(col_ptr_.data(), const_cast<double*>(values_), symbolic_, numeric_, &common_))
+      return std::numeric_limits<double>::quiet_NaN();
+    return common_.condest;
+  }
+
  private:
   void release() {
     if (numeric_ != nullptr) klu_free_numeric(&numeric_, &common_);
@@ -151,6 +177,7 @@ class RealKluLu final : public RealSparseLu {
   klu_symbolic* symbolic_ = nullptr;
   klu_numeric* numeric_ = nullptr;
   int n_ = 0;
+  const double* values_ = nullptr;
   std::vector<int> col_ptr_, row_index_;
   int singular_column_ = -1;
 };

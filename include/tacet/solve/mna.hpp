@@ -2,7 +2,10 @@
 // Modified nodal analysis: the linear system Y(s) x = b of a flat circuit.
 //
 // Unknowns, in this order:
-//   node voltages, V, one per node except gnd (node id k -> unknown k - 1);
+//   node voltages, V, one per node except gnd (node id k -> unknown k - 1),
+//     except in a group of nodes joined by stiff parts (below): there one node
+//     (the group's root) keeps its voltage and every other node's unknown is
+//     its difference from the root, delta = v_root - v_node;
 //   internal nodes, V, one per op amp with rout > 0 (the gain source's node);
 //   branch currents, A, one per vsource, inductor, vcvs and op-amp output,
 //     each flowing from the element's first terminal through it to its second
@@ -17,6 +20,17 @@
 //            wp = 2 pi gbw / aol, wp2 = 2 pi fp2 (factor absent when fp2 = 0);
 //            v_x is the output pin (rout = 0) or the internal node (rout > 0).
 //            Dividing by A keeps the row well scaled for aol up to 1e9 and more.
+// Stiff parts: a resistor (capacitor) between two nodes whose conductance
+// (capacitance) is more than kStiffRatio times the smallest of its kind at
+// either node would, stamped on node voltages, be summed with its neighbours
+// in one entry, where 1e6 + 1e-12 is 1e6: a 1 Tohm - 1 uohm - 1 Tohm divider
+// would be singular. Its nodes are written as a root voltage and small
+// differences instead, and the part stamps only on the differences, so no
+// entry sums values that far apart and the small voltage across it is an
+// unknown of its own, exact to the last digit. Rows stay Kirchhoff's law at
+// each node; only what a node's column means changes. Read node voltages
+// with node_voltage() or voltage_terms(), never as x[node_unknown(node)].
+//
 // Every matrix entry is a polynomial c0 + c1 s + c2 s^2 of the Laplace
 // variable s = j 2 pi f, so the pattern and its coefficients are computed once
 // and assemble() only evaluates them: no allocation, no search per point.
@@ -74,8 +88,34 @@ class MnaSystem {
   /// Writes b (size() entries) from every source's AC phasor.
   void excitation(std::complex<double>* rhs) const;
 
-  /// Unknown of a node's voltage; -1 for gnd.
+  /// The row of a node's Kirchhoff equation (inject a current there), which
+  /// is also the unknown of its voltage unless the node sits in a stiff
+  /// group; -1 for gnd.
   int node_unknown(int node) const { return node - 1; }
+  /// A node's voltage as at most two terms c * x[unknown] (none for gnd).
+  struct VoltageTerm {
+    int unknown;
+    double coefficient;
+  };
+  struct VoltageTerms {
+    std::array<VoltageTerm, 2> term{};
+    int count = 0;
+  };
+  VoltageTerms voltage_terms(int node) const;
+  /// Voltage of the node whose unknown (row) is `unknown` in a solution x.
+  template <typename T>
+  T voltage_at_unknown(const T* x, int unknown) const {
+    if (unknown < 0) return T{};
+    const int root = unknown < node_unknowns_ ? root_of_[static_cast<std::size_t>(unknown)] : -1;
+    return root < 0 ? x[unknown] : x[root] - x[unknown];
+  }
+  /// Voltage of node id `node` in a solution x (0 for gnd).
+  template <typename T>
+  T node_voltage(const T* x, int node) const {
+    return voltage_at_unknown(x, node_unknown(node));
+  }
+  /// How many parts were found stiff (for tests and the docs).
+  int stiff_parts() const { return stiff_parts_; }
   /// Branch current unknown of an element; -1 if it has none.
   int branch_unknown(std::size_t element) const { return branch_of_[element]; }
   /// Row of an op amp's gain equation (its branch unknown's row); -1 if not an
@@ -108,6 +148,7 @@ class MnaSystem {
   template <typename Visit>
   void for_each_term(Visit&& visit) const;
   void build_pattern();
+  void group_stiff_nodes();
 
   const Circuit* circuit_;
   CscPattern pattern_;
@@ -116,7 +157,10 @@ class MnaSystem {
   std::vector<int> branch_of_;              // per element
   std::vector<int> internal_of_;            // per element: internal node unknown or -1
   std::vector<std::size_t> owner_of_;       // per non-node unknown: element index
+  std::vector<int> root_of_;                // per node unknown: its group root's unknown, or -1
+  std::vector<bool> stiff_;                 // per element: stamped on differences
   int node_unknowns_ = 0;
+  int stiff_parts_ = 0;
 };
 
 }  // namespace tacet

@@ -13,6 +13,7 @@
 // one): the adjoint noise analysis needs exactly that.
 
 #include <complex>
+#include <limits>
 #include <memory>
 #include <string>
 #include <vector>
@@ -45,6 +46,15 @@ class SparseLu {
   virtual void solve_transposed(std::complex<double>* rhs_in_out) = 0;
   /// How many full (pivoting) factorisations were done, for tests and the benchmark.
   virtual int full_factorizations() const = 0;
+  /// A factorisation with pivots chosen afresh for these values (a backend
+  /// that reuses an earlier pivot sequence in factor() drops it here).
+  virtual FactorStatus factor_new_pivots(const std::complex<double>* values) { return factor(values); }
+  /// An estimate of the 1-norm condition number of the matrix factored last;
+  /// NaN when the backend has none. Costs a few solves: for messages only.
+  virtual double condition_estimate() { return std::numeric_limits<double>::quiet_NaN(); }
+  /// The frequency (Hz; 0 at DC) of the matrix about to be factored, named
+  /// when a solution cannot be trusted.
+  virtual void at_point(double /*hz*/) {}
 };
 
 /// LU of a real sparse matrix: the DC system (s = 0 leaves every entry real),
@@ -58,12 +68,23 @@ class RealSparseLu {
   /// rhs_in_out: `count` columns of n values each (column after column), each
   /// b on entry and x with A x = b on return; solved together, in blocks.
   virtual void solve(double* rhs_in_out, int count) = 0;
+  virtual double condition_estimate() { return std::numeric_limits<double>::quiet_NaN(); }
 };
 
 enum class SolverKind { klu, eigen };
 const char* to_string(SolverKind kind);
 
+/// The backend wrapped in the solution check (sparse_solver_checked.cpp):
+/// every solve's componentwise backward error is measured; a poor one gets
+/// iterative refinement, then fresh pivots, and a SolveError (exit 3) with the
+/// error and the condition estimate when neither brings it under 1e-9.
 std::unique_ptr<SparseLu> make_sparse_lu(SolverKind kind = SolverKind::klu);
 std::unique_ptr<RealSparseLu> make_real_sparse_lu(SolverKind kind = SolverKind::klu);
+/// The same backends without the check, for tests of the check itself.
+std::unique_ptr<SparseLu> make_unchecked_sparse_lu(SolverKind kind);
+std::unique_ptr<RealSparseLu> make_unchecked_real_sparse_lu(SolverKind kind);
+/// Wraps any backend (a test double, too) in the solution check.
+std::unique_ptr<SparseLu> checked(std::unique_ptr<SparseLu> backend);
+std::unique_ptr<RealSparseLu> checked(std::unique_ptr<RealSparseLu> backend);
 
 }  // namespace tacet
