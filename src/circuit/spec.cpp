@@ -6,7 +6,7 @@ namespace tacet {
 
 namespace {
 
-constexpr std::array<std::pair<SpecKind, const char*>, 9> kKindNames{{
+constexpr std::array<std::pair<SpecKind, const char*>, 11> kKindNames{{
     {SpecKind::gain, "gain"},
     {SpecKind::flatness, "flatness"},
     {SpecKind::phase, "phase"},
@@ -16,6 +16,8 @@ constexpr std::array<std::pair<SpecKind, const char*>, 9> kKindNames{{
     {SpecKind::snr, "snr"},
     {SpecKind::offset, "offset"},
     {SpecKind::rails, "rails"},
+    {SpecKind::settling, "settling"},
+    {SpecKind::overshoot, "overshoot"},
 }};
 
 }  // namespace
@@ -49,6 +51,8 @@ const char* to_string(SpecUnit unit) {
     case SpecUnit::degrees: return "deg";
     case SpecUnit::hertz: return "Hz";
     case SpecUnit::volts: return "V";
+    case SpecUnit::seconds: return "s";
+    case SpecUnit::fraction: return "fraction";
   }
   return "";
 }

@@ -18,6 +18,8 @@ std::string format_spec_value(double value, SpecUnit unit) {
     case SpecUnit::degrees: return fmt::format("{:.2f} deg", value);
     case SpecUnit::hertz: return format_si(value, 5) + "Hz";
     case SpecUnit::volts: return format_si(value, 4) + "V";
+    case SpecUnit::seconds: return format_si(value, 6) + "s";
+    case SpecUnit::fraction: return fmt::format("{:.4g} %", 100 * value);
   }
   return fmt::format("{}", value);
 }
@@ -29,6 +31,8 @@ std::string bare(double value, SpecUnit unit) {
   switch (unit) {
     case SpecUnit::hertz: return format_si(value, 6) + "Hz";
     case SpecUnit::volts: return format_si(value, 6) + "V";
+    case SpecUnit::seconds: return format_si(value, 6) + "s";
+    case SpecUnit::fraction: return fmt::format("{:g} %", 100 * value);
     default: return fmt::format("{:g}", value);
   }
 }
@@ -41,7 +45,9 @@ std::string unit_suffix(SpecUnit unit) {
     case SpecUnit::amps_per_volt: return " A/V";
     case SpecUnit::degrees: return " deg";
     case SpecUnit::hertz:
-    case SpecUnit::volts: return "";
+    case SpecUnit::volts:
+    case SpecUnit::seconds:
+    case SpecUnit::fraction: return "";
   }
   return "";
 }

@@ -22,6 +22,8 @@ enum class SpecKind {
   snr,           ///< signal-to-noise ratio over [from, to] at least min (dB), signal `level` at `input`
   offset,        ///< worst-case DC offset band of a node at most max (V)
   rails,         ///< every op-amp output at least `margin` inside its rails minus swing
+  settling,      ///< step response from `input` settled to `band` of final within max (s)
+  overshoot,     ///< step response from `input`: (peak - final) / final at most max (fraction)
 };
 
 const char* to_string(SpecKind kind);
@@ -32,7 +34,7 @@ const std::vector<std::string>& spec_kind_names();
 /// How a spec's value and limits are written and shown.
 /// `ratio` is V/V; `amps_per_volt` the ratio of a branch-current probe i(NAME)
 /// to a voltage source's ac, as a gain spec on a current reports it.
-enum class SpecUnit { db, ratio, amps_per_volt, degrees, hertz, volts };
+enum class SpecUnit { db, ratio, amps_per_volt, degrees, hertz, volts, seconds, fraction };
 const char* to_string(SpecUnit unit);
 
 struct Spec {
@@ -48,9 +50,11 @@ struct Spec {
   std::optional<double> min;  ///< in `unit`
   std::optional<double> max;  ///< in `unit`
   SpecUnit unit = SpecUnit::db;
-  std::string input;      ///< snr: the source the signal enters at
+  std::string input;      ///< snr: the source the signal enters at; settling, overshoot: the
+                          ///< source that steps (empty: the only source with an ac value)
   double level = 0;       ///< snr: rms signal at `input`, V
   double margin = 0;      ///< rails: V inside the rails minus swing
+  double band = 1e-4;     ///< settling: the band about final, a fraction of it
 };
 
 }  // namespace tacet
