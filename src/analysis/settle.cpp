@@ -436,11 +436,17 @@ double value_at(const std::vector<StepRecord>& steps, std::size_t k, double t) {
       "a pole with little damping? see tacet poles; --to T shows the response up to T");
 }
 
+// Until the state is quiet and at least to `required_end` (0: no --to). With
+// --to, the response may take as many steps again after it to become quiet;
+// without, kSettleMaxSteps in all, else an error.
 Integration integrate(StepRun& run, double required_end) {
   Integration out;
+  std::size_t steps_to_end = 0;  // steps it took to reach required_end
   for (;;) {
-    if (static_cast<int>(out.steps.size()) >= kSettleMaxSteps) {
-      if (run.time() < required_end) unsettled(run.time(), false);
+    const std::size_t taken = out.steps.size();
+    if (taken >= static_cast<std::size_t>(kSettleMaxSteps) ||
+        (steps_to_end > 0 && taken >= 2 * steps_to_end)) {
+      if (required_end == 0 || run.time() < required_end) unsettled(run.time(), false);
       break;
     }
     double growth = 0;
@@ -450,6 +456,8 @@ Integration integrate(StepRun& run, double required_end) {
       if (run.time() < required_end || required_end == 0) unsettled(run.time(), true);
       break;
     }
+    if (required_end > 0 && steps_to_end == 0 && run.time() >= required_end)
+      steps_to_end = out.steps.size();
     if (distance <= kQuietFraction * run.band() && run.time() >= required_end) {
       out.settled = true;
       out.quiet_time = run.time();

@@ -26,7 +26,8 @@
 // How long it integrates: until every unknown is within kQuietFraction x band
 // of its final value (relative to its scale), so no mode can still carry a
 // probe out of its band (a stable linear system's state only decays from
-// there, up to its transient growth), and at least to --to. Default --to: 2 x
+// there, up to its transient growth), and at least to --to (after which it
+// takes at most as many steps again as the window did). Default --to: 2 x
 // the largest settling time (the response and as much again), or the quiet
 // time when no probe leaves its band.
 
@@ -41,7 +42,7 @@
 namespace tacet {
 
 /// At most this many accepted steps before the response counts as unsettled.
-inline constexpr int kSettleMaxSteps = 20000;
+inline constexpr int kSettleMaxSteps = 100000;
 /// Quiet: every unknown within this fraction of the band of its final value.
 inline constexpr double kQuietFraction = 1e-3;
 
