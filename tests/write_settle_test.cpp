@@ -34,7 +34,7 @@ TEST_CASE("the settle picture shows each response, the settling band and the set
   const SettleResult r = rlc_step();
   const auto root = xml::parse(settle_svg(r, context()));
   const auto panels = root->with_class("panel");
-  REQUIRE(panels.size() == 1);
+  REQUIRE(panels.size() == 2);  // the response, its deviation from final on a log axis
   const auto traces = panels[0]->with_class("trace");
   REQUIRE(traces.size() == 2);
   for (const auto* t : traces) CHECK(path_points(t->attribute("d")).points.size() == r.times.size());
@@ -42,6 +42,9 @@ TEST_CASE("the settle picture shows each response, the settling band and the set
   // The voltage settles within the window; the current's final value is 0, so it has none.
   CHECK(panels[0]->with_class("marker").size() == 1);
   CHECK(root->with_class("x-tick").size() >= 3);
+  const auto deviation = panels[1]->with_class("trace");
+  REQUIRE(deviation.size() == 1);  // only the probe with a final value
+  CHECK(panels[1]->with_class("marker").size() == 2);  // the band's line and the settling time
 }
 
 TEST_CASE("the settle JSON carries the contract's fields per trace", "[settle]") {

@@ -3,6 +3,8 @@
 
 #include <fmt/format.h>
 
+#include <cmath>
+
 #include "tacet/common/format.hpp"
 #include "tacet/report/write_settle.hpp"
 
@@ -21,6 +23,23 @@ std::string response_unit(const SettleResult& r) {
   for (const auto& t : r.traces)
     if (unit != t.unit) return "V or A";
   return unit;
+}
+
+// A band of 0.01 % is a hair's breadth on the response's own scale: the second
+// panel shows |v / final - 1| on a log axis, the band as a line across it.
+plot::Panel deviation_panel(const SettleResult& r, std::vector<plot::VerticalLine> markers) {
+  plot::Panel panel;
+  panel.y = plot::Axis{"|v / final - 1|", "", plot::Scale::log};
+  for (const auto& t : r.traces) {
+    if (!t.overshoot) continue;  // final 0: no deviation relative to it
+    std::vector<double> deviation;
+    for (const double v : t.values) deviation.push_back(std::abs(v / t.final - 1));
+    panel.traces.emplace_back(t.probe, r.times, std::move(deviation));
+  }
+  if (!r.traces.empty())
+    panel.horizontals.push_back({r.traces[0].band, fmt::format("band {:.4g} %", 100 * r.traces[0].band)});
+  panel.verticals = std::move(markers);
+  return panel;
 }
 
 }  // namespace
@@ -48,6 +67,7 @@ plot::Figure settle_figure(const SettleResult& r, const ReportContext& context) 
       std::move(markers));
   figure.subtitle = fmt::format("{}: response to a 1 {} step of {}", context.file, r.input_unit,
                                 r.input);
+  figure.panels.push_back(deviation_panel(r, figure.panels.front().verticals));
   figure.id = "settle";
   return figure;
 }

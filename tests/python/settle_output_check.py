@@ -54,9 +54,10 @@ def main() -> int:
         run = subprocess.run(common + ["--format", "svg", "--output", svg_path], capture_output=True, text=True)
         data = json.loads(subprocess.run(common + ["--format", "json"], capture_output=True, text=True).stdout)
         root = ET.parse(svg_path).getroot()
-        traces = [e for e in root.iter(SVG + "path") if "trace" in e.get("class", "").split()]
-        bands = [e for e in root.iter(SVG + "rect") if e.get("class") == "band"]
-        markers = [e for e in root.iter(SVG + "line") if e.get("class") == "marker"]
+        panel = next(g for g in root.iter(SVG + "g") if g.get("class") == "panel")
+        traces = [e for e in panel.iter(SVG + "path") if "trace" in e.get("class", "").split()]
+        bands = [e for e in panel.iter(SVG + "rect") if e.get("class") == "band"]
+        markers = [e for e in panel.iter(SVG + "line") if e.get("class") == "marker"]
         counts = [d.count("L") + 1 for d in (t.get("d") for t in traces)]
         expected = [len(t["points"]) for t in data["traces"]]
         ok = run.returncode == 0 and counts == expected and len(bands) == 1 and len(markers) == 1

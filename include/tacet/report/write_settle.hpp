@@ -6,7 +6,9 @@
 // time to the band, then the response at every printed point.
 // CSV: t_s, then one column per probe (its unit in the name), full precision.
 // SVG: the responses against time, the settling band of the first probe
-// shaded about its final value and each probe's settling time marked.
+// shaded about its final value and each probe's settling time marked; below,
+// |v / final - 1| on a log axis with the band as a line (0.01 % is invisible
+// on the response's own scale).
 
 #include <string>
 
