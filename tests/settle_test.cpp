@@ -240,3 +240,45 @@ TEST_CASE("settle refuses an unstable circuit without --to", "[settle]") {
   b.add(ElementKind::vcvs, "E1", {"out", "gnd", "x", "gnd"}, 3.0);
   CHECK_THROWS_AS(run_settle(b.circuit, probing({"out"})), SolveError);
 }
+
+TEST_CASE("settle steps the only source with an ac value, and asks when there are several",
+          "[settle]") {
+  // Two RC low-passes from two sources; the second source has no ac value, so
+  // the first steps by default (same closed form as above, RC = 1 us).
+  CircuitBuilder b;
+  b.vsrc("Vin", "in", "gnd", 1.0);
+  b.add(ElementKind::resistor, "R1", {"in", "out"}, 1e3);
+  b.add(ElementKind::capacitor, "C1", {"out", "gnd"}, 1e-9);
+  b.vsrc("Vref", "ref", "gnd", 0.0);
+  b.add(ElementKind::resistor, "R2", {"ref", "gnd"}, 1e3);
+  const SettleResult r = run_settle(b.circuit, probing({"out"}));
+  CHECK(r.input == "Vin");
+  CHECK_THAT(*r.traces[0].settling_time, IsClose(1e-6 * std::log(1e4), 1e-6));
+  b.circuit.elements[3].ac_magnitude = 1.0;  // now Vref has an ac value too
+  try {
+    run_settle(b.circuit, probing({"out"}));
+    FAIL("no error for two candidate sources");
+  } catch (const InputError& e) {
+    CHECK(std::string(e.what()) ==
+          "error: settle: which source steps? the circuit has 2 sources with an ac value\n"
+          "hint: name one with --input; sources: Vin Vref\n");
+  }
+}
+
+TEST_CASE("with --to an unstable circuit's window is printed without a settling time",
+          "[settle]") {
+  // The positive-feedback RC of the test above: it grows as exp(t / RC).
+  CircuitBuilder b;
+  b.vsrc("Vin", "in", "gnd", 1.0);
+  b.add(ElementKind::resistor, "R1", {"in", "x"}, 1e3);
+  b.add(ElementKind::capacitor, "C1", {"x", "gnd"}, 1e-9);
+  b.add(ElementKind::resistor, "R2", {"x", "out"}, 1e3);
+  b.add(ElementKind::vcvs, "E1", {"out", "gnd", "x", "gnd"}, 3.0);
+  SettleOptions o = probing({"x"});
+  o.to = 5e-6;
+  const SettleResult r = run_settle(b.circuit, o);
+  CHECK_FALSE(r.settled);
+  CHECK_FALSE(r.traces[0].settling_time);
+  // Nodal analysis: C x' = (1 + x) / R from x(0) = 0, so x = exp(t / RC) - 1.
+  CHECK_THAT(r.traces[0].values.back(), IsClose(std::exp(5.0) - 1, 1e-6));
+}
