@@ -264,7 +264,6 @@ struct Integration {
   std::vector<StepRecord> steps;
   double quiet_time = 0;
   bool settled = false;
-  int factorisations = 0;
 };
 
 class StepRun {
@@ -464,7 +463,6 @@ Integration integrate(StepRun& run, double required_end) {
       break;
     }
   }
-  out.factorisations = run.factorisations();
   return out;
 }
 
