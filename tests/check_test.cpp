@@ -370,3 +370,55 @@ TEST_CASE("check reuses the analyses a caller shares instead of running its own"
   CHECK(failed.specs[0].note == "circuit cannot be solved at DC: no DC point here");
   CHECK(failed.unsolved() == 1);
 }
+
+TEST_CASE("a settling spec measures the step response's time into its band", "[check][settle]") {
+  // RC low-pass step 1 - exp(-t/RC): inside band b of final from RC ln(1/b) on
+  // (first-order RC network, closed form); RC = 100 us.
+  const double tau = 10e3 * 10e-9;
+  auto r = check_one(kRc, "spec s settling (out) max=1ms");
+  REQUIRE(r.value);
+  CHECK(*r.value == Approx(tau * std::log(1e4)).epsilon(1e-6));
+  CHECK(r.pass);
+  CHECK(r.spec.unit == SpecUnit::seconds);
+  auto wide = check_one(kRc, "spec s settling (out) band=1% max=400us input=Vin");
+  CHECK(*wide.value == Approx(tau * std::log(100.0)).epsilon(1e-6));
+  CHECK_FALSE(wide.pass);
+  CHECK(wide.margin == Approx(400e-6 - tau * std::log(100.0)).epsilon(1e-6));
+}
+
+TEST_CASE("an overshoot spec measures (peak - final) / final of the step response",
+          "[check][settle]") {
+  // Butterworth second order, zeta = 1/sqrt 2: overshoot exp(-pi zeta / sqrt(1 - zeta^2))
+  // = exp(-pi) = 4.32 % (standard second-order step response, e.g. Ogata 5-3).
+  auto pass = check_one(kButterworth, "spec o overshoot (out) max=5%");
+  REQUIRE(pass.value);
+  CHECK(*pass.value == Approx(std::exp(-std::numbers::pi)).epsilon(1e-6));
+  CHECK(pass.pass);
+  auto fail = check_one(kButterworth, "spec o overshoot (out) max=0.04");
+  CHECK_FALSE(fail.pass);
+}
+
+TEST_CASE("settling and overshoot specs refuse bad keys where they are written",
+          "[check][elaborate][settle]") {
+  auto first_line = [](const std::string& spec, const std::string& circuit) {
+    auto r = elaborate_text(circuit + spec + "\n");
+    return r.diagnostics.substr(0, r.diagnostics.find('\n'));
+  };
+  CHECK(first_line("spec s settling (out) band=0 max=1ms", kRc) ==
+        "main.tacet:4:28: error: band= must be a fraction above 0 and below 1");
+  CHECK(first_line("spec s settling (out) max=-1us", kRc) ==
+        "main.tacet:4:27: error: max= must be a time of 0 s or more");
+  CHECK(first_line("spec s settling (out) max=1kHz", kRc) ==
+        "main.tacet:4:27: error: unit 'kHz' is a frequency; a time is wanted here");
+  CHECK(first_line("spec o overshoot (out) max=-5%", kRc) ==
+        "main.tacet:4:28: error: max= must be a fraction of 0 or more");
+  CHECK(first_line("spec s settling (out) max=1ms input=R1", kRc) ==
+        "main.tacet:4:37: error: input= must name a voltage or current source");
+  CHECK(first_line("spec s settling (out) max=1ms current=C1", kRc) ==
+        "main.tacet:4:39: error: a step response gives no capacitor current; measure the "
+        "voltage across it");
+  CHECK(first_line("spec s settling (out) max=1ms", kRc + "vsrc V2 (b, gnd) ac=1\nres R2 (b, gnd) 1k\n") ==
+        "main.tacet:6:6: error: spec 's' needs input=: the circuit has 2 sources with an ac value");
+  CHECK(first_line("spec s settling (out) max=1ms bnd=1%", kRc) ==
+        "main.tacet:4:31: error: a settling spec takes no option 'bnd'");
+}

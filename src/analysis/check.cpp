@@ -4,6 +4,7 @@
 #include <cmath>
 #include <functional>
 #include <limits>
+#include <map>
 #include <memory>
 #include <unordered_map>
 
@@ -18,6 +19,7 @@
 #include "tacet/analysis/bias.hpp"
 #include "tacet/analysis/headroom.hpp"
 #include "tacet/analysis/noise.hpp"
+#include "tacet/analysis/settle.hpp"
 
 namespace tacet {
 
@@ -106,6 +108,8 @@ class SpecMeter {
       case SpecKind::rails: rails(r); break;
       case SpecKind::deviation: deviation(r); break;
       case SpecKind::mask: mask(r); break;
+      case SpecKind::settling:
+      case SpecKind::overshoot: step(r); break;
     }
   }
 
@@ -344,7 +348,43 @@ class SpecMeter {
     if (!smallest) r.note = "no op amp has rails to check: declare supply or rails=";
   }
 
+  /// One step response per (input, probe, band), shared by its settling and
+  /// overshoot specs; overshoot takes the default band (it does not depend on it).
+  const SettleTrace& step_response(const Spec& s, double band) {
+    const std::string key = fmt::format("{}\n{}\n{}", s.input, s.probe, band);
+    auto it = steps_.find(key);
+    if (it == steps_.end()) {
+      SettleOptions options;
+      options.probes = {s.probe};
+      options.input = s.input;
+      options.band = band;
+      options.points = 2;
+      it = steps_.emplace(key, run_settle(circuit_, options)).first;
+    }
+    return it->second.traces.front();
+  }
+
+  void step(SpecResult& r) {
+    const Spec& s = r.spec;
+    const bool settling = s.kind == SpecKind::settling;
+    const SettleTrace& t = step_response(s, settling ? s.band : SettleOptions{}.band);
+    const std::string final = format_si(t.final, 6) + t.unit;
+    if (!t.overshoot) {
+      r.note = "the final value is 0 (no DC gain): no overshoot or settling relative to it";
+      return;
+    }
+    if (settling) {
+      r.value = t.settling_time;
+      r.note = t.settling_time ? fmt::format("to +-{:g} % of {}", 100 * s.band, final)
+                               : "the response has not settled";
+    } else {
+      r.value = t.overshoot;
+      r.note = fmt::format("peak {}{}, final {}", format_si(t.peak, 6), t.unit, final);
+    }
+  }
+
   const Circuit& circuit_;
+  std::map<std::string, SettleResult> steps_;
   std::unique_ptr<BiasResult> bias_;
   std::optional<SolveError> bias_error_;  ///< why the DC analysis cannot run; empty: it can (or not tried)
   std::unique_ptr<HeadroomResult> headroom_;

@@ -6,7 +6,7 @@ namespace tacet {
 
 namespace {
 
-constexpr std::array<std::pair<SpecKind, const char*>, 11> kKindNames{{
+constexpr std::array<std::pair<SpecKind, const char*>, 13> kKindNames{{
     {SpecKind::gain, "gain"},
     {SpecKind::flatness, "flatness"},
     {SpecKind::phase, "phase"},
@@ -18,6 +18,8 @@ constexpr std::array<std::pair<SpecKind, const char*>, 11> kKindNames{{
     {SpecKind::rails, "rails"},
     {SpecKind::deviation, "deviation"},
     {SpecKind::mask, "mask"},
+    {SpecKind::settling, "settling"},
+    {SpecKind::overshoot, "overshoot"},
 }};
 
 }  // namespace
@@ -54,6 +56,8 @@ const char* to_string(SpecUnit unit) {
     case SpecUnit::amps: return "A";
     case SpecUnit::volts_per_amp: return "V/A";
     case SpecUnit::amps_per_amp: return "A/A";
+    case SpecUnit::seconds: return "s";
+    case SpecUnit::fraction: return "fraction";
   }
   return "";
 }

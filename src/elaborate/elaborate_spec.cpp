@@ -48,6 +48,12 @@ constexpr KeyRule kMaskKeys[] = {
     {"min", Dimension::decibel, KeyForm::value, Need::repeated},
     {"max", Dimension::decibel, KeyForm::value, Need::repeated},
     {"ref", Dimension::frequency}, kCurrent, kInput};
+constexpr KeyRule kSettlingKeys[] = {{"input", Dimension::none}, {"band", Dimension::ratio},
+                                     {"max", Dimension::time, KeyForm::value, Need::required},
+                                     kCurrent};
+constexpr KeyRule kOvershootKeys[] = {{"input", Dimension::none},
+                                      {"max", Dimension::ratio, KeyForm::value, Need::required},
+                                      kCurrent};
 
 KeyTable options_for(SpecKind kind) {
   switch (kind) {
@@ -62,6 +68,8 @@ KeyTable options_for(SpecKind kind) {
     case SpecKind::rails: return kRailsKeys;
     case SpecKind::deviation: return kDeviationKeys;
     case SpecKind::mask: return kMaskKeys;
+    case SpecKind::settling: return kSettlingKeys;
+    case SpecKind::overshoot: return kOvershootKeys;
   }
   return {};
 }
@@ -210,6 +218,45 @@ bool Elaborator::read_input_source(Spec& spec, const SpecKeys& given) {
   return true;
 }
 
+// settling and overshoot: the limit, the band, and the source that steps
+// (input=, or else the circuit's one source with an ac value).
+bool Elaborator::read_step_spec(Spec& spec, const ast::Spec& ast_spec, const SpecKeys& given,
+                                bool& ok) {
+  const bool settling = spec.kind == SpecKind::settling;
+  spec.unit = settling ? SpecUnit::seconds : SpecUnit::fraction;
+  spec.max = spec_number(given, "max", settling ? Dimension::time : Dimension::ratio, ok);
+  if (ok && !(*spec.max >= 0 && std::isfinite(*spec.max))) {
+    const KeyValue& max = given.at("max");
+    error(max.file, extent(*max.value),
+          settling ? "max= must be a time of 0 s or more" : "max= must be a fraction of 0 or more",
+          settling ? "write max=10us" : "write max=5%");
+    return false;
+  }
+  if (const auto band = spec_number(given, "band", Dimension::ratio, ok)) {
+    spec.band = *band;
+    if (ok && !(spec.band > 0 && spec.band < 1)) {
+      const KeyValue& b = given.at("band");
+      error(b.file, extent(*b.value), "band= must be a fraction above 0 and below 1",
+            "write band=0.01% or band=1e-4");
+      return false;
+    }
+  }
+  if (!ok) return false;
+  if (given.count("input")) return read_input_source(spec, given);
+  std::vector<std::string> sources, with_ac;
+  for (const auto& e : circuit_.elements) {
+    if (traits(e.kind).drive == Drive::none) continue;
+    sources.push_back(e.name);
+    if (e.ac_magnitude != 0) with_ac.push_back(e.name);
+  }
+  if (with_ac.size() == 1 || sources.size() == 1) return true;
+  error(spec.where.file, ast_spec.name,
+        fmt::format("spec '{}' needs input=: the circuit has {} sources{}", spec.name,
+                    sources.size(), with_ac.size() > 1 ? " with an ac value" : ""),
+        choice_hint("", with_ac.size() > 1 ? with_ac : sources, "sources"));
+  return false;
+}
+
 bool Elaborator::read_spec_limits(Spec& spec, const ast::Spec& ast_spec, const SpecKeys& given,
                                   bool& ok) {
   auto needs_a_limit = [&] {
@@ -282,6 +329,8 @@ bool Elaborator::read_spec_limits(Spec& spec, const ast::Spec& ast_spec, const S
       spec.min = 0.0;  // the closest approach to the mask, inside it
       spec.relative = given.count("ref") > 0;
       return ok && read_mask(spec, ast_spec, spec.where.file);
+    case SpecKind::settling:
+    case SpecKind::overshoot: return read_step_spec(spec, ast_spec, given, ok);
   }
   return true;
 }
@@ -299,6 +348,16 @@ bool Elaborator::attach_spec_probe(Spec& spec, const ast::Spec& ast_spec, const 
   if (spec.kind == SpecKind::offset && probe->find(',') != std::string::npos) {
     error(file, *ast_spec.probe, "an offset spec measures one node against gnd", "write (out)");
     return false;
+  }
+  if ((spec.kind == SpecKind::settling || spec.kind == SpecKind::overshoot) &&
+      current != given.end()) {
+    const auto element = circuit_.find_element(probe->substr(2, probe->size() - 3));
+    if (element && circuit_.elements[*element].kind == ElementKind::capacitor) {
+      error(file, extent(*current->second.value),
+            "a step response gives no capacitor current; measure the voltage across it",
+            "or the current of an element in series with it");
+      return false;
+    }
   }
   spec.probe = *probe;
   return true;

@@ -129,6 +129,7 @@ class Elaborator {
   bool read_input_source(Spec& spec, const SpecKeys& given);
   bool read_target(Spec& spec, const SpecKeys& given);
   bool read_mask(Spec& spec, const ast::Spec& ast_spec, int file);
+  bool read_step_spec(Spec& spec, const ast::Spec& ast_spec, const SpecKeys& given, bool& ok);
   bool attach_spec_probe(Spec& spec, const ast::Spec& ast_spec, const SpecKeys& given, int file);
 
   // elaborate_instance.cpp: elements and blocks

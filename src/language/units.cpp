@@ -32,7 +32,7 @@ struct UnitSymbol {
   Transform transform;
 };
 
-constexpr std::array<UnitSymbol, 17> kUnits{{
+constexpr std::array<UnitSymbol, 18> kUnits{{
     {"ohm", Dimension::resistance, Transform::scale},
     {"\xCE\xA9", Dimension::resistance, Transform::scale},  // Ω
     {"F", Dimension::capacitance, Transform::scale},
@@ -50,6 +50,7 @@ constexpr std::array<UnitSymbol, 17> kUnits{{
     {"A/rtHz", Dimension::current_density, Transform::scale},
     {"W", Dimension::power, Transform::scale},
     {"deg", Dimension::angle, Transform::scale},
+    {"s", Dimension::time, Transform::scale},
 }};
 
 std::optional<Unit> decode_unit(std::string_view text) {
@@ -85,6 +86,7 @@ const char* describe(Dimension dimension) {
     case Dimension::power: return "a power";
     case Dimension::angle: return "an angle";
     case Dimension::decibel: return "a level in dB";
+    case Dimension::time: return "a time";
     case Dimension::any: return "a value";
   }
   return "a value";

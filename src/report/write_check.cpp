@@ -21,6 +21,8 @@ std::string format_spec_value(double value, SpecUnit unit) {
     case SpecUnit::hertz: return format_si(value, 5) + "Hz";
     case SpecUnit::volts: return format_si(value, 4) + "V";
     case SpecUnit::amps: return format_si(value, 4) + "A";
+    case SpecUnit::seconds: return format_si(value, 6) + "s";
+    case SpecUnit::fraction: return fmt::format("{:.4g} %", 100 * value);
   }
   return fmt::format("{}", value);
 }
@@ -33,6 +35,8 @@ std::string bare(double value, SpecUnit unit) {
     case SpecUnit::hertz: return format_si(value, 6) + "Hz";
     case SpecUnit::volts: return format_si(value, 6) + "V";
     case SpecUnit::amps: return format_si(value, 6) + "A";
+    case SpecUnit::seconds: return format_si(value, 6) + "s";
+    case SpecUnit::fraction: return fmt::format("{:g} %", 100 * value);
     default: return fmt::format("{:g}", value);
   }
 }
@@ -49,6 +53,8 @@ std::string unit_suffix(SpecUnit unit) {
     case SpecUnit::hertz:
     case SpecUnit::volts:
     case SpecUnit::amps: return "";
+    case SpecUnit::seconds:
+    case SpecUnit::fraction: return "";
   }
   return "";
 }

@@ -25,6 +25,8 @@ enum class SpecKind {
   rails,         ///< every op-amp output at least `margin` inside its rails minus swing
   deviation,     ///< largest |dB(H/H(ref)) - dB(T/T(ref))| over [from, to] at most max (dB), T the target
   mask,          ///< closest approach of dB(H) (re H(ref), or absolute) to a mask, at least 0 dB
+  settling,      ///< step response from `input` settled to `band` of final within max (s)
+  overshoot,     ///< step response from `input`: (peak - final) / final at most max (fraction)
 };
 
 const char* to_string(SpecKind kind);
@@ -37,7 +39,8 @@ const std::vector<std::string>& spec_kind_names();
 /// to a voltage source's ac, as a gain spec on a current reports it.
 /// `amps` is a noise spec's rms on a branch current (current=R1);
 /// `volts_per_amp` and `amps_per_amp` a gain from a current source (input=I1).
-enum class SpecUnit { db, ratio, amps_per_volt, degrees, hertz, volts, amps, volts_per_amp, amps_per_amp };
+enum class SpecUnit { db, ratio, amps_per_volt, degrees, hertz, volts, amps, volts_per_amp, amps_per_amp,
+                      seconds, fraction };
 const char* to_string(SpecUnit unit);
 
 /// One point of a mask: at `f` the response lies within [low, high] dB (an
@@ -65,12 +68,14 @@ struct Spec {
   /// snr: the source the signal enters at; a response spec (gain, phase, flatness,
   /// corners, deviation, mask): the source whose transfer alone is measured, a unit
   /// at it and every other source's ac zeroed (empty: every source's ac, superposed)
+  /// settling, overshoot: the source that steps (empty: the only source with an ac value)
   std::string input;
   double level = 0;       ///< snr: rms signal at `input`, V
   double margin = 0;      ///< rails: V inside the rails minus swing
   TargetCurve target;     ///< deviation: the curve the response should follow
   std::vector<MaskPoint> mask;  ///< mask: the points, frequencies increasing
   bool relative = false;  ///< mask: bounds re |H(ref)| (ref= given), else re 1 V/V (or 1 A/V)
+  double band = 1e-4;     ///< settling: the band about final, a fraction of it
 };
 
 }  // namespace tacet

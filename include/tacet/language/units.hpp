@@ -28,6 +28,7 @@ enum class Dimension {
   power,        ///< W
   angle,        ///< degrees: deg
   decibel,      ///< a level in dB, kept in dB: plain or with dB (spec limits)
+  time,         ///< s (settle: --to, a settling spec's max)
   any,          ///< params and block arguments: every unit accepted
 };
 

@@ -1,0 +1,3 @@
+diff
+@/check_settle.tacet
+@/diff_settle_new.tacet

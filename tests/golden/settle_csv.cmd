@@ -1,0 +1,10 @@
+settle
+@/rc_lowpass.tacet
+--probe
+out
+--points
+6
+--band
+1%
+--format
+csv

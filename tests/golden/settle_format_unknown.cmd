@@ -1,0 +1,6 @@
+settle
+@/rc_lowpass.tacet
+--probe
+out
+--format
+html

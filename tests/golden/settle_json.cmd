@@ -1,0 +1,10 @@
+settle
+@/loop_follower.tacet
+--probe
+out
+--probe
+i(U1)
+--points
+5
+--format
+json

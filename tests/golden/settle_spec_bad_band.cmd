@@ -1,0 +1,2 @@
+check
+@/settle_spec_bad_band.tacet
