@@ -6,7 +6,7 @@ namespace tacet {
 
 namespace {
 
-constexpr std::array<std::pair<SpecKind, const char*>, 9> kKindNames{{
+constexpr std::array<std::pair<SpecKind, const char*>, 14> kKindNames{{
     {SpecKind::gain, "gain"},
     {SpecKind::flatness, "flatness"},
     {SpecKind::phase, "phase"},
@@ -16,6 +16,11 @@ constexpr std::array<std::pair<SpecKind, const char*>, 9> kKindNames{{
     {SpecKind::snr, "snr"},
     {SpecKind::offset, "offset"},
     {SpecKind::rails, "rails"},
+    {SpecKind::phase_margin, "phase_margin"},
+    {SpecKind::gain_margin, "gain_margin"},
+    {SpecKind::peaking, "peaking"},
+    {SpecKind::impedance, "impedance"},
+    {SpecKind::stable, "stable"},
 }};
 
 }  // namespace
@@ -49,6 +54,7 @@ const char* to_string(SpecUnit unit) {
     case SpecUnit::degrees: return "deg";
     case SpecUnit::hertz: return "Hz";
     case SpecUnit::volts: return "V";
+    case SpecUnit::ohms: return "ohm";
   }
   return "";
 }

@@ -127,6 +127,9 @@ class Elaborator {
   bool read_spec_limits(Spec& spec, const ast::Spec& ast_spec, const SpecKeys& given, bool& ok);
   bool read_gain_limits(Spec& spec, const ast::Spec& ast_spec, const SpecKeys& given, bool& ok);
   bool read_snr_input(Spec& spec, const SpecKeys& given);
+  bool read_stability_limits(Spec& spec, const ast::Spec& ast_spec, const SpecKeys& given, bool& ok);
+  bool read_impedance_limits(Spec& spec, const ast::Spec& ast_spec, const SpecKeys& given, bool& ok);
+  bool read_spec_opamp(Spec& spec, const SpecKeys& given);
   bool attach_spec_probe(Spec& spec, const ast::Spec& ast_spec, const SpecKeys& given, int file);
 
   // elaborate_instance.cpp: elements and blocks

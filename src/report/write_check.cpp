@@ -18,6 +18,7 @@ std::string format_spec_value(double value, SpecUnit unit) {
     case SpecUnit::degrees: return fmt::format("{:.2f} deg", value);
     case SpecUnit::hertz: return format_si(value, 5) + "Hz";
     case SpecUnit::volts: return format_si(value, 4) + "V";
+    case SpecUnit::ohms: return format_si(value, 5) + "ohm";
   }
   return fmt::format("{}", value);
 }
@@ -29,6 +30,7 @@ std::string bare(double value, SpecUnit unit) {
   switch (unit) {
     case SpecUnit::hertz: return format_si(value, 6) + "Hz";
     case SpecUnit::volts: return format_si(value, 6) + "V";
+    case SpecUnit::ohms: return format_si(value, 6) + "ohm";
     default: return fmt::format("{:g}", value);
   }
 }
@@ -41,7 +43,8 @@ std::string unit_suffix(SpecUnit unit) {
     case SpecUnit::amps_per_volt: return " A/V";
     case SpecUnit::degrees: return " deg";
     case SpecUnit::hertz:
-    case SpecUnit::volts: return "";
+    case SpecUnit::volts:
+    case SpecUnit::ohms: return "";
   }
   return "";
 }
@@ -50,6 +53,7 @@ std::string unit_suffix(SpecUnit unit) {
 
 std::string format_spec_limit(const Spec& spec) {
   if (spec.kind == SpecKind::rails) return fmt::format("{}V inside", format_si(spec.margin));
+  if (spec.kind == SpecKind::stable) return "< 0Hz";  // strictly: a pole on the axis fails
   if (spec.min && spec.max)
     return fmt::format("{} .. {}{}", bare(*spec.min, spec.unit), bare(*spec.max, spec.unit), unit_suffix(spec.unit));
   if (spec.min) return ">= " + bare(*spec.min, spec.unit) + unit_suffix(spec.unit);
@@ -65,6 +69,12 @@ std::string where_text(const SpecResult& r) {
     case SpecKind::flatness: return fmt::format("worst at {}Hz, ref {}Hz", format_si(r.where), format_si(r.spec.ref));
     case SpecKind::gain:
     case SpecKind::phase: return fmt::format("at {}Hz", format_si(r.where));
+    case SpecKind::phase_margin: return fmt::format("{} at crossover {}Hz", r.spec.opamp, format_si(r.where));
+    case SpecKind::gain_margin:
+      return fmt::format("{} at phase crossover {}Hz", r.spec.opamp, format_si(r.where));
+    case SpecKind::peaking: return fmt::format("peak at {}Hz, ref {}Hz", format_si(r.where), format_si(r.spec.ref));
+    case SpecKind::impedance:
+      return fmt::format("{} {}Hz", r.spec.at > 0 ? "at" : "largest at", format_si(r.where));
     default: return "";
   }
 }

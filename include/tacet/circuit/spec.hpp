@@ -22,6 +22,11 @@ enum class SpecKind {
   snr,           ///< signal-to-noise ratio over [from, to] at least min (dB), signal `level` at `input`
   offset,        ///< worst-case DC offset band of a node at most max (V)
   rails,         ///< every op-amp output at least `margin` inside its rails minus swing
+  phase_margin,  ///< smallest phase margin of `opamp`'s loop over [from, to] at least min (deg)
+  gain_margin,   ///< smallest gain margin of `opamp`'s loop over [from, to] at least min (dB)
+  peaking,       ///< largest dB(H(f)) - dB(H(ref)) over [from, to] at most max (dB)
+  impedance,     ///< |Z| of a z() probe at `at`, or its largest over [from, to], in [min, max] (ohm)
+  stable,        ///< every pole in the left half-plane: the rightmost pole's Re s/(2 pi) below 0 Hz
 };
 
 const char* to_string(SpecKind kind);
@@ -32,7 +37,7 @@ const std::vector<std::string>& spec_kind_names();
 /// How a spec's value and limits are written and shown.
 /// `ratio` is V/V; `amps_per_volt` the ratio of a branch-current probe i(NAME)
 /// to a voltage source's ac, as a gain spec on a current reports it.
-enum class SpecUnit { db, ratio, amps_per_volt, degrees, hertz, volts };
+enum class SpecUnit { db, ratio, amps_per_volt, degrees, hertz, volts, ohms };
 const char* to_string(SpecUnit unit);
 
 struct Spec {
@@ -51,6 +56,7 @@ struct Spec {
   std::string input;      ///< snr: the source the signal enters at
   double level = 0;       ///< snr: rms signal at `input`, V
   double margin = 0;      ///< rails: V inside the rails minus swing
+  std::string opamp;      ///< phase_margin, gain_margin: the op amp whose loop is measured
 };
 
 }  // namespace tacet
