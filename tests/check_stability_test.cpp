@@ -13,6 +13,7 @@
 
 #include "is_close.hpp"
 #include "tacet/analysis/check.hpp"
+#include "tacet/analysis/diff.hpp"
 #include "tacet/analysis/poles.hpp"
 #include "text_circuit.hpp"
 
@@ -327,4 +328,23 @@ TEST_CASE("a margin spec on a loop that starts left of -1 fails with a note", "[
   CHECK_FALSE(r.pass);
   CHECK(r.note.find("Re T of U1 is -4950 at 10Hz (|T| = 4975)") == 0);  // T(10 Hz) = -5000 / (1 + j/10)
   CHECK(r.note.find("positive feedback with |T| > 1") != std::string::npos);
+}
+
+TEST_CASE("diff reports a margin spec that moved between revisions", "[check][diff]") {
+  // The two-pole stage with its feedback divider changed from beta = 1/2 to
+  // beta = 1/10: T0 = 5e4 -> 1e4 moves the crossover down and the margin up,
+  // each by its closed form.
+  const std::string spec = "spec pm phase_margin opamp=U1 min=45deg\n";
+  std::string rev_b = kTwoPoleStage + spec;
+  rev_b.replace(rev_b.find("res Rf (out, fb) 1k"), 19, "res Rf (out, fb) 9k");
+  auto old_c = elaborate_text(kTwoPoleStage + spec), new_c = elaborate_text(rev_b);
+  REQUIRE(old_c.circuit);
+  REQUIRE(new_c.circuit);
+  const DiffResult d = run_diff(*old_c.circuit, *new_c.circuit, {});
+  REQUIRE(d.specs.size() == 1);
+  CHECK(d.specs[0].name == "pm");
+  REQUIRE(d.specs[0].before->value);
+  REQUIRE(d.specs[0].after->value);
+  CHECK_THAT(*d.specs[0].before->value, IsClose(two_pole_margin(1e5 * 0.5, 100, 8e6).pm, 1e-9));
+  CHECK_THAT(*d.specs[0].after->value, IsClose(two_pole_margin(1e5 * 0.1, 100, 8e6).pm, 1e-9));
 }
