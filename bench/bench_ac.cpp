@@ -20,7 +20,15 @@
 // SVG section: run_ac over 2000 points against ac_svg of its result, on
 // ladders of 10 and 1000 sections, with one probe and with four.
 //
+// Netlist loop section (`--loop FILE...`, for bench/gen_chain.py's chains):
+// T of a sample of the netlist's op amps (at most kLoopSample, spread evenly
+// over the chain) at the 100 points, on one LoopGain (one factorisation a
+// point, one solve per op amp), against run_ac of the same circuit at its
+// first spec's probe; then a whole run_loop of the sample (sweep, the scan
+// grid shared by the op amps, every crossover's bisection).
+//
 // Usage: tacet_bench [SIZE...]     (default 10 1000 100000; 100 log points 1 Hz..100 MHz)
+//        tacet_bench --loop FILE... (the netlist loop section alone)
 
 #include <SuiteSparse_config.h>
 #include <dlfcn.h>
@@ -30,6 +38,7 @@
 #include <cmath>
 #include <cstdio>
 #include <cstdlib>
+#include <ctime>
 #include <new>
 #include <string>
 #include <vector>
@@ -38,6 +47,7 @@
 #include "tacet/analysis/loop.hpp"
 #include "tacet/solve/mna.hpp"
 #include "tacet/analysis/noise.hpp"
+#include "tacet/elaborate/elaborate.hpp"
 #include "tacet/report/write_svg.hpp"
 
 namespace {
@@ -352,10 +362,68 @@ void loop_section(const std::vector<int>& stages) {
   }
 }
 
+constexpr std::size_t kLoopSample = 20;
+
+// CPU seconds of this (single-threaded) process: on the shared build machine
+// the wall clock also counts other people's builds.
+double cpu_seconds() {
+  timespec t{};
+  clock_gettime(CLOCK_PROCESS_CPUTIME_ID, &t);
+  return static_cast<double>(t.tv_sec) + 1e-9 * static_cast<double>(t.tv_nsec);
+}
+
+double seconds_of(const auto& work) {
+  const double start = cpu_seconds();
+  work();
+  return cpu_seconds() - start;
+}
+
+void netlist_loop_section(const std::vector<std::string>& paths) {
+  std::printf("Loop gain against AC on netlists, %d points 1 Hz .. 100 MHz (KLU), CPU seconds\n",
+              kPoints);
+  std::printf("%8s  %8s  %7s  %6s  %9s  %10s  %12s  %12s  %11s\n", "elements", "unknowns", "op amps",
+              "sample", "ac s", "sweep s", "per op amp/pt", "all, est. s", "run_loop s");
+  const auto frequencies = sweep_frequencies();
+  for (const std::string& path : paths) {
+    const tacet::Circuit circuit = tacet::load_circuit(path, {});
+    std::vector<std::size_t> opamps, sample;
+    for (std::size_t i = 0; i < circuit.elements.size(); ++i)
+      if (circuit.elements[i].kind == ElementKind::opamp) opamps.push_back(i);
+    const std::size_t step = std::max<std::size_t>(1, opamps.size() / kLoopSample);
+    for (std::size_t k = 0; k < opamps.size() && sample.size() < kLoopSample; k += step)
+      sample.push_back(opamps[k]);
+    tacet::AcOptions ac;
+    ac.sweep.kind = tacet::SweepKind::list;
+    ac.sweep.at = frequencies;
+    ac.probes = {circuit.specs.at(0).probe};
+    const double ac_s = seconds_of([&] { tacet::run_ac(circuit, ac); });
+    const double sweep_s = seconds_of([&] {
+      tacet::LoopGain gain(circuit);
+      for (double f : frequencies)
+        for (std::size_t u : sample) (void)gain.at(u, f);
+    });
+    // One solve per op amp and point, in units of an AC point (assemble, refactor, solve).
+    const double per = (sweep_s - ac_s) / ac_s / static_cast<double>(sample.size());
+    const double all = ac_s * (1 + per * static_cast<double>(opamps.size()));
+    tacet::LoopOptions options;
+    options.sweep = ac.sweep;
+    for (std::size_t u : sample) options.opamps.push_back(circuit.elements[u].name);
+    const double loop_s = seconds_of([&] { tacet::run_loop(circuit, options); });
+    std::printf("%8zu  %8d  %7zu  %6zu  %9.3f  %10.3f  %12.3f  %12.1f  %11.3f\n",
+                circuit.elements.size(), tacet::MnaSystem(circuit).size(), opamps.size(),
+                sample.size(), ac_s, sweep_s, per, all, loop_s);
+    std::fflush(stdout);
+  }
+}
+
 }  // namespace
 
 
 int main(int argc, char** argv) {
+  if (argc > 1 && std::string(argv[1]) == "--loop") {
+    netlist_loop_section(std::vector<std::string>(argv + 2, argv + argc));
+    return 0;
+  }
   std::vector<int> sizes;
   for (int k = 1; k < argc; ++k) sizes.push_back(std::atoi(argv[k]));
   if (sizes.empty()) sizes = {10, 1000, 100000};

@@ -19,6 +19,7 @@ demo=netlists/vibration_logger.tacet
 pictures=(
   "vibration_logger_ac.svg|ac $demo --probe adc_p,adc_n --probe buf_out --probe gain_out --from 1 --to 100k --per-decade 40"
   "vibration_logger_noise.svg|noise $demo --probe adc_p,adc_n --band 2..4k --from 1 --to 100k --per-decade 20"
+  "turbidity_loop.svg|loop netlists/examples/turbidity_frontend.tacet"
 )
 
 scratch="$(mktemp -d)"

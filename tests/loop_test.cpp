@@ -11,6 +11,7 @@
 #include "reference_circuits.hpp"
 #include "tacet/analysis/ac.hpp"
 #include "tacet/common/errors.hpp"
+#include "tacet/solve/search.hpp"
 
 using namespace tacet;
 using namespace tacet::testing;
@@ -215,4 +216,30 @@ TEST_CASE("the default loop sweep spans the dominant pole to well above gbw and 
   const Sweep s = default_loop_sweep(noninverting(1e3, 1e3, two_pole(10e6, 1e5, 30e6)));
   CHECK_THAT(s.from, IsClose(10.0, 1e-12));    // a decade below gbw/aol = 100 Hz
   CHECK_THAT(s.to, IsClose(1e10, 1e-12));      // two decades above the 30 MHz pole's decade
+}
+
+TEST_CASE("a phase crossover is where the lag reaches 180 + 360k degrees, not a lead of 180",
+          "[loop]") {
+  // brief-2 section 12: a phase crossover is where the unwrapped phase
+  // reaches -180 - 360k, k = 0, 1, 2, ... T = 10 (jf)(1 + jf/100)^2 / (1 + jf/1e6)^3
+  // starts at +90 degrees and rises through +180 at f = 100 Hz
+  // (90 + 2 atan(1) = 180), then falls back through +180: a lead, never a lag
+  // of 180 degrees, so it has no phase crossover and no gain margin.
+  auto lead = [](double f) {
+    const cplx jf(0, f);
+    return 10.0 * jf * (1.0 + jf / 100.0) * (1.0 + jf / 100.0) / std::pow(1.0 + jf / 1e6, 3);
+  };
+  LoopTrace trace;
+  find_loop_margins(lead, log_grid(1e-3, 1e9), trace);
+  CHECK(trace.phase_crossovers.empty());
+  CHECK_FALSE(trace.gain_margin);
+  // Three real poles at 1 Hz: the lag reaches 180 degrees where atan f = 60
+  // degrees, f = sqrt 3, and |T| = 1000 / (1 + 3)^(3/2) = 125 there (closed form).
+  auto lag = [](double f) { return 1000.0 / std::pow(1.0 + cplx(0, f), 3); };
+  LoopTrace three;
+  find_loop_margins(lag, log_grid(1e-3, 1e3), three);
+  REQUIRE(three.phase_crossovers.size() == 1);
+  CHECK_THAT(three.phase_crossovers[0].f, IsClose(std::sqrt(3.0), 1e-9));
+  REQUIRE(three.gain_margin);
+  CHECK_THAT(*three.gain_margin, IsClose(-20 * std::log10(125.0), 1e-9));
 }

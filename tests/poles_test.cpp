@@ -91,6 +91,9 @@ TEST_CASE("positive feedback gives a right-half-plane pole and names the op amp"
   const double wp = 2 * kPi * 1e6 / 1e5;
   CHECK_THAT(r.poles[0].s, IsClose(cplx(wp * (1e5 * 0.5 - 1), 0), 1e-9));
   CHECK_FALSE(r.stable);
+  // Its margins read fine (a crossover at +90 degrees: "270 degrees"), but T
+  // starts at -aol beta = -5e4, left of -1: the latch is named all the same.
+  CHECK(r.unstable_loops == std::vector<std::string>{"U1"});
 }
 
 TEST_CASE("poles refuse a circuit too large for the dense method", "[poles]") {

@@ -73,7 +73,7 @@ TEST_CASE("the review page opens with the budget, every spec with its verdict", 
 
 TEST_CASE("the review page draws the specs' responses and noise inline, with unique ids", "[report]") {
   const std::string page = page_of(kNetlist);
-  CHECK(count(page, "<svg xmlns=\"http://www.w3.org/2000/svg\"") == 2);  // response, noise of hiss
+  CHECK(count(page, "<svg xmlns=\"http://www.w3.org/2000/svg\"") == 3);  // response, noise of hiss, loop
   CHECK(page.find("<?xml") == std::string::npos);  // inline, not documents
   std::set<std::string> ids;
   const std::regex id("id=\"([^\"]+)\"");
@@ -81,9 +81,28 @@ TEST_CASE("the review page draws the specs' responses and noise inline, with uni
     CHECK(ids.insert((*it)[1]).second);
   CHECK(ids.count("response-clip-0") == 1);
   CHECK(ids.count("noise-0-clip-0") == 1);
+  CHECK(ids.count("loop-clip-0") == 1);
   // The spec frequencies are marked on the response.
   CHECK(page.find(">gain_1k</text>") != std::string::npos);
   CHECK(page.find(">corner</text>") != std::string::npos);
+}
+
+TEST_CASE("the review page lists every op amp's loop margins after bias, with the loop plot",
+          "[report][loop]") {
+  const std::string page = page_of(kNetlist);
+  const auto bias = page.find("<h2>DC operating point"), loop = page.find("<h2>Loop gain and margins</h2>"),
+             circuit = page.find("<h2>Circuit</h2>");
+  REQUIRE(loop != std::string::npos);
+  CHECK(bias < loop);
+  CHECK(loop < circuit);
+  // U1 closes a loop of noise gain 10 around a single-pole 10 MHz op amp:
+  // T = 1e4 / (1 + jf/100Hz) crosses 1 at 100 Hz sqrt(1e8 - 1) = 1 MHz with
+  // 180 - atan(1e4) = 90.006 degrees of margin, and one pole never reaches -180
+  // (closed form of a single-pole loop; common practice calls it ample).
+  const std::string row = page.substr(page.find("<tr><td>U1</td>", loop));
+  CHECK(row.find("<td class=\"number\">1MHz</td><td class=\"number\">90.0 deg</td>"
+                 "<td class=\"number\">none in range</td><td>ample</td>") == 15);
+  CHECK(page.find("U1 PM 90.0\u00B0 at 1MHz", loop) != std::string::npos);
 }
 
 TEST_CASE("the review page fetches nothing: no scripts, links, images or fonts", "[report]") {

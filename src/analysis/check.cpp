@@ -4,8 +4,10 @@
 #include <cmath>
 #include <functional>
 #include <limits>
+#include <functional>
 #include <map>
 #include <memory>
+#include <tuple>
 #include <unordered_map>
 
 #include <fmt/format.h>
@@ -18,8 +20,10 @@
 #include "tacet/solve/search.hpp"
 #include "tacet/analysis/bias.hpp"
 #include "tacet/analysis/headroom.hpp"
+#include "tacet/analysis/loop.hpp"
 #include "tacet/analysis/noise.hpp"
 #include "tacet/analysis/settle.hpp"
+#include "tacet/analysis/poles.hpp"
 
 namespace tacet {
 
@@ -90,6 +94,7 @@ class SpecMeter {
     if (r.value) {
       r.margin = window_margin(*r.value, spec.min, spec.max);
       r.pass = r.margin >= 0;
+      if (spec.kind == SpecKind::stable) r.pass = r.margin > 0;  // a pole on the axis is not stable
     }
     return r;
   }
@@ -110,6 +115,11 @@ class SpecMeter {
       case SpecKind::mask: mask(r); break;
       case SpecKind::settling:
       case SpecKind::overshoot: step(r); break;
+      case SpecKind::phase_margin:
+      case SpecKind::gain_margin: loop_margin(r); break;
+      case SpecKind::peaking: peaking(r); break;
+      case SpecKind::impedance: impedance(r); break;
+      case SpecKind::stable: stable(r); break;
     }
   }
 
@@ -139,12 +149,29 @@ class SpecMeter {
       r.note = fmt::format("measured {:.2f} deg, the same angle as {:.2f} deg", measured, *r.value);
   }
 
-  /// Largest |dB(H(f)) - dB(H(ref))| over the band: grid, then a golden-section
-  /// refinement around the worst grid point.
+  /// The largest `value` over [from, to]: a log grid, then a golden-section
+  /// refinement between the worst grid point's neighbours (an interior peak).
+  static Peak largest_over_band(double from, double to, const std::function<double(double)>& value) {
+    const auto grid = log_grid(from, to);
+    std::size_t worst = 0;
+    double worst_value = -std::numeric_limits<double>::infinity();
+    for (std::size_t i = 0; i < grid.size(); ++i) {
+      const double v = value(grid[i]);
+      if (v > worst_value) worst = i, worst_value = v;
+    }
+    Peak best{grid[worst], worst_value};
+    if (worst > 0 && worst + 1 < grid.size())
+      if (const Peak peak = golden_max_log(grid[worst - 1], grid[worst + 1], value);
+          peak.value > best.value)
+        best = peak;
+    return best;
+  }
+
+  /// Largest |dB(H(f)) - dB(H(ref))| over the band.
   void flatness(SpecResult& r) {
     const Spec& s = r.spec;
     const double reference = db_at(s.ref);
-    const Peak worst = largest_over(s.from, s.to, [&](double f) { return std::abs(db_at(f) - reference); });
+    const Peak worst = largest_over_band(s.from, s.to, [&](double f) { return std::abs(db_at(f) - reference); });
     r.value = worst.value;
     r.where = worst.f;
   }
@@ -153,9 +180,18 @@ class SpecMeter {
   void deviation(SpecResult& r) {
     const Spec& s = r.spec;
     const double reference = db_at(s.ref) - to_db(s.target.at(s.ref));
-    const Peak worst = largest_over(s.from, s.to, [&](double f) {
+    const Peak worst = largest_over_band(s.from, s.to, [&](double f) {
       return std::abs(db_at(f) - to_db(s.target.at(f)) - reference);
     });
+    r.value = worst.value;
+    r.where = worst.f;
+  }
+
+  /// Largest dB(H(f)) - dB(H(ref)) over the band: the resonant rise of the response.
+  void peaking(SpecResult& r) {
+    const Spec& s = r.spec;
+    const double reference = db_at(s.ref);
+    const Peak worst = largest_over_band(s.from, s.to, [&](double f) { return db_at(f) - reference; });
     r.value = worst.value;
     r.where = worst.f;
   }
@@ -188,11 +224,11 @@ class SpecMeter {
         return bound_a + (bound_b - bound_a) * std::log(f / a.f) / std::log(b.f / a.f);
       };
       if (a.low && b.low) {
-        const Peak p = largest_over(a.f, b.f, [&](double f) { return bound_at(f, *a.low, *b.low) - level(f); });
+        const Peak p = largest_over_band(a.f, b.f, [&](double f) { return bound_at(f, *a.low, *b.low) - level(f); });
         take({p.f, -p.value}, false);
       }
       if (a.high && b.high) {
-        const Peak p = largest_over(a.f, b.f, [&](double f) { return level(f) - bound_at(f, *a.high, *b.high); });
+        const Peak p = largest_over_band(a.f, b.f, [&](double f) { return level(f) - bound_at(f, *a.high, *b.high); });
         take({p.f, -p.value}, true);
       }
     }
@@ -203,22 +239,116 @@ class SpecMeter {
                          s.relative ? fmt::format(", re {}Hz", format_si(s.ref)) : std::string());
   }
 
-  /// The largest value of `fn` over [from, to]: a log grid, then a
-  /// golden-section refinement around the largest grid point.
-  static Peak largest_over(double from, double to, const std::function<double(double)>& fn) {
-    const auto grid = log_grid(from, to);
-    std::size_t worst = 0;
-    double worst_value = -std::numeric_limits<double>::infinity();
-    for (std::size_t i = 0; i < grid.size(); ++i) {
-      const double d = fn(grid[i]);
-      if (d > worst_value) worst = i, worst_value = d;
+  /// |Z| of the spec's z() probe at one frequency, or its largest over the band.
+  void impedance(SpecResult& r) {
+    const Spec& s = r.spec;
+    if (s.at > 0) {
+      r.value = std::abs(h(s.at));
+      r.where = s.at;
+      return;
     }
-    Peak best{grid[worst], worst_value};
-    if (worst > 0 && worst + 1 < grid.size()) {
-      if (const Peak peak = golden_max_log(grid[worst - 1], grid[worst + 1], fn); peak.value > best.value)
-        best = peak;
+    const Peak worst = largest_over_band(s.from, s.to, [&](double f) { return std::abs(h(f)); });
+    r.value = worst.value;
+    r.where = worst.f;
+  }
+
+  // Loop gain on the shared response; each op amp's margins over each range are
+  // found once, for every phase_margin and gain_margin spec on that loop.
+  LoopGain& loop_gain() {
+    if (!loop_gain_) loop_gain_ = std::make_unique<LoopGain>(response());
+    return *loop_gain_;
+  }
+
+  std::pair<double, double> loop_range(const Spec& s) {
+    if (!loop_range_) {
+      const Sweep sweep = default_loop_sweep(circuit_);
+      loop_range_ = std::pair{sweep.from, sweep.to};
     }
-    return best;
+    return {s.from > 0 ? s.from : loop_range_->first, s.to > 0 ? s.to : loop_range_->second};
+  }
+
+  /// The smallest margin of the op amp's loop, at its crossover; with none in
+  /// the range the margin is unbounded (passes) when |T| has fallen below 1 by
+  /// the top of the range, and unknown (fails) when it has not.
+  void loop_margin(SpecResult& r) {
+    const Spec& s = r.spec;
+    const std::size_t opamp = *circuit_.find_element(s.opamp);
+    const auto [from, to] = loop_range(s);
+    if (!(from < to)) {
+      r.note = fmt::format("the loop's range {}Hz .. {}Hz is empty: from= must be below to=", format_si(from),
+                           format_si(to));
+      return;
+    }
+    const auto key = std::tuple{opamp, from, to};
+    auto found = loops_.find(key);
+    if (found == loops_.end()) found = loops_.emplace(key, loop_margins(loop_gain(), opamp, from, to)).first;
+    const LoopTrace& loop = found->second;
+    const bool phase = s.kind == SpecKind::phase_margin;
+    // A loop that starts left of -1 (T negative and |T| > 1: positive feedback
+    // at low frequency, a latch) is unstable whatever its crossovers say.
+    if (const std::complex<double> low = loop_gain().at(opamp, from); regenerative(low)) {
+      r.note = fmt::format("Re T of {} is {:.4g} at {}Hz (|T| = {:.4g}): positive feedback with |T| > 1, "
+                           "which no {} describes; a stable spec decides",
+                           s.opamp, low.real(), format_si(from), std::abs(low),
+                           phase ? "phase margin" : "gain margin");
+      return;
+    }
+    if (phase ? loop.phase_margin.has_value() : loop.gain_margin.has_value()) {
+      r.value = phase ? *loop.phase_margin : *loop.gain_margin;
+      for (const auto& c : loop.crossovers)
+        if (phase && c.phase_margin == *r.value) r.where = c.f;
+      for (const auto& c : loop.phase_crossovers)
+        if (!phase && c.gain_margin == *r.value) r.where = c.f;
+      return;
+    }
+    const double top_db = to_db(loop_gain().at(opamp, to));
+    const std::string range = fmt::format("from {}Hz to {}Hz", format_si(from), format_si(to));
+    if (top_db >= 0) {
+      r.note = fmt::format("|T| of {} is still {:.1f} dB at {}Hz: its {} lies above the range; widen to=",
+                           s.opamp, top_db, format_si(to), phase ? "crossover" : "phase crossover");
+      return;
+    }
+    r.pass = true;
+    r.note = phase ? fmt::format("|T| of {} stays below 1 {}: no crossover, the phase margin is unbounded",
+                                 s.opamp, range)
+                   : fmt::format("the phase of {}'s loop does not reach -180 deg {}: the gain margin is "
+                                 "unbounded",
+                                 s.opamp, range);
+  }
+
+  /// The rightmost pole's real part Re s/(2 pi), Hz: below 0 when every pole
+  /// is in the left half-plane. The dense pole method serves kMaxPoleUnknowns:
+  /// beyond it the spec cannot be measured (exit 3), the others still are.
+  void stable(SpecResult& r) {
+    const int unknowns = pole_unknowns(response().mna());
+    if (unknowns > kMaxPoleUnknowns)
+      throw SolveError::unsolvable(
+          fmt::format("{} unknowns, more than the {} the dense pole method serves", unknowns,
+                      kMaxPoleUnknowns),
+          "check each op amp's loop with phase_margin and gain_margin specs, or the stage on its own "
+          "with a stable spec");
+    const PolesResult poles = run_poles(circuit_);
+    if (poles.poles.empty()) {
+      r.pass = true;
+      r.note = "the circuit has no poles (no capacitor, inductor or op-amp pole): nothing can ring";
+      return;
+    }
+    const Root* rightmost = &poles.poles.front();
+    for (const Root& p : poles.poles)
+      if (p.s.real() > rightmost->s.real()) rightmost = &p;
+    r.value = rightmost->re_hz();
+    r.where = rightmost->f0();
+    const int unstable = static_cast<int>(std::count_if(poles.poles.begin(), poles.poles.end(),
+                                                        [](const Root& p) { return p.s.real() >= 0; }));
+    r.note = fmt::format("rightmost pole {}Hz{}, f0 {}Hz", format_si(rightmost->re_hz()),
+                         rightmost->im_hz() != 0 ? fmt::format(" +-j{}Hz", format_si(std::abs(rightmost->im_hz())))
+                                                 : std::string(),
+                         format_si(rightmost->f0()));
+    if (unstable > 0)
+      r.note += fmt::format("; {} pole{} in the right half-plane{}", unstable, unstable == 1 ? "" : "s",
+                            poles.unstable_loops.empty()
+                                ? std::string()
+                                : fmt::format(", unstable loops: {}", fmt::join(poles.unstable_loops, ", ")));
   }
 
   /// The first frequency, going away from ref, where the response has fallen
@@ -390,6 +520,9 @@ class SpecMeter {
   std::unique_ptr<HeadroomResult> headroom_;
   std::unique_ptr<FrequencyResponse> response_;
   FrequencyResponse* shared_response_;
+  std::unique_ptr<LoopGain> loop_gain_;  ///< on response(), for every margin spec
+  std::optional<std::pair<double, double>> loop_range_;  ///< Hz: default_loop_sweep's ends
+  std::map<std::tuple<std::size_t, double, double>, LoopTrace> loops_;  ///< (op amp, from, to)
   const BiasResult* shared_bias_;
   Probe probe_;  ///< the probe of the spec being measured
   std::optional<std::size_t> input_;  ///< input=: the one source driving it; empty: every source

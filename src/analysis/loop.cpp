@@ -33,44 +33,43 @@ std::vector<double> scan_grid(const Sweep& sweep, const std::vector<double>& fre
   return log_grid(*low, *high);
 }
 
+// Crossings of T(f) between the points of a scan grid, each refined by
+// bisection on the continuous response.
 class LoopSearch {
  public:
-  LoopSearch(LoopGain& gain, std::size_t opamp) : gain_(gain), opamp_(opamp) {}
+  explicit LoopSearch(const std::function<std::complex<double>(double)>& t) : t_(t) {}
 
-  void scan(const std::vector<double>& grid, LoopTrace& trace) {
+  /// `values[i]` is T at grid[i]: the brackets come from them, so a caller
+  /// that has T on the grid already (the sweep, or one factorisation a grid
+  /// point shared by every op amp) pays only for the refinements.
+  void scan(const std::vector<double>& grid, const std::vector<std::complex<double>>& values,
+            LoopTrace& trace) {
     if (grid.empty()) return;
-    double f0 = grid[0];
-    std::complex<double> t0 = gain_.at(opamp_, f0);
-    double deg0 = arg_deg(t0);
+    double deg0 = arg_deg(values[0]);
     for (std::size_t k = 1; k < grid.size(); ++k) {
-      const double f1 = grid[k];
-      const std::complex<double> t1 = gain_.at(opamp_, f1);
-      const double deg1 = unwrap_deg(deg0, t1);
-      find_crossover(f0, t0, f1, t1, deg0, trace);
-      find_phase_crossovers(f0, deg0, f1, deg1, trace);
-      f0 = f1, t0 = t1, deg0 = deg1;
+      const double deg1 = unwrap_deg(deg0, values[k]);
+      find_crossover(grid[k - 1], values[k - 1], grid[k], values[k], deg0, trace);
+      find_phase_crossovers(grid[k - 1], deg0, grid[k], deg1, trace);
+      deg0 = deg1;
     }
   }
 
  private:
   // Unwrapped phase inside a scan interval, continued from its left end.
-  double phase(double f, double deg_left) {
-    return unwrap_deg(deg_left, gain_.at(opamp_, f));
-  }
+  double phase(double f, double deg_left) { return unwrap_deg(deg_left, t_(f)); }
 
   void find_crossover(double f0, std::complex<double> t0, double f1, std::complex<double> t1,
                       double deg0, LoopTrace& trace) {
     const bool above0 = std::abs(t0) >= 1, above1 = std::abs(t1) >= 1;
     if (above0 == above1) return;
-    const double f = bisect_log(f0, f1, [&](double x) {
-      return (std::abs(gain_.at(opamp_, x)) >= 1) == above1;
-    });
+    const double f = bisect_log(f0, f1, [&](double x) { return (std::abs(t_(x)) >= 1) == above1; });
     trace.crossovers.push_back({f, 180 + phase(f, deg0)});
   }
 
   void find_phase_crossovers(double f0, double deg0, double f1, double deg1, LoopTrace& trace) {
-    // Levels -180 - 360k strictly between the ends or reached at the right end.
-    const double lo = std::min(deg0, deg1), hi = std::max(deg0, deg1);
+    // Levels -180 - 360k (k >= 0) strictly between the ends or reached at the
+    // right end; the levels 180 + 360m above -180 are not phase crossovers.
+    const double lo = std::min(deg0, deg1), hi = std::min(std::max(deg0, deg1), -180.0);
     for (double level = 180 + 360 * std::ceil((lo - 180) / 360); level <= hi; level += 360) {
       if (level == deg0) continue;  // counted in the interval that ends there
       const bool rising = deg1 > deg0;
@@ -78,12 +77,11 @@ class LoopSearch {
         const double d = phase(x, deg0);
         return rising ? d >= level : d <= level;
       });
-      trace.phase_crossovers.push_back({f, -20 * std::log10(std::abs(gain_.at(opamp_, f)))});
+      trace.phase_crossovers.push_back({f, -20 * std::log10(std::abs(t_(f)))});
     }
   }
 
-  LoopGain& gain_;
-  std::size_t opamp_;
+  const std::function<std::complex<double>(double)>& t_;
 };
 
 void summarise(LoopTrace& trace) {
@@ -99,11 +97,37 @@ void summarise(LoopTrace& trace) {
 
 }  // namespace
 
+void find_loop_margins(const std::function<std::complex<double>(double)>& t,
+                       const std::vector<double>& grid, LoopTrace& trace) {
+  std::vector<std::complex<double>> values;
+  values.reserve(grid.size());
+  for (const double f : grid) values.push_back(t(f));
+  find_loop_margins(t, grid, values, trace);
+}
+
+void find_loop_margins(const std::function<std::complex<double>(double)>& t,
+                       const std::vector<double>& grid,
+                       const std::vector<std::complex<double>>& values, LoopTrace& trace) {
+  LoopSearch(t).scan(grid, values, trace);
+  summarise(trace);
+}
+
+LoopTrace loop_margins(LoopGain& gain, std::size_t opamp, double from, double to) {
+  LoopTrace trace;
+  trace.opamp = gain.response().mna().circuit().elements[opamp].name;
+  find_loop_margins([&](double f) { return gain.at(opamp, f); }, log_grid(from, to), trace);
+  return trace;
+}
+
 std::complex<double> opamp_gain(const OpAmpModel& m, std::complex<double> s) {
   const double wp = kTwoPi * m.gbw / m.aol;
   std::complex<double> denominator = 1.0 + s / wp;
   if (m.fp2 > 0) denominator *= 1.0 + s / (kTwoPi * m.fp2);
   return m.aol / denominator;
+}
+
+bool regenerative(std::complex<double> t_low) {
+  return t_low.real() < 0 && t_low.imag() >= 0 && std::abs(t_low) > 1;
 }
 
 double unwrap_deg(double previous, std::complex<double> t) {
@@ -156,7 +180,12 @@ std::vector<std::size_t> resolve_opamps(const Circuit& circuit,
 }
 
 LoopGain::LoopGain(const Circuit& circuit, SolverKind solver)
-    : response_(circuit, solver), rhs_(static_cast<std::size_t>(response_.mna().size())) {}
+    : owned_(std::make_unique<FrequencyResponse>(circuit, solver)),
+      response_(*owned_),
+      rhs_(static_cast<std::size_t>(response_.mna().size())) {}
+
+LoopGain::LoopGain(FrequencyResponse& shared)
+    : response_(shared), rhs_(static_cast<std::size_t>(response_.mna().size())) {}
 
 std::complex<double> LoopGain::at(std::size_t opamp, double f) {
   response_.factor_at(f);
@@ -198,12 +227,20 @@ LoopResult run_loop(const Circuit& circuit, const LoopOptions& options) {
       trace.deg.push_back(trace.t.empty() ? arg_deg(t) : unwrap_deg(trace.deg.back(), t));
       trace.t.push_back(t);
     }
-  // The sweep shares one factorisation a frequency between the op amps; the
-  // searches, which move the factorisation around.
+  // The scan shares one factorisation a grid point between the op amps (the
+  // sweep's own points when they are dense enough); only the refinements,
+  // which move the factorisation around, are per op amp.
   const std::vector<double> grid = scan_grid(result.sweep, result.frequencies);
+  const bool on_sweep = grid == result.frequencies;
+  std::vector<std::vector<std::complex<double>>> scanned(on_sweep ? 0 : opamps.size());
+  if (!on_sweep)
+    for (const double f : grid)
+      for (std::size_t k = 0; k < opamps.size(); ++k) scanned[k].push_back(gain.at(opamps[k], f));
   for (std::size_t k = 0; k < opamps.size(); ++k) {
-    LoopSearch(gain, opamps[k]).scan(grid, result.loops[k]);
-    summarise(result.loops[k]);
+    const std::size_t opamp = opamps[k];
+    find_loop_margins([&](double f) { return gain.at(opamp, f); }, grid,
+                      on_sweep ? result.loops[k].t : scanned[k], result.loops[k]);
+    if (!on_sweep) std::vector<std::complex<double>>().swap(scanned[k]);
   }
   return result;
 }

@@ -34,9 +34,7 @@ struct Pencil {
 Pencil linear_pencil(const MnaSystem& mna, int extra) {
   const auto entries = mna.polynomials();
   int n = mna.size();
-  const int quadratic = static_cast<int>(
-      std::count_if(entries.begin(), entries.end(), [](const auto& e) { return e.c2 != 0; }));
-  const int size = n + quadratic + extra;
+  const int size = pole_unknowns(mna) + extra;
   if (size > kMaxPoleUnknowns)
     throw InputError::usage(
         fmt::format("poles: the circuit has {} unknowns; the dense eigenvalue method serves at "
@@ -126,12 +124,19 @@ std::vector<std::string> unstable_loops(const Circuit& circuit) {
   for (const auto& e : circuit.elements) any = any || e.kind == ElementKind::opamp;
   if (!any) return names;
   for (const auto& loop : run_loop(circuit, LoopOptions{}).loops)
-    if ((loop.phase_margin && *loop.phase_margin < 0) || (loop.gain_margin && *loop.gain_margin < 0))
+    if ((loop.phase_margin && *loop.phase_margin < 0) || (loop.gain_margin && *loop.gain_margin < 0) ||
+        (!loop.t.empty() && regenerative(loop.t.front())))  // a latch
       names.push_back(loop.opamp);
   return names;
 }
 
 }  // namespace
+
+int pole_unknowns(const MnaSystem& mna) {
+  const auto entries = mna.polynomials();
+  return mna.size() + static_cast<int>(std::count_if(entries.begin(), entries.end(),
+                                                     [](const auto& e) { return e.c2 != 0; }));
+}
 
 double Root::re_hz() const { return s.real() / kTwoPi; }
 double Root::im_hz() const { return s.imag() / kTwoPi; }

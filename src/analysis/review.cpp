@@ -13,7 +13,8 @@ namespace {
 bool measures_response(SpecKind kind) {
   return kind == SpecKind::gain || kind == SpecKind::phase || kind == SpecKind::flatness ||
          kind == SpecKind::upper_corner || kind == SpecKind::lower_corner ||
-         kind == SpecKind::deviation || kind == SpecKind::mask;
+         kind == SpecKind::deviation || kind == SpecKind::mask ||
+         kind == SpecKind::peaking;
 }
 
 void add_positive(std::vector<double>& out, double f) {
@@ -82,6 +83,13 @@ ReviewResult run_review(const Circuit& circuit) {
   } catch (const Error& e) {
     review.bias_problem = e.what();
   }
+  const bool has_opamp = std::any_of(circuit.elements.begin(), circuit.elements.end(),
+                                     [](const Element& e) { return e.kind == ElementKind::opamp; });
+  if (has_opamp) try {
+      review.loop = run_loop(circuit, LoopOptions{});
+    } catch (const Error& e) {
+      review.loop_problem = e.what();
+    }
   return review;
 }
 

@@ -6,7 +6,7 @@ namespace tacet {
 
 namespace {
 
-constexpr std::array<std::pair<SpecKind, const char*>, 13> kKindNames{{
+constexpr std::array<std::pair<SpecKind, const char*>, 16> kKindNames{{
     {SpecKind::gain, "gain"},
     {SpecKind::flatness, "flatness"},
     {SpecKind::phase, "phase"},
@@ -20,6 +20,11 @@ constexpr std::array<std::pair<SpecKind, const char*>, 13> kKindNames{{
     {SpecKind::mask, "mask"},
     {SpecKind::settling, "settling"},
     {SpecKind::overshoot, "overshoot"},
+    {SpecKind::phase_margin, "phase_margin"},
+    {SpecKind::gain_margin, "gain_margin"},
+    {SpecKind::peaking, "peaking"},
+    {SpecKind::impedance, "impedance"},
+    {SpecKind::stable, "stable"},
 }};
 
 }  // namespace
@@ -58,6 +63,7 @@ const char* to_string(SpecUnit unit) {
     case SpecUnit::amps_per_amp: return "A/A";
     case SpecUnit::seconds: return "s";
     case SpecUnit::fraction: return "fraction";
+    case SpecUnit::ohms: return "ohm";
   }
   return "";
 }

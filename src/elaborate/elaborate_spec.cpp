@@ -1,6 +1,7 @@
 // Elaboration of `spec` lines: the kind, its options with their units, the
 // probe and every name checked against the flat circuit.
 
+#include <algorithm>
 #include <cmath>
 
 #include <fmt/format.h>
@@ -54,6 +55,20 @@ constexpr KeyRule kSettlingKeys[] = {{"input", Dimension::none}, {"band", Dimens
 constexpr KeyRule kOvershootKeys[] = {{"input", Dimension::none},
                                       {"max", Dimension::ratio, KeyForm::value, Need::required},
                                       kCurrent};
+// Stability: the op amp by name; the loop's range defaults to default_loop_sweep's.
+constexpr KeyRule kOpAmp{"opamp", Dimension::none, KeyForm::value, Need::required};
+constexpr KeyRule kPhaseMarginKeys[] = {
+    kOpAmp, {"min", Dimension::angle, KeyForm::value, Need::required},
+    {"from", Dimension::frequency}, {"to", Dimension::frequency}};
+constexpr KeyRule kGainMarginKeys[] = {
+    kOpAmp, {"min", Dimension::decibel, KeyForm::value, Need::required},
+    {"from", Dimension::frequency}, {"to", Dimension::frequency}};
+constexpr KeyRule kPeakingKeys[] = {
+    kFrom, kTo, {"ref", Dimension::frequency},
+    {"max", Dimension::decibel, KeyForm::value, Need::required}, kCurrent};
+constexpr KeyRule kImpedanceKeys[] = {
+    {"at", Dimension::frequency}, {"from", Dimension::frequency}, {"to", Dimension::frequency},
+    {"min", Dimension::resistance}, {"max", Dimension::resistance}};
 
 KeyTable options_for(SpecKind kind) {
   switch (kind) {
@@ -70,11 +85,19 @@ KeyTable options_for(SpecKind kind) {
     case SpecKind::mask: return kMaskKeys;
     case SpecKind::settling: return kSettlingKeys;
     case SpecKind::overshoot: return kOvershootKeys;
+    case SpecKind::phase_margin: return kPhaseMarginKeys;
+    case SpecKind::gain_margin: return kGainMarginKeys;
+    case SpecKind::peaking: return kPeakingKeys;
+    case SpecKind::impedance: return kImpedanceKeys;
+    case SpecKind::stable: return {};  // no option: every key is unknown
   }
   return {};
 }
 
-bool needs_probe(SpecKind kind) { return kind != SpecKind::rails; }
+bool needs_probe(SpecKind kind) {
+  return kind != SpecKind::rails && kind != SpecKind::phase_margin &&
+         kind != SpecKind::gain_margin && kind != SpecKind::stable;
+}
 
 /// Whether a limit is written in decibels (`19.9dB`, `-3dB`): then the spec
 /// compares in dB, else as a ratio.
@@ -331,8 +354,94 @@ bool Elaborator::read_spec_limits(Spec& spec, const ast::Spec& ast_spec, const S
       return ok && read_mask(spec, ast_spec, spec.where.file);
     case SpecKind::settling:
     case SpecKind::overshoot: return read_step_spec(spec, ast_spec, given, ok);
+    case SpecKind::phase_margin:
+    case SpecKind::gain_margin:
+    case SpecKind::peaking:
+    case SpecKind::impedance:
+    case SpecKind::stable: return read_stability_limits(spec, ast_spec, given, ok);
   }
   return true;
+}
+
+bool Elaborator::read_stability_limits(Spec& spec, const ast::Spec& ast_spec,
+                                       const SpecKeys& given, bool& ok) {
+  switch (spec.kind) {
+    case SpecKind::phase_margin:
+    case SpecKind::gain_margin: {
+      const bool phase = spec.kind == SpecKind::phase_margin;
+      spec.unit = phase ? SpecUnit::degrees : SpecUnit::db;
+      spec.min = spec_number(given, "min", phase ? Dimension::angle : Dimension::decibel, ok);
+      return read_spec_opamp(spec, given);
+    }
+    case SpecKind::peaking:
+      spec.unit = SpecUnit::db;
+      spec.max = spec_number(given, "max", Dimension::decibel, ok);
+      if (!given.count("ref")) spec.ref = spec.from;
+      return true;
+    case SpecKind::impedance: return read_impedance_limits(spec, ast_spec, given, ok);
+    case SpecKind::stable:
+      spec.unit = SpecUnit::hertz;
+      spec.max = 0;
+      return true;
+    default: return true;
+  }
+}
+
+bool Elaborator::read_impedance_limits(Spec& spec, const ast::Spec& ast_spec,
+                                       const SpecKeys& given, bool& ok) {
+  spec.unit = SpecUnit::ohms;
+  spec.min = spec_number(given, "min", Dimension::resistance, ok);
+  spec.max = spec_number(given, "max", Dimension::resistance, ok);
+  const bool at = given.count("at"), from = given.count("from"), to = given.count("to");
+  if (at && (from || to)) {
+    const KeyValue& band = given.at(from ? "from" : "to");
+    error(band.file, extent(*band.value), "an impedance spec is measured at= one frequency or over from= to=",
+          "write at=100kHz, or from=10kHz to=1MHz");
+    return false;
+  }
+  if (!at && from != to) {
+    const KeyValue& half = given.at(from ? "from" : "to");
+    error(half.file, extent(*half.value), from ? "from= needs to=: a band has two ends" : "to= needs from=: a band has two ends",
+          "write from=10kHz to=1MHz");
+    return false;
+  }
+  if (!at && !from) {
+    error(spec.where.file, ast_spec.name,
+          fmt::format("spec '{}' needs at= or a band from= to=", spec.name));
+    return false;
+  }
+  if (!at && spec.min) {  // the largest |Z| over a band is what is bounded
+    const KeyValue& min = given.at("min");
+    error(min.file, extent(*min.value), "over a band an impedance spec bounds the largest |Z|: max= only",
+          "for a smallest impedance write min= with at=");
+    return false;
+  }
+  if (spec.min || spec.max || !ok) return true;
+  error(spec.where.file, ast_spec.name, fmt::format("spec '{}' needs min= or max=", spec.name));
+  return false;
+}
+
+bool Elaborator::read_spec_opamp(Spec& spec, const SpecKeys& given) {
+  const KeyValue& option = given.at("opamp");
+  const auto* id = boost::get<ast::Identifier>(&unwrap(*option.value));
+  if (!id) {
+    error(option.file, extent(*option.value), "opamp= takes an op amp's name", "write opamp=U1");
+    return false;
+  }
+  std::vector<std::string> opamps;
+  for (const auto& e : circuit_.elements)
+    if (e.kind == ElementKind::opamp) opamps.push_back(e.name);
+  if (std::find(opamps.begin(), opamps.end(), id->text) != opamps.end()) {
+    spec.opamp = id->text;
+    return true;
+  }
+  std::string message = fmt::format("no op amp named '{}'", id->text);
+  if (const auto element = circuit_.find_element(id->text))
+    message += fmt::format(" ('{}' is a {})", id->text, to_keyword(circuit_.elements[*element].kind));
+  error(option.file, *id, message,
+        opamps.empty() ? std::string("the circuit has no op amp")
+                       : choice_hint(id->text, opamps, "op amps"));
+  return false;
 }
 
 bool Elaborator::attach_spec_probe(Spec& spec, const ast::Spec& ast_spec, const SpecKeys& given,
@@ -359,7 +468,7 @@ bool Elaborator::attach_spec_probe(Spec& spec, const ast::Spec& ast_spec, const 
       return false;
     }
   }
-  spec.probe = *probe;
+  spec.probe = spec.kind == SpecKind::impedance ? "z(" + *probe + ")" : *probe;
   return true;
 }
 

@@ -130,6 +130,9 @@ class Elaborator {
   bool read_target(Spec& spec, const SpecKeys& given);
   bool read_mask(Spec& spec, const ast::Spec& ast_spec, int file);
   bool read_step_spec(Spec& spec, const ast::Spec& ast_spec, const SpecKeys& given, bool& ok);
+  bool read_stability_limits(Spec& spec, const ast::Spec& ast_spec, const SpecKeys& given, bool& ok);
+  bool read_impedance_limits(Spec& spec, const ast::Spec& ast_spec, const SpecKeys& given, bool& ok);
+  bool read_spec_opamp(Spec& spec, const SpecKeys& given);
   bool attach_spec_probe(Spec& spec, const ast::Spec& ast_spec, const SpecKeys& given, int file);
 
   // elaborate_instance.cpp: elements and blocks

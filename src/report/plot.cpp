@@ -304,11 +304,18 @@ void draw_markers(svg::Writer& w, const Panel& panel, const Mapping& x, const Ma
       halo_text(w, right_half ? px - 4 : px + 4, box.top + 14 + 14 * static_cast<double>(k % 4),
                 right_half ? "end" : "start", v.label);
   }
+  std::size_t labelled = 0;
   for (const Point& p : panel.points) {
     if (!x.inside(p.x) || !y.inside(p.y)) continue;
-    w.empty("circle", {{"class", "marker"}, {"cx", number(x(p.x))}, {"cy", number(y(p.y))}, {"r", "3.5"},
+    const double px = x(p.x), py = y(p.y);
+    w.empty("circle", {{"class", "marker"}, {"cx", number(px)}, {"cy", number(py)}, {"r", "3.5"},
                        {"fill", kInk}});
-    if (!p.label.empty()) halo_text(w, x(p.x) + 7, y(p.y) - 7, "start", p.label);
+    if (p.label.empty()) continue;
+    // Towards the middle of the panel, so a label near the right edge is not
+    // cut off; every other one below its dot, so neighbours do not overprint.
+    const bool right_half = px > (box.left + box.right) / 2;
+    halo_text(w, right_half ? px - 7 : px + 7, py + (labelled++ % 2 == 0 ? -7 : 16),
+              right_half ? "end" : "start", p.label);
   }
   w.close();
 }

@@ -23,6 +23,7 @@ std::string format_spec_value(double value, SpecUnit unit) {
     case SpecUnit::amps: return format_si(value, 4) + "A";
     case SpecUnit::seconds: return format_si(value, 6) + "s";
     case SpecUnit::fraction: return fmt::format("{:.4g} %", 100 * value);
+    case SpecUnit::ohms: return format_si(value, 5) + "ohm";
   }
   return fmt::format("{}", value);
 }
@@ -37,6 +38,7 @@ std::string bare(double value, SpecUnit unit) {
     case SpecUnit::amps: return format_si(value, 6) + "A";
     case SpecUnit::seconds: return format_si(value, 6) + "s";
     case SpecUnit::fraction: return fmt::format("{:g} %", 100 * value);
+    case SpecUnit::ohms: return format_si(value, 6) + "ohm";
     default: return fmt::format("{:g}", value);
   }
 }
@@ -55,6 +57,7 @@ std::string unit_suffix(SpecUnit unit) {
     case SpecUnit::amps: return "";
     case SpecUnit::seconds:
     case SpecUnit::fraction: return "";
+    case SpecUnit::ohms: return "";
   }
   return "";
 }
@@ -63,6 +66,7 @@ std::string unit_suffix(SpecUnit unit) {
 
 std::string format_spec_limit(const Spec& spec) {
   if (spec.kind == SpecKind::rails) return fmt::format("{}V inside", format_si(spec.margin));
+  if (spec.kind == SpecKind::stable) return "< 0Hz";  // strictly: a pole on the axis fails
   if (spec.min && spec.max)
     return fmt::format("{} .. {}{}", bare(*spec.min, spec.unit), bare(*spec.max, spec.unit), unit_suffix(spec.unit));
   if (spec.min) return ">= " + bare(*spec.min, spec.unit) + unit_suffix(spec.unit);
@@ -81,6 +85,12 @@ std::string where_measured(const SpecResult& r) {
                          r.spec.target.text);
     case SpecKind::gain:
     case SpecKind::phase: return fmt::format("at {}Hz", format_si(r.where));
+    case SpecKind::phase_margin: return fmt::format("{} at crossover {}Hz", r.spec.opamp, format_si(r.where));
+    case SpecKind::gain_margin:
+      return fmt::format("{} at phase crossover {}Hz", r.spec.opamp, format_si(r.where));
+    case SpecKind::peaking: return fmt::format("peak at {}Hz, ref {}Hz", format_si(r.where), format_si(r.spec.ref));
+    case SpecKind::impedance:
+      return fmt::format("{} {}Hz", r.spec.at > 0 ? "at" : "largest at", format_si(r.where));
     default: return "";
   }
 }

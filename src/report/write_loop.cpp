@@ -1,4 +1,4 @@
-// Writers for the loop-gain analysis: table, csv and json.
+// Writers for the loop-gain analysis: table, csv, json and svg (write_loop_svg.cpp).
 
 #include "tacet/report/write_loop.hpp"
 
@@ -9,6 +9,7 @@
 #include "tacet/common/format.hpp"
 #include "tacet/report/json_output.hpp"
 #include "tacet/report/text_table.hpp"
+#include "tacet/report/write_svg.hpp"
 
 namespace tacet {
 namespace {
@@ -53,11 +54,14 @@ const Writers<LoopResult>& loop_writers() {
       {OutputFormat::table, loop_table},
       {OutputFormat::csv, loop_csv},
       {OutputFormat::json, loop_json},
+      {OutputFormat::svg, loop_svg},
   };
   return writers;
 }
 
 const char* loop_verdict(const LoopTrace& t) {
+  // Left of -1 at the lowest frequency: a latch, whatever the crossovers say.
+  if (!t.t.empty() && regenerative(t.t.front())) return "positive feedback";
   if (!t.phase_margin) return "no crossover";
   const double pm = *t.phase_margin;
   const double gm = t.gain_margin ? *t.gain_margin : INFINITY;

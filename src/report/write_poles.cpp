@@ -34,7 +34,7 @@ std::string verdict(const PolesResult& r) {
     out += "\nthe loop of ";
     for (std::size_t k = 0; k < r.unstable_loops.size(); ++k)
       out += (k ? ", " : "") + r.unstable_loops[k];
-    out += " has a negative margin (see tacet loop)";
+    out += " has a negative margin or positive feedback at low frequency (see tacet loop)";
   }
   return out + "\n";
 }

@@ -11,6 +11,7 @@
 #include "tacet/report/svg.hpp"
 #include "tacet/report/write_bias.hpp"
 #include "tacet/report/write_check.hpp"
+#include "tacet/report/write_loop.hpp"
 #include "tacet/report/write_svg.hpp"
 
 namespace tacet {
@@ -99,6 +100,9 @@ std::vector<plot::VerticalLine> spec_markers(const CheckResult& check) {
       case SpecKind::lower_corner:
         if (r.value) lines.push_back({*r.value, s.name});
         break;
+      case SpecKind::peaking:
+        if (r.value) lines.push_back({r.where, s.name});
+        break;
       default: break;
     }
   }
@@ -167,6 +171,37 @@ std::string bias_section(const ReviewResult& review, const ReportContext& contex
   return out + "<pre>" + escape(without_header(text, context)) + "</pre>\n";
 }
 
+std::string margin_cell(const std::optional<double>& margin, const char* unit) {
+  return cell(margin ? fmt::format("{:.1f} {}", *margin, unit) : "none in range", "number");
+}
+
+std::string crossover_cell(const LoopTrace& loop) {
+  std::string text;
+  for (const auto& c : loop.crossovers) text += (text.empty() ? "" : ", ") + si(c.f, "Hz");
+  return cell(text.empty() ? "none in range" : text, "number");
+}
+
+// Every op amp's margins, the verdict word, and |T| with its phase.
+std::string loop_section(const ReviewResult& review, const ReportContext& context) {
+  if (!review.loop && review.loop_problem.empty()) return "";
+  std::string out = "<h2>Loop gain and margins</h2>\n";
+  if (!review.loop)
+    return out + "<p class=\"note\">Not computed: " + escape(review.loop_problem) + "</p>\n";
+  out += "<table>\n<tr><th>op amp</th><th>crossover</th><th>phase margin</th><th>gain margin</th>"
+         "<th>verdict</th></tr>\n";
+  for (const LoopTrace& loop : review.loop->loops)
+    out += "<tr>" + cell(loop.opamp) + crossover_cell(loop) + margin_cell(loop.phase_margin, "deg") +
+           margin_cell(loop.gain_margin, "dB") + cell(loop_verdict(loop)) + "</tr>\n";
+  out += "</table>\n";
+  plot::Figure f = loop_figure(*review.loop, context);
+  f.id = "loop";
+  f.title = "Loop gain of each op amp";
+  return out + figure(f, "Each op amp's return ratio T with the loop closed; dots mark where |T| = 1 "
+                         "(phase margin written on the phase curve) and where the phase reaches "
+                         "-180 deg (gain margin on the |T| curve). Verdict: common practice, 45 deg "
+                         "and 6 dB.");
+}
+
 }  // namespace
 
 const Writers<ReviewPage>& report_writers() {
@@ -185,6 +220,7 @@ std::string report_html(const ReviewPage& page, const ReportContext& context) {
   out += response_section(page.review, context);
   out += noise_section(page.review, context);
   out += bias_section(page.review, context);
+  out += loop_section(page.review, context);
   out += "<h2>Circuit</h2>\n<pre>" + escape(without_header(page.listing, context)) + "</pre>\n";
   return out + "</body>\n</html>\n";
 }

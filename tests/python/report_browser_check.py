@@ -110,7 +110,7 @@ def main():
             "chromium's console is not captured: the check below could not see an error"
 
         page, html = tacet_report(tacet, folder, DEMO)
-        assert "10 specs: 10 pass, 0 fail" in html
+        assert "11 specs: 11 pass, 0 fail" in html
         png = os.path.join(folder, "report.png")
         console = render(page, png)
         assert not console, "the page logged to the console:\n" + "\n".join(console)

@@ -16,12 +16,16 @@
 // Every other op amp stays active: in nested loops each op amp's T is its own
 // return ratio with the rest of the circuit, other loops closed, around it.
 //
-// Crossovers (|T| = 1) and phase crossovers (unwrapped phase at -180 - 360k)
-// are bracketed on a scan grid of at least 100 points a decade and then
-// located by bisection on the continuous response to 1e-12 relative.
+// Crossovers (|T| = 1) and phase crossovers (unwrapped phase at -180 - 360k,
+// k = 0, 1, 2, ...: a phase lagging by 180, 540, ... degrees) are bracketed on
+// a scan grid of at least 100 points a decade and then located by bisection
+// on the continuous response to 1e-12 relative. A phase that rises through
+// +180 (k = -1, more than 180 degrees of net lead) is no phase crossover.
 
 #include <complex>
 #include <cstddef>
+#include <functional>
+#include <memory>
 #include <optional>
 #include <string>
 #include <vector>
@@ -82,17 +86,43 @@ std::complex<double> opamp_gain(const OpAmpModel& model, std::complex<double> s)
 class LoopGain {
  public:
   explicit LoopGain(const Circuit& circuit, SolverKind solver = SolverKind::klu);
+  /// On a response the caller already has (check's, shared with its AC specs):
+  /// no second MNA system, and a frequency factored for one is reused by both.
+  explicit LoopGain(FrequencyResponse& shared);
   std::complex<double> at(std::size_t opamp, double f);
   FrequencyResponse& response() { return response_; }
 
  private:
-  FrequencyResponse response_;
+  std::unique_ptr<FrequencyResponse> owned_;  ///< empty when the response is shared
+  FrequencyResponse& response_;
   std::vector<std::complex<double>> rhs_;
 };
+
+/// Crossovers, phase crossovers and both margins of a loop gain T(f) (V/V)
+/// over `grid` (rising frequencies, Hz): each bracketed between neighbouring
+/// points and located by bisection, then sorted and summarised into `trace`
+/// (its t and deg are left as they are).
+void find_loop_margins(const std::function<std::complex<double>(double)>& t,
+                       const std::vector<double>& grid, LoopTrace& trace);
+/// The same with T already known on the grid (`values[i]` = T at grid[i]):
+/// `t` is called only inside the brackets.
+void find_loop_margins(const std::function<std::complex<double>(double)>& t,
+                       const std::vector<double>& grid,
+                       const std::vector<std::complex<double>>& values, LoopTrace& trace);
+
+/// One op amp's crossovers and margins over [from, to] Hz, scanned on a log
+/// grid of kSearchGridPerDecade points a decade (no sweep points kept).
+LoopTrace loop_margins(LoopGain& gain, std::size_t opamp, double from, double to);
 
 /// Throws InputError for a bad sweep or op-amp name, SolveError when the
 /// circuit cannot be solved at some frequency.
 LoopResult run_loop(const Circuit& circuit, const LoopOptions& options);
+
+/// Whether T at the low end of a range holds the loop left of -1 by positive
+/// feedback: |T| > 1 with arg T in (90, 180], a lag from +180 as a latch's
+/// T = -aol beta / (1 + s/wp) has. A negative-feedback loop lagging past -90
+/// (a range that starts above its dominant pole) has arg T in (-180, -90).
+bool regenerative(std::complex<double> t_low);
 
 /// The unwrapped phase step from `previous` (deg) to the phase of `t`: the
 /// nearest value congruent to arg t modulo 360.

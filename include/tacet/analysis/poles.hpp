@@ -39,6 +39,12 @@ namespace tacet {
 /// dense method serves; QZ takes about a second there on one core.
 inline constexpr int kMaxPoleUnknowns = 600;
 
+class MnaSystem;
+
+/// The size of the pencil run_poles solves for this MNA system: its unknowns
+/// plus one per entry quadratic in s (an op amp with a second pole).
+int pole_unknowns(const MnaSystem& mna);
+
 struct PolesOptions {
   std::string probe;  ///< with input: the transfer whose zeros are found
   std::string input;  ///< a vsource or isource
@@ -57,7 +63,7 @@ struct PolesResult {
   std::vector<Root> zeros;  ///< with a probe and an input
   std::string probe, input;
   bool stable = true;                   ///< every pole has Re s < 0
-  std::vector<std::string> unstable_loops;  ///< op amps whose loop margins are negative
+  std::vector<std::string> unstable_loops;  ///< op amps whose margins are negative or whose T starts left of -1
   int unknowns = 0;                     ///< size of the pencil solved
 };
 

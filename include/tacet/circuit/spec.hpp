@@ -27,6 +27,11 @@ enum class SpecKind {
   mask,          ///< closest approach of dB(H) (re H(ref), or absolute) to a mask, at least 0 dB
   settling,      ///< step response from `input` settled to `band` of final within max (s)
   overshoot,     ///< step response from `input`: (peak - final) / final at most max (fraction)
+  phase_margin,  ///< smallest phase margin of `opamp`'s loop over [from, to] at least min (deg)
+  gain_margin,   ///< smallest gain margin of `opamp`'s loop over [from, to] at least min (dB)
+  peaking,       ///< largest dB(H(f)) - dB(H(ref)) over [from, to] at most max (dB)
+  impedance,     ///< |Z| of a z() probe at `at`, or its largest over [from, to], in [min, max] (ohm)
+  stable,        ///< every pole in the left half-plane: the rightmost pole's Re s/(2 pi) below 0 Hz
 };
 
 const char* to_string(SpecKind kind);
@@ -40,7 +45,7 @@ const std::vector<std::string>& spec_kind_names();
 /// `amps` is a noise spec's rms on a branch current (current=R1);
 /// `volts_per_amp` and `amps_per_amp` a gain from a current source (input=I1).
 enum class SpecUnit { db, ratio, amps_per_volt, degrees, hertz, volts, amps, volts_per_amp, amps_per_amp,
-                      seconds, fraction };
+                      seconds, fraction, ohms };
 const char* to_string(SpecUnit unit);
 
 /// One point of a mask: at `f` the response lies within [low, high] dB (an
@@ -76,6 +81,7 @@ struct Spec {
   std::vector<MaskPoint> mask;  ///< mask: the points, frequencies increasing
   bool relative = false;  ///< mask: bounds re |H(ref)| (ref= given), else re 1 V/V (or 1 A/V)
   double band = 1e-4;     ///< settling: the band about final, a fraction of it
+  std::string opamp;      ///< phase_margin, gain_margin: the op amp whose loop is measured
 };
 
 }  // namespace tacet

@@ -21,7 +21,9 @@
 //
 // Markers. Vertical lines (a crossover frequency, a settling time, a limit on
 // a histogram), horizontal lines (0 dB, -180 deg, a spec limit), shaded y
-// bands (a settling band) and labelled points (a margin at its crossover).
+// bands (a settling band) and labelled points (a margin at its crossover;
+// the label on the side of the dot towards the panel's middle, every other
+// label below its dot).
 
 #include <optional>
 #include <string>

@@ -20,7 +20,9 @@ const Writers<LoopResult>& loop_writers();
 /// The verdict for people, by the common-practice margins (45 deg, 6 dB):
 /// "ample" (phase margin >= 60 deg and gain margin >= 10 dB or none),
 /// "adequate" (>= 45 deg and >= 6 dB or none), "marginal" (both positive),
-/// "unstable" (a negative margin), "no crossover" (|T| never reaches 1).
+/// "unstable" (a negative margin), "no crossover" (|T| never reaches 1),
+/// "positive feedback" (T negative with |T| > 1 at the lowest frequency: the
+/// Nyquist curve starts left of -1, a latch, whatever the margins read).
 const char* loop_verdict(const LoopTrace& trace);
 
 std::string loop_table(const LoopResult& result, const ReportContext& context);

@@ -1,0 +1,2 @@
+check
+@/check_stability_bad_opamp.tacet

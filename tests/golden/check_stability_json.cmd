@@ -1,0 +1,4 @@
+check
+@/check_stability.tacet
+--format
+json

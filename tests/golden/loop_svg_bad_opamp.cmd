@@ -1,0 +1,6 @@
+loop
+@/check_stability.tacet
+--format
+svg
+--opamp
+U9
