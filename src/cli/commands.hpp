@@ -15,5 +15,8 @@ void setup_diff(CLI::App& app);
 void setup_report(CLI::App& app);
 void setup_loop(CLI::App& app);
 void setup_poles(CLI::App& app);
+void setup_spread(CLI::App& app);
+void setup_merge(CLI::App& app);
+void setup_rank(CLI::App& app);
 
 }  // namespace tacet::cli
