@@ -262,6 +262,9 @@ TEST_CASE("spread options refuse no runs and shards that do not exist", "[spread
   CHECK(o.validate() == "--shard 3/2 does not exist: shards are numbered 1/N to N/N");
   o.shard = 1, o.shards = 11;
   CHECK(o.validate() == "--shard 1/11 cuts 10 draws into more shards than draws");
+  o.shards = 1;
+  o.threads = 257;
+  CHECK(o.validate() == "--threads must be from 0 (one per core) to 256, not 257");
 }
 
 TEST_CASE("shards cut the draws into contiguous blocks that tile the run", "[spread]") {

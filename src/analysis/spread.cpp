@@ -25,7 +25,8 @@ namespace tacet {
 
 std::string SpreadOptions::validate() const {
   if (runs < 1) return fmt::format("--runs must be at least 1, not {}", runs);
-  if (threads < 0) return fmt::format("--threads must be 0 (every core) or more, not {}", threads);
+  if (threads < 0 || threads > kMostSpreadThreads)
+    return fmt::format("--threads must be from 0 (one per core) to {}, not {}", kMostSpreadThreads, threads);
   if (shards < 1 || shard < 1 || shard > shards)
     return fmt::format("--shard {}/{} does not exist: shards are numbered 1/N to N/N", shard, shards);
   if (shards > runs)
@@ -217,9 +218,10 @@ void run_draws(const Circuit& circuit, const SpreadOptions& options, SpreadSampl
   std::vector<std::thread> workers;
   for (int t = 0; t < threads; ++t) workers.emplace_back(work);
   if (options.progress) {
-    while (done < count && !stop) {
-      std::this_thread::sleep_for(std::chrono::milliseconds(100));
-      options.progress(done, count);
+    // Short naps, so a short run ends without waiting; a report every tenth of a second.
+    for (int nap = 1; done < count && !stop; ++nap) {
+      std::this_thread::sleep_for(std::chrono::milliseconds(10));
+      if (nap % 10 == 0) options.progress(done, count);
     }
   }
   for (auto& w : workers) w.join();
@@ -247,6 +249,12 @@ SpreadSamples sample_spread(const Circuit& circuit, const SpreadOptions& options
   samples.count = options.count();
   samples.plan = plan_spread(circuit);
   samples.specs = nominal_specs(circuit);
+  const auto held = static_cast<double>(samples.count) * static_cast<double>(samples.specs.size());
+  if (held > static_cast<double>(kMostSpreadValues))
+    throw InputError::usage(
+        fmt::format("{} draws of {} specs are more values than one run holds ({} million)", samples.count,
+                    samples.specs.size(), kMostSpreadValues / 1000000),
+        "cut the run into shards with --shard I/N and merge them (docs/analyses/spread.md)");
   run_draws(circuit, options, samples);
   return samples;
 }

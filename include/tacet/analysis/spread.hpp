@@ -37,6 +37,11 @@
 
 namespace tacet {
 
+/// Limits of one process: worker threads, and draws x specs held in memory
+/// (9 bytes each; a larger run is cut into shards).
+inline constexpr int kMostSpreadThreads = 256;
+inline constexpr std::int64_t kMostSpreadValues = 200000000;
+
 struct SpreadOptions {
   std::int64_t runs = 1000;  ///< draws in the whole run
   std::uint64_t seed = 1;
