@@ -171,9 +171,12 @@ class DrawEvaluator {
   std::unique_ptr<FrequencyResponse> response_;
 };
 
+/// The specs at the nominal values. A spec that cannot be measured there
+/// (a floating node, a source loop) cannot be in any draw: exit 3 before any.
 std::vector<SpreadSpec> nominal_specs(const Circuit& circuit) {
   std::vector<SpreadSpec> specs;
   const CheckResult nominal = run_check(circuit);
+  if (nominal.unsolved() > 0) throw nominal.unsolved_error();
   for (const SpecResult& r : nominal.specs)
     specs.push_back({r.spec.name, r.spec.kind, r.spec.unit, r.spec.min, r.spec.max, r.value, r.pass});
   return specs;

@@ -10,6 +10,7 @@
 #include <fstream>
 #include <iostream>
 #include <memory>
+#include <optional>
 #include <sstream>
 
 #include <fmt/format.h>
@@ -31,7 +32,22 @@ struct SpreadFlags {
   std::uint64_t seed = 1;
   int threads = 0;
   std::string shard;  ///< "I/N"; empty: the whole run
+  std::string min_yield;  ///< "99%"; empty: none
 };
+
+/// --min-yield as a fraction in [0, 1]; nullopt when not given.
+std::optional<double> parse_min_yield(const std::string& text) {
+  if (text.empty()) return std::nullopt;
+  const double y = parse_quantity("--min-yield", text, Dimension::ratio);
+  if (y < 0 || y > 1)
+    throw InputError::bad_value("--min-yield", text, "a yield from 0 to 100%", "write --min-yield 99%");
+  return y;
+}
+
+/// Exit 1 after the report when the overall yield is below the minimum.
+void require_yield(const SpreadResult& result, std::optional<double> min_yield) {
+  if (min_yield && result.yield < *min_yield) throw SpecFailed();
+}
 
 /// "2/8" -> shard 2 of 8; anything else is a usage error.
 void parse_shard(const std::string& text, SpreadOptions& options) {
@@ -89,12 +105,15 @@ void setup_spread(CLI::App& app) {
   auto* format_option = cmd->get_option("--format");
   cmd->add_option("--shard", flags->shard,
                   "Run shard I of N (I/N) and write its samples as JSON for tacet merge");
+  cmd->add_option("--min-yield", flags->min_yield,
+                  "Exit 1 after the report when the overall yield is below this (99%)");
   cmd->callback([flags, format_option] {
     SpreadOptions options;
     options.runs = flags->runs;
     options.seed = flags->seed;
     options.threads = flags->threads;
     if (!flags->shard.empty()) parse_shard(flags->shard, options);
+    const auto min_yield = parse_min_yield(flags->min_yield);
     if (auto problem = options.validate(); !problem.empty()) throw InputError::usage(problem);
     const OutputFormat format = output_format(flags->common);
     const bool sharded = !flags->shard.empty();
@@ -115,6 +134,7 @@ void setup_spread(CLI::App& app) {
     }
     const SpreadResult result = run_spread(circuit, options);
     write_output(flags->common.output, spread_writers().write(format, result, context));
+    require_yield(result, min_yield);
   });
 }
 
@@ -122,6 +142,7 @@ void setup_merge(CLI::App& app) {
   struct MergeFlags {
     CommonOptions common;
     std::vector<std::string> files;
+    std::string min_yield;
   };
   auto flags = std::make_shared<MergeFlags>();
   CLI::App* cmd = app.add_subcommand(
@@ -129,8 +150,11 @@ void setup_merge(CLI::App& app) {
   cmd->add_option("shards", flags->files, "The shard files, in any order")->required();
   add_format_option(*cmd, flags->common, spread_writers().formats());
   cmd->add_option("--output", flags->common.output, "Write to this file (atomically) instead of stdout");
+  cmd->add_option("--min-yield", flags->min_yield,
+                  "Exit 1 after the report when the overall yield is below this (99%)");
   cmd->callback([flags] {
     const OutputFormat format = output_format(flags->common);
+    const auto min_yield = parse_min_yield(flags->min_yield);
     std::vector<SpreadSamples> shards;
     ReportContext context;
     for (std::size_t k = 0; k < flags->files.size(); ++k) {
@@ -138,8 +162,9 @@ void setup_merge(CLI::App& app) {
       shards.push_back(read_spread_shard(read_whole_file(flags->files[k]), flags->files[k], shard_context));
       if (k == 0) context = shard_context;
     }
-    const SpreadSamples whole = merge_spread_samples(std::move(shards), flags->files);
-    write_output(flags->common.output, spread_writers().write(format, summarise_spread(whole), context));
+    const SpreadResult result = summarise_spread(merge_spread_samples(std::move(shards), flags->files));
+    write_output(flags->common.output, spread_writers().write(format, result, context));
+    require_yield(result, min_yield);
   });
 }
 
