@@ -284,7 +284,11 @@ SpreadSamples merge_spread_samples(std::vector<SpreadSamples> shards,
     if (a.seed != b.seed) differ("seed", std::to_string(a.seed), std::to_string(b.seed));
     if (a.runs != b.runs) differ("runs", std::to_string(a.runs), std::to_string(b.runs));
     if (a.shards != b.shards) differ("shard count", std::to_string(a.shards), std::to_string(b.shards));
-    if (!(a.plan == b.plan) || !(a.specs == b.specs)) differ("specs or parts", "of one", "of another");
+    if (!(a.plan == b.plan) || !(a.specs == b.specs))
+      throw InputError::usage(
+          fmt::format("'{}' and '{}' are shards of different runs: their specs or toleranced parts differ",
+                      name(0), name(k)),
+          "merge the shards of one run: the same netlist, --set, --seed, --runs and shard count");
   }
   std::vector<int> given(static_cast<std::size_t>(a.shards) + 1, -1);
   for (std::size_t k = 0; k < shards.size(); ++k) {
@@ -304,18 +308,20 @@ SpreadSamples merge_spread_samples(std::vector<SpreadSamples> shards,
   whole.count = a.runs;
   for (auto& v : whole.values) v.clear();
   for (auto& p : whole.pass) p.clear();
+  // Each shard must hold exactly the block `tacet spread --shard s/N` runs.
   for (int s = 1; s <= a.shards; ++s) {
     const SpreadSamples& part = shards[static_cast<std::size_t>(given[static_cast<std::size_t>(s)])];
-    const std::int64_t expected = static_cast<std::int64_t>(whole.values.empty() ? 0 : whole.values[0].size());
-    if (part.first != expected && !whole.values.empty())
-      throw InputError::usage(fmt::format("shard {}/{} starts at draw {}, not {}", s, a.shards, part.first, expected));
+    SpreadOptions block;
+    block.runs = a.runs, block.shard = s, block.shards = a.shards;
+    if (part.first != block.first() || part.count != block.count())
+      throw InputError::usage(fmt::format("shard {}/{} holds draws {} to {}, not {} to {} of the {}", s,
+                                          a.shards, part.first, part.first + part.count - 1, block.first(),
+                                          block.first() + block.count() - 1, a.runs));
     for (std::size_t spec = 0; spec < whole.values.size(); ++spec) {
       whole.values[spec].insert(whole.values[spec].end(), part.values[spec].begin(), part.values[spec].end());
       whole.pass[spec].insert(whole.pass[spec].end(), part.pass[spec].begin(), part.pass[spec].end());
     }
   }
-  if (!whole.values.empty() && static_cast<std::int64_t>(whole.values[0].size()) != a.runs)
-    throw InputError::usage(fmt::format("the shards hold {} draws, not the run's {}", whole.values[0].size(), a.runs));
   return whole;
 }
 
