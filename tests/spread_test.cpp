@@ -236,6 +236,12 @@ TEST_CASE("shards merged give the whole run byte for byte", "[spread]") {
     CHECK_THROWS_WITH(merge_spread_samples(other, names),
                       Catch::Contains("'3.json' and '1.json' are shards of different runs: seed 5 and 6"));
   }
+  SECTION("a shard that holds other draws than its block is refused") {
+    auto shifted = shards;
+    shifted[1].first = 1;  // shard 1/3 must start at draw 0
+    CHECK_THROWS_WITH(merge_spread_samples(shifted, names),
+                      Catch::Contains("shard 1/3 holds draws 1 to 100, not 0 to 99 of the 301"));
+  }
   SECTION("a shard of another netlist is refused") {
     SpreadOptions o = whole;
     o.shard = 2, o.shards = 3;
