@@ -9,7 +9,11 @@ has one spec of every kind a chain needs: gain, flatness, upper corner, noise,
 snr, offset and rails (the source declares a level, so rails also runs the
 headroom sweep).
 
-Usage: gen_chain.py ELEMENTS [OUTPUT]   (default output: stdout)
+With --tol every resistor gets tol=1%, every capacitor tol=5% dist=normal,
+each section's gain pair is a matched set (ratio 0.1%) and the model spreads
+(gbw_tol 30%, aol_tol 50%), for the spread benchmark.
+
+Usage: gen_chain.py ELEMENTS [OUTPUT] [--tol]   (default output: stdout)
 """
 
 import sys
@@ -17,24 +21,27 @@ import sys
 SECTION = 10  # elements per section
 
 
-def section(k, into):
+def section(k, into, tol=False):
     """Elements of section k, from node `into`; returns its output node."""
     a, fb, b, s1, s2, out = (f"a{k}", f"fb{k}", f"b{k}", f"s{k}", f"t{k}", f"o{k}")
+    r = " tol=1%" if tol else ""
+    pair = f" tol=1% match=RA{k} ratio=0.1%" if tol else ""
+    c = " tol=5% dist=normal" if tol else ""
     return [
         f"opamp UA{k} (+{into}, -{fb}, {a}) chain_amp",
-        f"res RF{k} ({a}, {fb}) 10k",
-        f"res RG{k} ({fb}, gnd) 10k",
-        f"res RP{k} ({a}, {b}) 4.7k",
-        f"res RQ{k} ({b}, gnd) 4.7k",
-        f"res RS{k} ({b}, {s1}) 1k",
-        f"res RT{k} ({s1}, {s2}) 1k",
-        f"cap CS{k} ({s1}, {out}) 200p",
-        f"cap CT{k} ({s2}, gnd) 100p",
+        f"res RF{k} ({a}, {fb}) 10k{pair}",
+        f"res RG{k} ({fb}, gnd) 10k{pair}",
+        f"res RP{k} ({a}, {b}) 4.7k{r}",
+        f"res RQ{k} ({b}, gnd) 4.7k{r}",
+        f"res RS{k} ({b}, {s1}) 1k{r}",
+        f"res RT{k} ({s1}, {s2}) 1k{r}",
+        f"cap CS{k} ({s1}, {out}) 200p{c}",
+        f"cap CT{k} ({s2}, gnd) 100p{c}",
         f"opamp UB{k} (+{s2}, -{out}, {out}) chain_amp",
     ], out
 
 
-def netlist(elements):
+def netlist(elements, tol=False):
     sections = max(1, (elements - 2) // SECTION)
     lines = [
         f'title "Generated chain, {sections} sections"',
@@ -43,12 +50,13 @@ def netlist(elements):
         "  gbw 20MHz  aol 120dB  rout 20ohm",
         "  en 5nV/rtHz  fce 10Hz  in 0.4pA/rtHz  fci 100Hz",
         "  vos 50uV  ib 20nA  ios 2nA  swing 1.5V  slew 10V/us",
+        *(["  gbw_tol 30%  aol_tol 50%"] if tol else []),
         "}",
         "vsrc Vin (in, gnd) ac=1 level=100mVrms band_low=20Hz band_high=20kHz",
     ]
     node = "in"
     for k in range(sections):
-        body, node = section(k, node)
+        body, node = section(k, node, tol)
         lines += body
     lines += [
         f"res RL ({node}, gnd) 10k",
@@ -64,11 +72,13 @@ def netlist(elements):
 
 
 def main():
-    if len(sys.argv) not in (2, 3):
+    tol = "--tol" in sys.argv
+    args = [a for a in sys.argv[1:] if a != "--tol"]
+    if len(args) not in (1, 2):
         sys.exit(__doc__)
-    text = netlist(int(sys.argv[1]))
-    if len(sys.argv) == 3:
-        with open(sys.argv[2], "w") as out:
+    text = netlist(int(args[0]), tol)
+    if len(args) == 2:
+        with open(args[1], "w") as out:
             out.write(text)
     else:
         sys.stdout.write(text)

@@ -25,6 +25,9 @@ int main(int argc, char** argv) {
   tacet::cli::setup_loop(app);
   tacet::cli::setup_poles(app);
   tacet::cli::setup_settle(app);
+  tacet::cli::setup_spread(app);
+  tacet::cli::setup_merge(app);
+  tacet::cli::setup_rank(app);
   try {
     app.parse(argc, argv);
   } catch (const CLI::ParseError& e) {

@@ -43,6 +43,40 @@ std::optional<std::size_t> Circuit::find_element(const std::string& name) const 
   return std::nullopt;
 }
 
+const char* to_string(Distribution dist) {
+  switch (dist) {
+    case Distribution::uniform: return "uniform";
+    case Distribution::normal: return "normal";
+  }
+  return "uniform";
+}
+
+namespace {
+struct TolerancedField {
+  const char* key;
+  double OpAmpModel::*field;
+};
+constexpr TolerancedField kTolerancedFields[] = {
+    {"gbw", &OpAmpModel::gbw}, {"aol", &OpAmpModel::aol}, {"fp2", &OpAmpModel::fp2},
+    {"rout", &OpAmpModel::rout}, {"rin", &OpAmpModel::rin}, {"en", &OpAmpModel::en},
+    {"fce", &OpAmpModel::fce}, {"in", &OpAmpModel::in}, {"fci", &OpAmpModel::fci}};
+}  // namespace
+
+const std::vector<std::string>& toleranced_model_keys() {
+  static const std::vector<std::string> keys = [] {
+    std::vector<std::string> out;
+    for (const auto& f : kTolerancedFields) out.emplace_back(f.key);
+    return out;
+  }();
+  return keys;
+}
+
+double* model_parameter(OpAmpModel& model, std::string_view key) {
+  for (const auto& f : kTolerancedFields)
+    if (key == f.key) return &(model.*f.field);
+  return nullptr;
+}
+
 const OpAmpModel& Circuit::model_of(const Element& e) const {
   return models.at(static_cast<std::size_t>(e.model));
 }

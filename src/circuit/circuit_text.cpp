@@ -37,6 +37,8 @@ std::string element_value(const Circuit& c, const Element& e) {
     }
   }
   if (e.tolerance > 0) out += fmt::format(" tol={:g}%", e.tolerance * 100);
+  if (!e.match.empty()) out += fmt::format(" match={} ratio={:g}%", e.match, e.ratio * 100);
+  if (e.dist != Distribution::uniform) out += fmt::format(" dist={}", to_string(e.dist));
   if (e.rails) out += fmt::format(" rails={:+g}/{:+g}", e.rails->high, e.rails->low);
   if (e.noiseless) out += " noiseless";
   return out;
@@ -62,6 +64,8 @@ std::string model_line(const OpAmpModel& m) {
   if (m.slew != 0) out += fmt::format(" slew {:g}V/us", m.slew * 1e-6);
   if (m.vcm_low) out += fmt::format(" vcm_low {}V", format_si(*m.vcm_low, 6));
   if (m.vcm_high) out += fmt::format(" vcm_high {}V", format_si(*m.vcm_high, 6));
+  for (const ModelTolerance& t : m.tolerances) out += fmt::format(" {}_tol {:g}%", t.key, t.tolerance * 100);
+  if (!m.tolerances.empty() && m.dist != Distribution::uniform) out += fmt::format(" dist {}", to_string(m.dist));
   return out + " }\n";
 }
 

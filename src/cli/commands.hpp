@@ -16,5 +16,8 @@ void setup_report(CLI::App& app);
 void setup_loop(CLI::App& app);
 void setup_poles(CLI::App& app);
 void setup_settle(CLI::App& app);
+void setup_spread(CLI::App& app);
+void setup_merge(CLI::App& app);
+void setup_rank(CLI::App& app);
 
 }  // namespace tacet::cli

@@ -2,6 +2,7 @@
 
 #include <algorithm>
 #include <fmt/format.h>
+#include <fmt/ranges.h>
 
 #include <stdexcept>
 
@@ -30,11 +31,26 @@ std::optional<Circuit> Elaborator::run(const std::string& path) {
   InstanceContext top;
   top.scope = &globals_;
   for (const auto& [instance, file] : top_instances_) instantiate(*instance, file, top);
+  check_matched_sets();
   for (const auto& [spec, file] : specs_) elaborate_spec(*spec, file);
   for (const auto& [name, value] : globals_.params) circuit_.params[name] = value.value;
   report_unused_overrides();
   if (diagnostics_.has_errors()) return std::nullopt;
   return std::move(circuit_);
+}
+
+void Elaborator::check_matched_sets() {
+  std::map<std::string, const Element*> first_of_set;
+  for (const Element& e : circuit_.elements) {
+    if (e.match.empty()) continue;
+    const auto [it, added] = first_of_set.try_emplace(e.match, &e);
+    if (added || it->second->dist == e.dist) continue;
+    diagnostics_.error(e.where,
+                       fmt::format("'{}' spreads {} but '{}' of the same matched set '{}' spreads {}",
+                                   e.name, to_string(e.dist), it->second->name, e.match,
+                                   to_string(it->second->dist)),
+                       "the parts of a matched set share one draw: give them the same dist=");
+  }
 }
 
 // ---- files ----------------------------------------------------------------
@@ -249,13 +265,34 @@ const ModelKey kOpAmpKeys[] = {
     {{"vcm_high", Dimension::voltage}, nullptr, &OpAmpModel::vcm_high, Bound::any},
 };
 
+constexpr std::string_view kTolSuffix = "_tol";
+
+/// "gbw_tol" -> "gbw"; empty when the key is no tolerance.
+std::string_view toleranced_key(std::string_view key) {
+  if (key.size() <= kTolSuffix.size() || !key.ends_with(kTolSuffix)) return {};
+  return key.substr(0, key.size() - kTolSuffix.size());
+}
+
+/// The model's keys, then KEY_tol for each key that may spread and `dist`.
 KeyTable opamp_key_table() {
+  static const std::vector<std::string> tol_names = [] {
+    std::vector<std::string> out;
+    for (const std::string& key : toleranced_model_keys()) out.push_back(key + std::string(kTolSuffix));
+    return out;
+  }();
   static const std::vector<KeyRule> rules = [] {
     std::vector<KeyRule> out;
     for (const ModelKey& k : kOpAmpKeys) out.push_back(k.rule);
+    for (const std::string& name : tol_names) out.push_back({name, Dimension::ratio});
+    out.push_back({"dist", Dimension::none});
     return out;
   }();
   return rules;
+}
+
+bool is_model_key(std::string_view name) {
+  return std::any_of(std::begin(kOpAmpKeys), std::end(kOpAmpKeys),
+                     [&](const ModelKey& k) { return k.rule.name == name; });
 }
 
 const ModelKey& model_key(std::string_view name) {
@@ -278,7 +315,22 @@ void Elaborator::resolve_models() {
   }
 }
 
+bool Elaborator::set_model_tolerance(OpAmpModel& model, const KeyValue& entry) {
+  const auto value = evaluate(*entry.value, entry.file, globals_, Dimension::ratio, diagnostics_);
+  if (!value) return false;
+  if (*value < 0 || *value >= 1) {
+    error(entry.file, extent(*entry.value),
+          fmt::format("{} of model '{}' must be from 0 up to 100%", entry.rule->name, model.name));
+    return false;
+  }
+  model.tolerances.push_back({std::string(toleranced_key(entry.rule->name)), *value});
+  return true;
+}
+
 bool Elaborator::set_model_key(OpAmpModel& model, const KeyValue& entry) {
+  if (entry.rule->name == "dist")
+    return read_distribution(*entry.value, entry.file, "model " + model.name, model.dist);
+  if (!toleranced_key(entry.rule->name).empty()) return set_model_tolerance(model, entry);
   const ModelKey& k = model_key(entry.rule->name);
   const auto value = evaluate(*entry.value, entry.file, globals_, k.rule.dimension, diagnostics_);
   if (!value) return false;
@@ -306,7 +358,22 @@ std::optional<OpAmpModel> Elaborator::resolve_model(const ast::Model& model, int
   bool ok = true;
   const KeyWording wording{"unknown op-amp parameter '{}'", "op-amp parameters",
                            fmt::format("'{{}}' is given twice in model '{}'", out.name)};
-  const KeysRead keys = read_keys(written_keys(model.entries), opamp_key_table(), wording, file,
+  // KEY_tol on a key that takes none is said as such, not as an unknown key.
+  std::vector<WrittenKey> written;
+  for (const WrittenKey& key : written_keys(model.entries)) {
+    const std::string_view base = toleranced_key(key.key->text);
+    const auto& spread = toleranced_model_keys();
+    if (base.empty() || !is_model_key(base) ||
+        std::find(spread.begin(), spread.end(), base) != spread.end()) {
+      written.push_back(key);
+      continue;
+    }
+    error(file, *key.key, fmt::format("'{}' of model '{}' takes no tolerance", base, out.name),
+          fmt::format("only the small-signal and noise parameters spread: {}",
+                      fmt::join(spread, ", ")));
+    ok = false;
+  }
+  const KeysRead keys = read_keys(written, opamp_key_table(), wording, file,
                                   out.name, [&](const KeyValue& entry) {
                                     if (!set_model_key(out, entry)) ok = false;
                                   });

@@ -240,6 +240,31 @@ bool Elaborator::read_model_name(Element& e, const ast::Expr& value, int file) {
   return true;
 }
 
+bool Elaborator::read_distribution(const ast::Expr& value, int file, const std::string& owner,
+                                   Distribution& dist) {
+  const auto* id = boost::get<ast::Identifier>(&unwrap(value));
+  if (id && id->text == "uniform") dist = Distribution::uniform;
+  else if (id && id->text == "normal") dist = Distribution::normal;
+  else {
+    error(file, extent(value), fmt::format("dist of '{}' must be uniform or normal", owner),
+          "uniform: evenly over +-tol (the default); normal: sigma = tol/3, cut at +-tol");
+    return false;
+  }
+  return true;
+}
+
+bool Elaborator::read_match(Element& e, const ast::Expr& value, int file) {
+  const auto* id = boost::get<ast::Identifier>(&unwrap(value));
+  if (!id) {
+    error(file, extent(value), "match= takes the name of a matched set", "write match=RA");
+    return false;
+  }
+  // A set is named like the parts in it: inside block instance F1, RA is F1.RA.
+  const auto dot = e.name.rfind('.');
+  e.match = (dot == std::string::npos ? std::string() : e.name.substr(0, dot + 1)) + id->text;
+  return true;
+}
+
 bool Elaborator::apply_option(Element& e, const KeyValue& option, const Scope& scope, double& load) {
   const std::string_view key = option.rule->name;
   if (option.rule->form == KeyForm::flag) {  // noiseless, the only flag
@@ -248,6 +273,8 @@ bool Elaborator::apply_option(Element& e, const KeyValue& option, const Scope& s
   }
   if (key == "rails") return (e.rails = rails_of(*option.value, option.file, scope)).has_value();
   if (key == "level") return (e.level = level_of(*option.value, option.file, scope)).has_value();
+  if (key == "dist") return read_distribution(*option.value, option.file, e.name, e.dist);
+  if (key == "match") return read_match(e, *option.value, option.file);
   const auto v = value_of(*option.value, option.file, scope, option.rule->dimension);
   if (!v) return false;
   const ast::Located at = extent(*option.value);
@@ -257,6 +284,12 @@ bool Elaborator::apply_option(Element& e, const KeyValue& option, const Scope& s
       return false;
     }
     e.tolerance = *v;
+  } else if (key == "ratio") {
+    if (*v < 0 || *v >= 1) {
+      error(option.file, at, fmt::format("ratio tolerance of '{}' must be from 0 up to 100%", e.name));
+      return false;
+    }
+    e.ratio = *v;
   } else if (key == "load") {  // kept aside: load= may come before level=
     if (*v <= 0) {
       error(option.file, at, fmt::format("load of '{}' must be greater than zero", e.name));
@@ -294,6 +327,11 @@ void Elaborator::build_element(const ast::Instance& instance, int file,
   ok = ok && keys.ok;
   if (e.level) e.level->load = load;
   if (ok && !check_level(e, instance, file)) ok = false;
+  if (ok && e.ratio > 0 && e.match.empty()) {
+    error(file, instance.name, fmt::format("'{}' has a ratio tolerance but no matched set", e.name),
+          "ratio= is a part's own deviation inside a matched set: add match=NAME");
+    ok = false;
+  }
   if (ok && !keys.missing.empty()) {
     error(file, instance.name, fmt::format("'{}' needs {}=", e.name, keys.missing.front()),
           fmt::format("write {}={}", keys.missing.front(), t.value_example));

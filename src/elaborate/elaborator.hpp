@@ -160,6 +160,12 @@ class Elaborator {
   bool read_element_value(Element& e, const ast::Instance& instance, int file, const Scope& scope);
   bool read_model_name(Element& e, const ast::Expr& value, int file);
   bool apply_option(Element& e, const KeyValue& option, const Scope& scope, double& load);
+  bool read_distribution(const ast::Expr& value, int file, const std::string& owner,
+                         Distribution& dist);
+  bool set_model_tolerance(OpAmpModel& model, const KeyValue& entry);
+  bool read_match(Element& e, const ast::Expr& value, int file);
+  /// Every part of a matched set spreads the same way (their common draw is one).
+  void check_matched_sets();
 
   void error(int file, const ast::Located& where, std::string message, std::string hint = {});
 

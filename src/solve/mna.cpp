@@ -440,31 +440,50 @@ void MnaSystem::build_pattern() {
   std::partial_sum(col_ptr.begin(), col_ptr.end(), col_ptr.begin());
   std::vector<int> rows(static_cast<std::size_t>(col_ptr[n]));
   std::vector<Coefficients> coefficients(rows.size());
+  std::vector<int> term_at(rows.size());  // bucket position -> term number
   {
     std::vector<int> fill(col_ptr.begin(), col_ptr.end() - 1);
+    int term = 0;
     for_each_term([&](int row, int col, const Coefficients& c) {
       const auto k = static_cast<std::size_t>(fill[col]++);
       rows[k] = row;
       coefficients[k] = c;
+      term_at[k] = term++;
     });
   }
-  std::vector<std::pair<int, Coefficients>> column;  // one bucket, sorted by row
+  term_slot_.assign(rows.size(), 0);
+  std::vector<bool> varies;  // per slot: some term of it depends on s
+  struct Term {
+    int row;
+    Coefficients c;
+    int term;
+  };
+  std::vector<Term> column;  // one bucket, copied out before it is compacted in place
   std::size_t out = 0, begin = 0;
   for (std::size_t col = 0; col < n; ++col) {
     const auto end = static_cast<std::size_t>(col_ptr[col + 1]);
     column.clear();
-    for (std::size_t k = begin; k < end; ++k) column.emplace_back(rows[k], coefficients[k]);
-    std::sort(column.begin(), column.end(),
-              [](const auto& a, const auto& b) { return a.first < b.first; });
+    for (std::size_t k = begin; k < end; ++k) column.push_back({rows[k], coefficients[k], term_at[k]});
+    // Stable: the terms of one entry are summed in term order, as restamp() sums them.
+    std::stable_sort(column.begin(), column.end(),
+                     [](const Term& a, const Term& b) { return a.row < b.row; });
     col_ptr[col] = static_cast<int>(out);
     for (std::size_t k = 0; k < column.size(); ++k) {
-      if (k > 0 && column[k].first == column[k - 1].first) {
-        auto& c = coefficients[out - 1];
-        c.c0 += column[k].second.c0, c.c1 += column[k].second.c1, c.c2 += column[k].second.c2;
+      const Coefficients c = column[k].c;
+      const int term = column[k].term;
+      const bool depends_on_s = c.c1 != 0 || c.c2 != 0;
+      if (k > 0 && column[k].row == column[k - 1].row) {
+        auto& sum = coefficients[out - 1];
+        sum.c0 += c.c0, sum.c1 += c.c1, sum.c2 += c.c2;
+        term_slot_[static_cast<std::size_t>(term)] = static_cast<int>(out - 1);
+        if (depends_on_s) varies[out - 1] = true;
         continue;
       }
-      rows[out] = column[k].first;
-      coefficients[out++] = column[k].second;
+      rows[out] = column[k].row;
+      coefficients[out] = c;
+      term_slot_[static_cast<std::size_t>(term)] = static_cast<int>(out);
+      varies.push_back(depends_on_s);
+      ++out;
     }
     begin = end;
   }
@@ -473,8 +492,19 @@ void MnaSystem::build_pattern() {
   coefficients.resize(out);
   pattern_.row_index = std::move(rows);
   coefficients_ = std::move(coefficients);
+  // By term, not by sum: an entry whose s parts cancel at nominal values still
+  // varies once restamp() moves them apart.
   for (std::size_t k = 0; k < coefficients_.size(); ++k)
-    if (coefficients_[k].c1 != 0 || coefficients_[k].c2 != 0) varying_.push_back(static_cast<int>(k));
+    if (varies[k]) varying_.push_back(static_cast<int>(k));
+}
+
+void MnaSystem::restamp() {
+  for (Coefficients& c : coefficients_) c = {0, 0, 0};
+  std::size_t term = 0;
+  for_each_term([&](int, int, const Coefficients& c) {
+    Coefficients& sum = coefficients_[static_cast<std::size_t>(term_slot_[term++])];
+    sum.c0 += c.c0, sum.c1 += c.c1, sum.c2 += c.c2;
+  });
 }
 
 // --- per-point work ----------------------------------------------------------

@@ -25,6 +25,14 @@ FrequencyResponse::FrequencyResponse(const Circuit& circuit, SolverKind solver)
   mna_.assemble(0.0, values_.data());  // the constant entries, once
 }
 
+void FrequencyResponse::restamp() {
+  mna_.restamp();
+  mna_.assemble(0.0, values_.data());
+  mna_.excitation(excitation_.data());
+  factored_ = -1;
+  solved_ = -1;
+}
+
 void FrequencyResponse::factor_at(double f) {
   if (f == factored_) return;
   solved_ = -1;

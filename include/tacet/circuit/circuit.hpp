@@ -9,6 +9,7 @@
 #include <map>
 #include <optional>
 #include <string>
+#include <string_view>
 #include <unordered_map>
 #include <vector>
 
@@ -17,6 +18,19 @@
 #include "tacet/circuit/spec.hpp"
 
 namespace tacet {
+
+/// How a toleranced value spreads between its limits in `tacet spread`:
+/// uniform over +-tol (the default), or normal with sigma = tol/3 and draws
+/// beyond +-tol drawn again (common practice: tol read as a 3-sigma limit).
+enum class Distribution { uniform, normal };
+const char* to_string(Distribution dist);
+
+/// An op-amp model parameter that spreads (`gbw_tol 30%`): the key of the
+/// parameter ("gbw") and its relative tolerance (0.3).
+struct ModelTolerance {
+  std::string key;
+  double tolerance = 0;
+};
 
 /// Op-amp macromodel (all values SI). A(s) = aol / ((1 + s/wp)(1 + s/wp2)),
 /// wp = 2 pi gbw / aol, wp2 = 2 pi fp2 (no second pole when fp2 == 0). The
@@ -39,8 +53,17 @@ struct OpAmpModel {
   double slew = 0;       ///< slew rate, V/s; 0: not given
   std::optional<double> vcm_low;   ///< inputs must stay this far above the low rail, V
   std::optional<double> vcm_high;  ///< inputs must stay this far below the high rail, V
+  std::vector<ModelTolerance> tolerances;  ///< the parameters that spread, in the order written
+  Distribution dist = Distribution::uniform;  ///< how every one of them spreads
   SourceLocation where;
 };
+
+/// The model keys that may carry a tolerance (`KEY_tol`): the small-signal
+/// and noise parameters. vos, ib, ios are already worst-case limits and the
+/// swing and input ranges are limits too, so they take none.
+const std::vector<std::string>& toleranced_model_keys();
+/// The field of a toleranced key ("gbw" -> &model.gbw); nullptr for any other key.
+double* model_parameter(OpAmpModel& model, std::string_view key);
 
 /// How a source's largest level was written: `level=40Vrms`, `level=56.6Vpk`
 /// or `level=200W load=8ohm` (power into a load, P = V_rms^2 / R).
@@ -73,6 +96,12 @@ struct Element {
   double ac_magnitude = 0;  ///< sources: AC magnitude, V or A
   double ac_phase = 0;    ///< sources: AC phase, degrees
   double tolerance = 0;   ///< relative (0.01 = 1 %); 0: not given
+  Distribution dist = Distribution::uniform;  ///< how `tolerance` (and `ratio`) spread
+  /// Matched set (`match=RA`): the parts of one set share one draw within their
+  /// own `tolerance`, and each differs from it by its own `ratio`. The name is
+  /// qualified like the element's ("F1.RA"); empty: not in a set.
+  std::string match;
+  double ratio = 0;       ///< relative ratio tolerance inside the matched set
   bool noiseless = false;
   int model = -1;         ///< opamp: index into Circuit::models
   std::optional<Rails> rails;  ///< opamp: rails= on the instance

@@ -72,9 +72,17 @@ struct ElementTraits {
 };
 
 namespace element_options {
+// tol= the largest deviation; dist= how it spreads (uniform, normal); match=
+// the matched set the part belongs to and ratio= its own deviation inside it.
 inline constexpr KeyRule kResistor[] = {{"tol", Dimension::ratio},
-                                        {"noiseless", Dimension::none, KeyForm::flag}};
-inline constexpr KeyRule kReactive[] = {{"tol", Dimension::ratio}};
+                                        {"noiseless", Dimension::none, KeyForm::flag},
+                                        {"dist", Dimension::none},
+                                        {"match", Dimension::none},
+                                        {"ratio", Dimension::ratio}};
+inline constexpr KeyRule kReactive[] = {{"tol", Dimension::ratio},
+                                        {"dist", Dimension::none},
+                                        {"match", Dimension::none},
+                                        {"ratio", Dimension::ratio}};
 inline constexpr KeyRule kVoltageSource[] = {
     {"dc", Dimension::voltage},       {"ac", Dimension::voltage},
     {"phase", Dimension::angle},      {"level", Dimension::any},

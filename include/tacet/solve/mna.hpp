@@ -83,6 +83,12 @@ class MnaSystem {
   /// entries of a circuit matrix are conductances, so a sweep that keeps its
   /// values array pays for the few that change.
   void assemble_varying(std::complex<double> s, std::complex<double>* values) const;
+  /// Recomputes every entry's coefficients from the circuit's values as they
+  /// are now, on the same pattern: no allocation, no sorting. For analyses
+  /// that change element values or model parameters between solves (spread);
+  /// the circuit's structure (its elements, nodes, which op amps have rout,
+  /// rin or fp2) must be the one the system was built from.
+  void restamp();
   /// Writes the real matrix Y(0) (the DC system) into `values`.
   void assemble_dc(double* values) const;
   /// Writes b (size() entries) from every source's AC phasor.
@@ -153,7 +159,8 @@ class MnaSystem {
   const Circuit* circuit_;
   CscPattern pattern_;
   std::vector<Coefficients> coefficients_;  // one per pattern entry
-  std::vector<int> varying_;                // entries with c1 or c2 non-zero
+  std::vector<int> varying_;                // entries with a term whose c1 or c2 is non-zero
+  std::vector<int> term_slot_;              // per stamp term, in for_each_term order: its entry
   std::vector<int> branch_of_;              // per element
   std::vector<int> internal_of_;            // per element: internal node unknown or -1
   std::vector<std::size_t> owner_of_;       // per non-node unknown: element index

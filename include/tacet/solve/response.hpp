@@ -45,6 +45,11 @@ class FrequencyResponse {
   /// k to the probe (the noise analysis reads every source's transfer here).
   const std::vector<std::complex<double>>& adjoint(const Probe& probe);
 
+  /// The circuit's values have changed (not its structure): the matrix is
+  /// restamped on the same pattern and symbolic analysis, and the next
+  /// frequency asked for is factored anew. No allocation.
+  void restamp();
+
   const MnaSystem& mna() const { return mna_; }
   /// The factorisation at the frequency factored last, for callers that solve
   /// right-hand sides of their own.

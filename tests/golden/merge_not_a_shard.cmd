@@ -1,0 +1,2 @@
+merge
+@/spread_divider.tacet

@@ -1,0 +1,4 @@
+rank
+@/spread_divider.tacet
+--slot
+U1

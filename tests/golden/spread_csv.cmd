@@ -1,0 +1,8 @@
+spread
+@/spread_divider.tacet
+--runs
+300
+--seed
+4
+--format
+csv

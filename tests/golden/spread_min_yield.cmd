@@ -1,0 +1,10 @@
+spread
+@/spread_divider.tacet
+--runs
+300
+--seed
+4
+--format
+json
+--min-yield
+95%

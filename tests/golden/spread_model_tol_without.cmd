@@ -1,0 +1,2 @@
+spread
+@/spread_bad_tol.tacet

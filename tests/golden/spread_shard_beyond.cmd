@@ -1,0 +1,4 @@
+spread
+@/spread_divider.tacet
+--shard
+3/2

@@ -1,0 +1,6 @@
+spread
+@/spread_divider.tacet
+--shard
+1/2
+--format
+table

@@ -1,0 +1,6 @@
+spread
+@/spread_divider.tacet
+--runs
+300
+--seed
+4

@@ -1,0 +1,4 @@
+spread
+@/check_floating.tacet
+--runs
+10
