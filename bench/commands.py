@@ -12,6 +12,8 @@ netlist, the yardstick the performance goals are written against:
   noise  100 points and the band total over 20 Hz .. 20 kHz
   check  the seven specs of the chain's budget
   diff   the chain against itself with one resistor changed
+  ac1    the AC response at one frequency (1 kHz)
+  sens   tacet sensitivity at 1 kHz: every parameter by one adjoint solve
 
 Usage: commands.py TACET [SIZE...] [--repeats N] [--only CMD,CMD]
        (default sizes 10 1000 10000 100000; default repeats 3)
@@ -41,6 +43,8 @@ def commands(path, changed, out):
         "noise": ["noise", path, "--probe", out, "--band", "20..20k"] + sweep,
         "check": ["check", path],
         "diff": ["diff", path, changed],
+        "ac1": ["ac", path, "--probe", out, "--at", "1k"],
+        "sens": ["sensitivity", path, "--probe", out, "--at", "1k", "--format", "csv"],
     }
 
 

@@ -24,6 +24,7 @@ int main(int argc, char** argv) {
   tacet::cli::setup_report(app);
   tacet::cli::setup_loop(app);
   tacet::cli::setup_poles(app);
+  tacet::cli::setup_sensitivity(app);
   try {
     app.parse(argc, argv);
   } catch (const CLI::ParseError& e) {

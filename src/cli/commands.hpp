@@ -15,5 +15,6 @@ void setup_diff(CLI::App& app);
 void setup_report(CLI::App& app);
 void setup_loop(CLI::App& app);
 void setup_poles(CLI::App& app);
+void setup_sensitivity(CLI::App& app);
 
 }  // namespace tacet::cli

@@ -117,6 +117,31 @@ std::complex<double> probe_functional(const Probe& probe, const MnaSystem& mna,
   return 0.0;
 }
 
+void probe_functional_derivative(const Probe& probe, const MnaSystem& mna, std::complex<double> s,
+                                 const Parameter& p, std::vector<ProbeTerm>& terms) {
+  terms.clear();
+  if (probe.kind != ProbeKind::current || p.element != probe.element ||
+      p.key != ParameterKey::value)
+    return;
+  auto across = [&](int a, int b, std::complex<double> y) {
+    if (const int u = mna.node_unknown(a); u >= 0) terms.push_back({u, y});
+    if (const int u = mna.node_unknown(b); u >= 0) terms.push_back({u, -y});
+  };
+  const Element& e = mna.circuit().elements[probe.element];
+  const auto& n = e.nodes;
+  switch (e.kind) {
+    case ElementKind::resistor: across(n[0], n[1], -1.0 / (e.value * e.value)); break;
+    case ElementKind::capacitor: across(n[0], n[1], s); break;
+    case ElementKind::vccs: across(n[2], n[3], 1.0); break;
+    case ElementKind::inductor:
+    case ElementKind::vsource:
+    case ElementKind::isource:
+    case ElementKind::vcvs:
+    case ElementKind::opamp:
+      break;
+  }
+}
+
 std::complex<double> probe_value(const Probe& probe, const MnaSystem& mna, std::complex<double> s,
                                  const std::complex<double>* x, std::vector<ProbeTerm>& scratch) {
   std::complex<double> value = probe_functional(probe, mna, s, scratch);

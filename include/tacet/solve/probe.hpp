@@ -54,6 +54,14 @@ struct ProbeTerm {
 std::complex<double> probe_functional(const Probe& probe, const MnaSystem& mna,
                                       std::complex<double> s, std::vector<ProbeTerm>& terms);
 
+/// The part of d(functional)/dx that comes from the functional itself (its
+/// coefficients, not the solution x), into `terms` (cleared first): non-empty
+/// only for a current probe of the element p belongs to, i(R) = (va - vb)/R,
+/// i(C) = s C (va - vb) and i(G) = gm (vc+ - vc-); every other probe reads
+/// unknowns with coefficients that no parameter changes.
+void probe_functional_derivative(const Probe& probe, const MnaSystem& mna, std::complex<double> s,
+                                 const Parameter& p, std::vector<ProbeTerm>& terms);
+
 /// The probe's value for the solution x (mna.size() values) at s; `scratch`
 /// is reused working space.
 std::complex<double> probe_value(const Probe& probe, const MnaSystem& mna, std::complex<double> s,
