@@ -14,6 +14,7 @@ netlist, the yardstick the performance goals are written against:
   diff   the chain against itself with one resistor changed
   ac1    the AC response at one frequency (1 kHz)
   sens   tacet sensitivity at 1 kHz: every parameter by one adjoint solve
+  checks tacet check --sensitivity: the budget and what moves each spec
 
 Usage: commands.py TACET [SIZE...] [--repeats N] [--only CMD,CMD]
        (default sizes 10 1000 10000 100000; default repeats 3)
@@ -45,6 +46,7 @@ def commands(path, changed, out):
         "diff": ["diff", path, changed],
         "ac1": ["ac", path, "--probe", out, "--at", "1k"],
         "sens": ["sensitivity", path, "--probe", out, "--at", "1k", "--format", "csv"],
+        "checks": ["check", path, "--sensitivity"],
     }
 
 
