@@ -4,6 +4,8 @@
 #include <catch2/catch.hpp>
 #include <cmath>
 
+#include <fmt/format.h>
+
 #include "is_close.hpp"
 #include "reference_circuits.hpp"
 #include "tacet/analysis/check.hpp"
@@ -167,4 +169,51 @@ TEST_CASE("a re-measured spec varies one op amp of a shared model alone", "[sens
   };
   const double shared = (total(1 + 1e-3) - total(1 - 1e-3)) / (2e-3) / 100;
   CHECK(d1 + d2 == Approx(shared).epsilon(1e-4));
+}
+
+TEST_CASE("an offset spec moves as vos times the noise gain 1 + Rf/Rg", "[sensitivity]") {
+  // Worst-case output offset of a non-inverting stage from vos alone (no bias current):
+  // vos (1 + Rf/Rg) (the standard offset model of an op amp stage), so per +1 % of Rf it
+  // moves by vos Rf/Rg/100 and of Rg by -vos Rf/Rg/100; aol 1e9 makes A's share 1e-8.
+  const double rf = 9e3, rg = 1e3, vos = 1e-3;
+  OpAmpModel m = single_pole(1e6, 1e9);
+  m.vos = vos;
+  Spec offset = spec_of(SpecKind::offset, SpecUnit::volts);
+  offset.max = 1;
+  const Circuit stage = noninverting_amplifier(rg, rf, m);
+  SpecMethod method{};
+  CHECK(per_percent(stage, offset, "Rf", ParameterKey::value, &method) ==
+        Approx(vos * rf / rg / 100).epsilon(1e-5));
+  CHECK(per_percent(stage, offset, "Rg") == Approx(-vos * rf / rg / 100).epsilon(1e-5));
+  CHECK(method == SpecMethod::restamp_difference);
+}
+
+TEST_CASE("a large circuit re-measures only its toleranced parts", "[sensitivity]") {
+  // Past kMostRestampedParameters, the re-measured kinds differentiate the parts with
+  // tol= alone (the note says so); the adjoint kinds still cover every parameter.
+  CircuitBuilder b;
+  b.vsrc("Vin", "n0", "gnd", 1.0);
+  const int sections = static_cast<int>(kMostRestampedParameters);  // 2 parameters each
+  for (int k = 1; k <= sections; ++k) {
+    const std::string from = "n" + std::to_string(k - 1), to = "n" + std::to_string(k);
+    b.add(ElementKind::resistor, "R" + std::to_string(k), {from, to}, 10.0);
+    b.add(ElementKind::capacitor, "C" + std::to_string(k), {to, "gnd"}, 1e-12);
+  }
+  b.circuit.elements[1].tolerance = 0.01;  // R1
+  Spec noise = spec_of(SpecKind::noise, SpecUnit::volts);
+  noise.probe = "n" + std::to_string(sections);
+  noise.from = 20, noise.to = 20e3, noise.max = 1;
+  Spec gain = spec_of(SpecKind::gain, SpecUnit::db);
+  gain.probe = noise.probe;
+  gain.at = 1e3;
+  Circuit c = b.circuit;
+  c.specs = {noise, gain};
+  const CheckResult check = run_check(c);
+  const SpecSensitivities s = run_spec_sensitivities(c, check);
+  REQUIRE(s.specs.size() == 2);
+  REQUIRE(s.specs[0].derivatives.size() == 1);
+  CHECK(s.names[s.specs[0].derivatives[0].parameter] == "R1");
+  CHECK(s.specs[0].note == fmt::format("{} parameters: only those with tol= are differentiated",
+                                       2 * sections));
+  CHECK(s.specs[1].derivatives.size() == s.parameters.size());
 }
