@@ -18,18 +18,26 @@
 namespace tacet {
 namespace {
 
+// The same words as tacet noise --input, so the flag reads alike in both.
 std::size_t resolve_input(const Circuit& circuit, const std::string& name) {
   std::vector<std::string> sources;
   for (const auto& e : circuit.elements)
     if (traits(e.kind).drive != Drive::none) sources.push_back(e.name);
+  const std::string listed = sources.empty()
+                                 ? "the circuit has none"
+                                 : fmt::format("the sources are {}", fmt::join(sources, ", "));
   const auto found = circuit.find_element(name);
-  if (found && traits(circuit.elements[*found].kind).drive != Drive::none) return *found;
-  if (found)
+  if (!found) {
+    const std::string near = nearest_word(name, sources);
+    throw InputError::usage(fmt::format("--input '{}' is not an element of the circuit", name),
+                            near.empty() ? listed : "did you mean '" + near + "'?");
+  }
+  const Element& e = circuit.elements[*found];
+  if (traits(e.kind).drive == Drive::none)
     throw InputError::usage(
-        fmt::format("--input '{}' is not a source", name),
-        sources.empty() ? std::string("the circuit has no vsrc or isrc")
-                        : fmt::format("the sources are: {}", fmt::join(sources, ", ")));
-  throw InputError::unknown("source", name, "--input", nearest_word(name, sources));
+        fmt::format("--input '{}' is a {}, not a source", name, to_keyword(e.kind)),
+        "name a vsrc or isrc; " + listed);
+  return *found;
 }
 
 // Sorting key: |mag| to 12 digits, so that equal sensitivities (R1 and R2 of

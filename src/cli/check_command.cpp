@@ -3,6 +3,7 @@
 // With --sensitivity the verdict is followed by what moves each spec most.
 
 #include <memory>
+#include <optional>
 
 #include "commands.hpp"
 #include "common.hpp"
@@ -19,7 +20,7 @@ namespace {
 struct CheckCommandOptions {
   CommonOptions common;
   bool sensitivity = false;
-  int top = 5;
+  std::optional<int> top;  ///< given: parts per spec; needs --sensitivity
 };
 
 CheckResult check_specs(const CommonOptions& options, const Circuit& circuit) {
@@ -37,20 +38,23 @@ void finish(const CheckResult& result) {
 }
 
 void run(const CheckCommandOptions& o) {
+  if (o.top && !o.sensitivity)
+    throw InputError::usage("--top is the number of parts --sensitivity shows per spec",
+                            "tacet check FILE --sensitivity --top 3");
   if (!o.sensitivity) {
     finish(analyse_and_write(o.common, check_writers(), [&](const Circuit& circuit) {
       return check_specs(o.common, circuit);
     }));
     return;
   }
-  if (o.top < 1)
-    throw InputError::usage("--top " + std::to_string(o.top) + " must be at least 1");
+  const int top = o.top.value_or(5);
+  if (top < 1) throw InputError::usage("--top " + std::to_string(top) + " must be at least 1");
   const CheckSensitivityReport report =
       analyse_and_write(o.common, check_sensitivity_writers(), [&](const Circuit& circuit) {
         CheckSensitivityReport r;
         r.check = check_specs(o.common, circuit);
         r.sensitivities = run_spec_sensitivities(circuit, r.check);
-        r.top = static_cast<std::size_t>(o.top);
+        r.top = static_cast<std::size_t>(top);
         return r;
       });
   finish(report.check);
