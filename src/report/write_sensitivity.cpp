@@ -31,7 +31,7 @@ std::string small_or_fixed(double v) {
 }
 
 std::string percent(double relative) {
-  return relative > 0 ? format_si(100 * relative, 3) + "%" : std::string("-");
+  return relative > 0 ? fmt::format("{:.3g}%", 100 * relative) : std::string("-");
 }
 
 std::string drive_text(const SensitivityResult& r) {
