@@ -217,3 +217,26 @@ TEST_CASE("a large circuit re-measures only its toleranced parts", "[sensitivity
                                        2 * sections));
   CHECK(s.specs[1].derivatives.size() == s.parameters.size());
 }
+
+TEST_CASE("a circuit check cannot solve has specs without sensitivities, not an error",
+          "[sensitivity]") {
+  // A node with no path to gnd: check reports the spec unsolved (exit 3 after the
+  // report); the sensitivities say the same instead of stopping the report.
+  CircuitBuilder b;
+  b.vsrc("Vin", "in", "gnd", 1.0);
+  b.add(ElementKind::resistor, "R1", {"in", "out"}, 1e3);
+  b.add(ElementKind::capacitor, "C1", {"float", "gnd"}, 1e-9);
+  b.add(ElementKind::capacitor, "C2", {"float", "x"}, 1e-9);
+  b.isrc("I1", "x", "y", 1.0);
+  Spec gain = spec_of(SpecKind::gain, SpecUnit::db);
+  gain.at = 1e3;
+  Circuit c = b.circuit;
+  c.specs = {gain};
+  const CheckResult check = run_check(c);
+  REQUIRE(check.unsolved() == 1);
+  const SpecSensitivities s = run_spec_sensitivities(c, check);
+  REQUIRE(s.specs.size() == 1);
+  CHECK(s.specs[0].method == SpecMethod::none);
+  CHECK(s.specs[0].derivatives.empty());
+  CHECK_FALSE(s.specs[0].note.empty());
+}

@@ -5,6 +5,7 @@
 
 #include <cmath>
 #include <numbers>
+#include <optional>
 
 #include <fmt/format.h>
 
@@ -210,8 +211,17 @@ class SpecDifferentiator {
 
 SpecSensitivities run_spec_sensitivities(const Circuit& circuit, const CheckResult& check) {
   SpecSensitivities out;
-  SpecDifferentiator differentiator(circuit, out);
-  for (const SpecResult& r : check.specs) out.specs.push_back(differentiator.differentiate(r));
+  std::optional<SpecDifferentiator> differentiator;
+  try {
+    differentiator.emplace(circuit, out);
+  } catch (const SolveError& e) {
+    // No AC system (check has already said why, spec by spec): nothing to differentiate.
+    for (const SpecResult& r : check.specs)
+      out.specs.push_back({r.spec.name, r.spec.kind, r.spec.unit, r.value, SpecMethod::none,
+                           e.sentence(), {}});
+    return out;
+  }
+  for (const SpecResult& r : check.specs) out.specs.push_back(differentiator->differentiate(r));
   return out;
 }
 
