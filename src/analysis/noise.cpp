@@ -99,30 +99,12 @@ struct InputPort {
 };
 
 InputPort resolve_input(const std::string& name, const Circuit& circuit, const MnaSystem& mna) {
-  std::vector<std::string> sources;
-  for (const Element& e : circuit.elements)
-    if (traits(e.kind).drive != Drive::none) sources.push_back(e.name);
-  const std::string listed = sources.empty() ? "the circuit has none"
-                                             : "the sources are " + fmt::format("{}", fmt::join(sources, ", "));
-  const auto index = circuit.find_element(name);
-  if (!index) {
-    const std::string near = nearest_word(name, sources);
-    throw InputError::usage(fmt::format("--input '{}' is not an element of the circuit", name),
-                            near.empty() ? listed : "did you mean '" + near + "'?");
-  }
-  const Element& e = circuit.elements[*index];
-  switch (traits(e.kind).drive) {
-    case Drive::voltage:
-      return {mna.branch_unknown(*index), -1};
-    case Drive::current:
-      // A current source draws its current out of its first node into its second.
-      return {mna.node_unknown(e.nodes[1]), mna.node_unknown(e.nodes[0])};
-    case Drive::none:
-      break;
-  }
-  throw InputError::usage(
-      fmt::format("--input '{}' is a {}, not a source", name, to_keyword(e.kind)),
-      "name a vsrc or isrc; " + listed);
+  const std::size_t index = resolve_input_source(name, circuit);
+  const Element& e = circuit.elements[index];
+  if (traits(e.kind).drive == Drive::current)
+    // A current source draws its current out of its first node into its second.
+    return {mna.node_unknown(e.nodes[1]), mna.node_unknown(e.nodes[0])};
+  return {mna.branch_unknown(index), -1};
 }
 
 /// The integration band: the one given, else the sweep's lowest to highest point.

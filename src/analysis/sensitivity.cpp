@@ -7,38 +7,14 @@
 #include <cmath>
 
 #include <fmt/format.h>
-#include <fmt/ranges.h>
 
 #include "tacet/common/constants.hpp"
 #include "tacet/common/errors.hpp"
 #include "tacet/common/format.hpp"
-#include "tacet/common/spelling.hpp"
 #include "tacet/solve/response.hpp"
 
 namespace tacet {
 namespace {
-
-// The same words as tacet noise --input, so the flag reads alike in both.
-std::size_t resolve_input(const Circuit& circuit, const std::string& name) {
-  std::vector<std::string> sources;
-  for (const auto& e : circuit.elements)
-    if (traits(e.kind).drive != Drive::none) sources.push_back(e.name);
-  const std::string listed = sources.empty()
-                                 ? "the circuit has none"
-                                 : fmt::format("the sources are {}", fmt::join(sources, ", "));
-  const auto found = circuit.find_element(name);
-  if (!found) {
-    const std::string near = nearest_word(name, sources);
-    throw InputError::usage(fmt::format("--input '{}' is not an element of the circuit", name),
-                            near.empty() ? listed : "did you mean '" + near + "'?");
-  }
-  const Element& e = circuit.elements[*found];
-  if (traits(e.kind).drive == Drive::none)
-    throw InputError::usage(
-        fmt::format("--input '{}' is a {}, not a source", name, to_keyword(e.kind)),
-        "name a vsrc or isrc; " + listed);
-  return *found;
-}
 
 // Sorting key: |mag| to 12 digits, so that equal sensitivities (R1 and R2 of
 // a divider) keep circuit order whatever the last bit says.
@@ -120,7 +96,7 @@ SensitivityResult run_sensitivity(const Circuit& circuit, const SensitivityOptio
       throw InputError::usage(
           fmt::format("--input does not apply to the impedance probe '{}'", result.probe.text),
           "an impedance is driven by its own test current; leave --input out");
-    drive.source = resolve_input(circuit, options.input);
+    drive.source = resolve_input_source(options.input, circuit);
     result.input = options.input;
   }
   FrequencyResponse response(circuit);

@@ -4,6 +4,7 @@
 #include "tacet/solve/probe.hpp"
 
 #include <fmt/format.h>
+#include <fmt/ranges.h>
 
 #include "tacet/common/spelling.hpp"
 #include "tacet/common/errors.hpp"
@@ -67,6 +68,27 @@ Probe resolve_probe(const std::string& text, const Circuit& circuit) {
     throw InputError::usage(fmt::format("probe '{}' names the same node twice", t),
                             "z(out) is the impedance from out to gnd; z(a,b) between a and b");
   return probe;
+}
+
+std::size_t resolve_input_source(const std::string& name, const Circuit& circuit) {
+  std::vector<std::string> sources;
+  for (const auto& e : circuit.elements)
+    if (traits(e.kind).drive != Drive::none) sources.push_back(e.name);
+  const std::string listed = sources.empty()
+                                 ? "the circuit has none"
+                                 : fmt::format("the sources are {}", fmt::join(sources, ", "));
+  const auto found = circuit.find_element(name);
+  if (!found) {
+    const std::string near = nearest_word(name, sources);
+    throw InputError::usage(fmt::format("--input '{}' is not an element of the circuit", name),
+                            near.empty() ? listed : "did you mean '" + near + "'?");
+  }
+  const Element& e = circuit.elements[*found];
+  if (traits(e.kind).drive == Drive::none)
+    throw InputError::usage(
+        fmt::format("--input '{}' is a {}, not a source", name, to_keyword(e.kind)),
+        "name a vsrc or isrc; " + listed);
+  return *found;
 }
 
 const char* probe_unit(const Probe& probe) {

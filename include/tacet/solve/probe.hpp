@@ -39,6 +39,11 @@ struct Probe {
 /// unknown node or element, with the nearest name as a hint.
 Probe resolve_probe(const std::string& text, const Circuit& circuit);
 
+/// The source an `--input NAME` flag names (noise, sensitivity): its element
+/// index. Throws InputError for a name that is no element (with the nearest
+/// source) or an element that is no source (with the list of sources).
+std::size_t resolve_input_source(const std::string& name, const Circuit& circuit);
+
 /// The unit a probe's values carry: "V", "A" or "ohm".
 const char* probe_unit(const Probe& probe);
 
