@@ -29,6 +29,14 @@
 //
 // Usage: tacet_bench [SIZE...]     (default 10 1000 100000; 100 log points 1 Hz..100 MHz)
 //        tacet_bench --loop FILE... (the netlist loop section alone)
+//        tacet_bench sensitivity [ELEMENTS...]   (default 10000 100000)
+// buffered RC chain, run_sensitivity at one frequency (every parameter by one
+// adjoint solve) against run_ac at that one frequency, both whole (MNA build,
+// symbolic analysis, factorisation, solves); then the per-frequency part
+// alone, on a response already built: TransferDerivatives::at against
+// FrequencyResponse::at, alternating two frequencies so each call refactors.
+//
+
 
 #include <SuiteSparse_config.h>
 #include <dlfcn.h>
@@ -48,6 +56,8 @@
 #include "tacet/solve/mna.hpp"
 #include "tacet/analysis/noise.hpp"
 #include "tacet/elaborate/elaborate.hpp"
+#include "tacet/analysis/sensitivity.hpp"
+#include "tacet/solve/response.hpp"
 #include "tacet/report/write_svg.hpp"
 
 namespace {
@@ -412,6 +422,50 @@ void netlist_loop_section(const std::vector<std::string>& paths) {
     std::printf("%8zu  %8d  %7zu  %6zu  %9.3f  %10.3f  %12.3f  %12.1f  %11.3f\n",
                 circuit.elements.size(), tacet::MnaSystem(circuit).size(), opamps.size(),
                 sample.size(), ac_s, sweep_s, per, all, loop_s);
+  }
+}
+
+// run_sensitivity against run_ac at one frequency on the buffered chain of
+// about `elements` elements (4 a stage: R, C, op amp, load C; 6 parameters a
+// stage: three values, the op amp's gbw, aol and rout).
+void sensitivity_section(const std::vector<int>& sizes) {
+  std::printf("\nSensitivity at 1 kHz on a buffered RC chain (KLU), against AC at 1 kHz\n");
+  std::printf("%9s  %10s  %8s  %10s  %10s  %6s  %12s  %12s  %6s\n", "elements", "parameters",
+              "unknowns", "ac1 ms", "sens ms", "ratio", "ac/f ms", "sens/f ms", "ratio");
+  for (int elements : sizes) {
+    const auto circuit = buffered_chain(std::max(1, elements / 4));
+    const std::string out = numbered("b", std::max(1, elements / 4));
+    tacet::AcOptions ac;
+    ac.sweep.kind = tacet::SweepKind::list;
+    ac.sweep.at = {1e3};
+    ac.probes = {out};
+    tacet::SensitivityOptions sens;
+    sens.probe = out;
+    sens.at = 1e3;
+    const double ac_us =
+        fastest_of_repeats([&] { return microseconds_per_call([&] { tacet::run_ac(circuit, ac); }); });
+    std::size_t parameters = 0;
+    const double sens_us = fastest_of_repeats([&] {
+      return microseconds_per_call(
+          [&] { parameters = tacet::run_sensitivity(circuit, sens).elements.size(); });
+    });
+    // Per frequency on a built response: alternate 1 kHz and 2 kHz so each call refactors.
+    tacet::FrequencyResponse response(circuit);
+    const tacet::Probe probe = tacet::resolve_probe(out, circuit);
+    tacet::TransferDerivatives transfer(response);
+    std::vector<std::complex<double>> derivatives;
+    double f = 1e3;
+    const double ac_f_us = fastest_of_repeats([&] {
+      return microseconds_per_call([&] { (void)response.at(probe, f = 3e3 - f); });
+    });
+    const double sens_f_us = fastest_of_repeats([&] {
+      return microseconds_per_call(
+          [&] { (void)transfer.at(probe, tacet::TransferDrive{}, f = 3e3 - f, derivatives); });
+    });
+    std::printf("%9zu  %10zu  %8d  %10.3f  %10.3f  %6.2f  %12.3f  %12.3f  %6.2f\n",
+                circuit.elements.size(), parameters, response.mna().size(), ac_us / 1e3,
+                sens_us / 1e3, sens_us / ac_us, ac_f_us / 1e3, sens_f_us / 1e3,
+                sens_f_us / ac_f_us);
     std::fflush(stdout);
   }
 }
@@ -422,6 +476,12 @@ void netlist_loop_section(const std::vector<std::string>& paths) {
 int main(int argc, char** argv) {
   if (argc > 1 && std::string(argv[1]) == "--loop") {
     netlist_loop_section(std::vector<std::string>(argv + 2, argv + argc));
+    return 0;
+  }
+  if (argc > 1 && std::string(argv[1]) == "sensitivity") {
+    std::vector<int> elements;
+    for (int k = 2; k < argc; ++k) elements.push_back(std::atoi(argv[k]));
+    sensitivity_section(elements.empty() ? std::vector<int>{10000, 100000} : elements);
     return 0;
   }
   std::vector<int> sizes;

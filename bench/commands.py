@@ -14,6 +14,9 @@ netlist, the yardstick the performance goals are written against:
   diff   the chain against itself with one resistor changed
   settle the step response over its first 2 us (not part of the default set:
          pass --only settle)
+  ac1    the AC response at one frequency (1 kHz)
+  sens   tacet sensitivity at 1 kHz: every parameter by one adjoint solve
+  checks tacet check --sensitivity: the budget and what moves each spec
 
 Usage: commands.py TACET [SIZE...] [--repeats N] [--only CMD,CMD]
        (default sizes 10 1000 10000 100000; default repeats 3)
@@ -45,6 +48,9 @@ def commands(path, changed, out):
         "diff": ["diff", path, changed],
         # The first 2 us: the same dynamics (and steps) at every chain length.
         "settle": ["settle", path, "--probe", out, "--probe", "o1", "--points", "101", "--to", "2us"],
+        "ac1": ["ac", path, "--probe", out, "--at", "1k"],
+        "sens": ["sensitivity", path, "--probe", out, "--at", "1k", "--format", "csv"],
+        "checks": ["check", path, "--sensitivity"],
     }
 
 

@@ -28,6 +28,7 @@ int main(int argc, char** argv) {
   tacet::cli::setup_spread(app);
   tacet::cli::setup_merge(app);
   tacet::cli::setup_rank(app);
+  tacet::cli::setup_sensitivity(app);
   try {
     app.parse(argc, argv);
   } catch (const CLI::ParseError& e) {

@@ -4,6 +4,7 @@
 #include "tacet/solve/mna.hpp"
 
 #include <catch2/catch.hpp>
+#include <cmath>
 
 #include "is_close.hpp"
 #include "reference_circuits.hpp"
@@ -319,5 +320,66 @@ TEST_CASE("rewriting only the s-dependent entries gives the full matrix", "[mna]
     mna.assemble(s, full.data());
     mna.assemble_varying(s, kept.data());
     CHECK(kept == full);
+  }
+}
+
+TEST_CASE("each parameter's stamp derivative is the central difference of its stamp", "[mna]") {
+  // dY/dx from MnaSystem::derivative against (Y(x(1+h)) - Y(x(1-h)))/(2 h x) of the
+  // assembled polynomials, entry by entry, for every element kind and op-amp entry.
+  CircuitBuilder b;
+  b.vsrc("V1", "in", "gnd", 1);
+  b.add(ElementKind::resistor, "R1", {"in", "a"}, 1e3);
+  b.add(ElementKind::capacitor, "C1", {"a", "gnd"}, 1e-9);
+  b.add(ElementKind::inductor, "L1", {"a", "b"}, 1e-3);
+  b.add(ElementKind::vcvs, "E1", {"c", "gnd", "b", "gnd"}, 3);
+  b.add(ElementKind::vccs, "G1", {"d", "gnd", "c", "b"}, 1e-3);
+  b.add(ElementKind::resistor, "R2", {"d", "gnd"}, 1e3);
+  OpAmpModel m = single_pole(1e6, 1e5);
+  m.fp2 = 5e6, m.rout = 50, m.rin = 1e6;
+  b.opamp("U1", "d", "out", "out", m);
+  const Circuit& nominal = b.circuit;
+  const MnaSystem mna(nominal);
+  const auto parameters = mna.parameters();
+  REQUIRE(parameters.size() == 11);  // R1 C1 L1 E1 G1 R2, U1 gbw aol fp2 rout rin: 6 + 5
+  std::vector<MnaSystem::EntryPolynomial> derivative;
+  const auto nominal_polys = mna.polynomials();
+  for (const Parameter& p : parameters) {
+    mna.derivative(p, derivative);
+    auto scaled = [&](double factor) {
+      Circuit c = nominal;
+      Element& e = c.elements[p.element];
+      OpAmpModel& model = c.models[0];
+      double* field = p.key == ParameterKey::value ? &e.value
+                      : p.key == ParameterKey::gbw ? &model.gbw
+                      : p.key == ParameterKey::aol ? &model.aol
+                      : p.key == ParameterKey::fp2 ? &model.fp2
+                      : p.key == ParameterKey::rout ? &model.rout
+                                                    : &model.rin;
+      *field *= factor;
+      return MnaSystem(c).polynomials();  // same pattern: only values changed
+    };
+    constexpr double h = 1e-6;
+    const auto up = scaled(1 + h), down = scaled(1 - h);
+    REQUIRE(up.size() == down.size());
+    REQUIRE(up.size() == nominal_polys.size());
+    CAPTURE(nominal.elements[p.element].name, to_string(p.key));
+    std::size_t nonzero = 0;
+    for (std::size_t k = 0; k < up.size(); ++k) {
+      const double fd[3] = {(up[k].c0 - down[k].c0) / (2 * h * p.value),
+                            (up[k].c1 - down[k].c1) / (2 * h * p.value),
+                            (up[k].c2 - down[k].c2) / (2 * h * p.value)};
+      double exact[3] = {0, 0, 0};
+      for (const auto& d : derivative)
+        if (d.row == up[k].row && d.col == up[k].col)
+          exact[0] += d.c0, exact[1] += d.c1, exact[2] += d.c2;
+      const double nominal_c[3] = {nominal_polys[k].c0, nominal_polys[k].c1, nominal_polys[k].c2};
+      for (int j = 0; j < 3; ++j) {
+        // Normalised, x dc/dx against the entry itself: an entry that does not depend on
+        // x (c2 of the op amp on aol) may come out as rounding noise of either sign.
+        CHECK(std::abs(exact[j] - fd[j]) * p.value <= 1e-6 * std::abs(nominal_c[j]));
+        nonzero += std::abs(exact[j]) * p.value > 1e-6 * std::abs(nominal_c[j]);
+      }
+    }
+    CHECK(nonzero > 0);
   }
 }

@@ -19,5 +19,6 @@ void setup_settle(CLI::App& app);
 void setup_spread(CLI::App& app);
 void setup_merge(CLI::App& app);
 void setup_rank(CLI::App& app);
+void setup_sensitivity(CLI::App& app);
 
 }  // namespace tacet::cli

@@ -12,6 +12,7 @@
 #include <optional>
 #include <numeric>
 #include <queue>
+#include <type_traits>
 
 #include "tacet/common/errors.hpp"
 #include "tacet/common/format.hpp"
@@ -183,6 +184,139 @@ void check_no_voltage_loop(const Circuit& circuit, AnalysisKind kind) {
   }
 }
 
+
+// --- stamps --------------------------------------------------------------------
+
+// The numbers one element's stamp is made of: its main value and, for an op
+// amp, its model's entries (each instance its own copy, so a derivative is
+// the instance's alone).
+template <typename T>
+struct StampValues {
+  T value, gbw, aol, fp2, rout, rin;
+};
+
+// One matrix entry c0 + c1 s + c2 s^2 of scalar type T.
+template <typename T>
+struct StampPolynomial {
+  T c0, c1, c2;
+};
+
+// Forward-mode automatic differentiation: a value and its derivative with
+// respect to one parameter. The stamps below are written once for any scalar
+// T; evaluated with double they give the matrix, with Dual (one parameter
+// seeded with derivative 1) they give that parameter's dY/dx from the very
+// same expressions, so the stamp and its derivative cannot drift apart.
+struct Dual {
+  double v = 0, d = 0;
+  Dual(double value = 0, double derivative = 0) : v(value), d(derivative) {}  // NOLINT
+};
+Dual operator+(Dual a, Dual b) { return {a.v + b.v, a.d + b.d}; }
+[[maybe_unused]] Dual operator-(Dual a, Dual b) { return {a.v - b.v, a.d - b.d}; }
+Dual operator-(Dual a) { return {-a.v, -a.d}; }
+Dual operator*(Dual a, Dual b) { return {a.v * b.v, a.d * b.v + a.v * b.d}; }
+Dual operator/(Dual a, Dual b) { return {a.v / b.v, (a.d * b.v - a.v * b.d) / (b.v * b.v)}; }
+double value_of(double x) { return x; }
+double value_of(Dual x) { return x.v; }
+
+// What one element's stamp adds: unknowns of its pins (-1: gnd), of its branch
+// current and of its internal node.
+struct ElementUnknowns {
+  std::array<int, 4> pin{-1, -1, -1, -1};
+  int branch = -1;
+  int source = -1;  ///< op amp: the unknown its gain source sets (internal node or output pin)
+};
+
+ElementUnknowns unknowns_of(const MnaSystem& mna, std::size_t i) {
+  const Element& e = mna.circuit().elements[i];
+  ElementUnknowns u;
+  for (std::size_t k = 0; k < e.nodes.size() && k < 4; ++k) u.pin[k] = mna.node_unknown(e.nodes[k]);
+  u.branch = mna.branch_unknown(i);
+  if (e.kind == ElementKind::opamp) u.source = mna.opamp_source_unknown(i);
+  return u;
+}
+
+// The element's stamp values; with `seed`, as duals whose derivative is 1 on
+// the seeded parameter (which must be this element's) and 0 elsewhere.
+template <typename T>
+StampValues<T> stamp_values(const Circuit& circuit, std::size_t i, const Parameter* seed) {
+  const Element& e = circuit.elements[i];
+  auto seeded = [&](double v, ParameterKey key) {
+    if constexpr (std::is_same_v<T, double>) {
+      return v;
+    } else {
+      return T(v, seed && seed->key == key ? 1.0 : 0.0);
+    }
+  };
+  StampValues<T> p{seeded(e.value, ParameterKey::value), T(0), T(1), T(0), T(0), T(0)};
+  if (e.kind == ElementKind::opamp) {
+    const OpAmpModel& m = circuit.model_of(e);
+    p.gbw = seeded(m.gbw, ParameterKey::gbw);
+    p.aol = seeded(m.aol, ParameterKey::aol);
+    p.fp2 = seeded(m.fp2, ParameterKey::fp2);
+    p.rout = seeded(m.rout, ParameterKey::rout);
+    p.rin = seeded(m.rin, ParameterKey::rin);
+  }
+  return p;
+}
+
+// Calls add(row, col, polynomial) for each entry of one element's stamp.
+template <typename T, typename Add>
+void stamp_element(const Element& e, const StampValues<T>& p, const ElementUnknowns& u,
+                   Add&& add_entry) {
+  using Poly = StampPolynomial<T>;
+  auto add = [&](int row, int col, const Poly& c) {
+    if (row >= 0 && col >= 0) add_entry(row, col, c);
+  };
+  auto admittance = [&](int a, int b, const Poly& y) {
+    const Poly minus{-y.c0, -y.c1, -y.c2};
+    add(a, a, y), add(b, b, y), add(a, b, minus), add(b, a, minus);
+  };
+  const T one(1.0), zero(0.0);
+  auto incidence = [&](int plus, int minus, int branch) {
+    add(plus, branch, {one, zero, zero}), add(minus, branch, {-one, zero, zero});
+    add(branch, plus, {one, zero, zero}), add(branch, minus, {-one, zero, zero});
+  };
+  const auto& x = u.pin;
+  const int br = u.branch;
+  switch (e.kind) {
+    case ElementKind::resistor:
+      admittance(x[0], x[1], {one / p.value, zero, zero});
+      break;
+    case ElementKind::capacitor:
+      admittance(x[0], x[1], {zero, p.value, zero});
+      break;
+    case ElementKind::inductor:
+      incidence(x[0], x[1], br);
+      add(br, br, {zero, -p.value, zero});
+      break;
+    case ElementKind::vsource:
+      incidence(x[0], x[1], br);
+      break;
+    case ElementKind::isource:
+      break;
+    case ElementKind::vcvs:
+      incidence(x[0], x[1], br);
+      add(br, x[2], {-p.value, zero, zero}), add(br, x[3], {p.value, zero, zero});
+      break;
+    case ElementKind::vccs:
+      add(x[0], x[2], {p.value, zero, zero}), add(x[0], x[3], {-p.value, zero, zero});
+      add(x[1], x[2], {-p.value, zero, zero}), add(x[1], x[3], {p.value, zero, zero});
+      break;
+    case ElementKind::opamp: {
+      const int source = u.source;
+      // 1/A(s) = (1 + s/wp)(1 + s/wp2) / aol, expanded in powers of s.
+      const T wp = T(kTwoPi) * p.gbw / p.aol;
+      const T inv_wp2 = value_of(p.fp2) > 0 ? one / (T(kTwoPi) * p.fp2) : zero;
+      add(source, br, {one, zero, zero});
+      add(br, source, {one / p.aol, (one / wp + inv_wp2) / p.aol, inv_wp2 / (wp * p.aol)});
+      add(br, x[0], {-one, zero, zero}), add(br, x[1], {one, zero, zero});
+      if (value_of(p.rout) > 0) admittance(source, x[2], {one / p.rout, zero, zero});
+      if (value_of(p.rin) > 0) admittance(x[0], x[1], {one / p.rin, zero, zero});
+      break;
+    }
+  }
+}
+
 }  // namespace
 
 void check_solvable(const Circuit& circuit, AnalysisKind kind) {
@@ -347,86 +481,14 @@ MnaSystem::VoltageTerms MnaSystem::voltage_terms(int node) const {
 // faults than the stamps cost to compute.
 template <typename Visit>
 void MnaSystem::for_each_term(Visit&& visit) const {
-  // A term on a node's voltage becomes terms on its group's root and on the
-  // node's difference (v = v_root - delta); other unknowns stand as they are.
-  auto add = [&](int row, int col, Coefficients c) {
-    if (row < 0 || col < 0) return;
-    const int root = col < node_unknowns_ ? root_of_[static_cast<std::size_t>(col)] : -1;
-    if (root < 0) return visit(row, col, c);
-    visit(row, root, c);
-    visit(row, col, Coefficients{-c.c0, -c.c1, -c.c2});
-  };
-  // A stiff part's voltage v_a - v_b = delta_b - delta_a (the root's delta is
-  // zero): it is stamped on the differences only, never on the root, so its
-  // large admittance is never summed with the small ones on the root's column.
-  auto difference_of = [&](int unknown) {
-    return unknown >= 0 && root_of_[static_cast<std::size_t>(unknown)] >= 0 ? unknown : -1;
-  };
-  auto stiff_admittance = [&](int a, int b, Coefficients y) {
-    const Coefficients minus{-y.c0, -y.c1, -y.c2};
-    const int da = difference_of(a), db = difference_of(b);
-    for (const auto& [row, sign] : {std::pair{a, 1.0}, std::pair{b, -1.0}}) {
-      if (row < 0) continue;
-      const Coefficients plus_y = sign > 0 ? y : minus, minus_y = sign > 0 ? minus : y;
-      if (db >= 0) visit(row, db, plus_y);
-      if (da >= 0) visit(row, da, minus_y);
-    }
-  };
-  auto admittance = [&](int a, int b, Coefficients y) {
-    const Coefficients minus{-y.c0, -y.c1, -y.c2};
-    add(a, a, y), add(b, b, y), add(a, b, minus), add(b, a, minus);
-  };
-  auto incidence = [&](int plus, int minus, int branch) {
-    add(plus, branch, {1.0, 0, 0}), add(minus, branch, {-1.0, 0, 0});
-    add(branch, plus, {1.0, 0, 0}), add(branch, minus, {-1.0, 0, 0});
-  };
   const auto& elements = circuit_->elements;
-  for (std::size_t i = 0; i < elements.size(); ++i) {
-    const auto& e = elements[i];
-    std::array<int, 4> u{-1, -1, -1, -1};
-    for (std::size_t k = 0; k < e.nodes.size() && k < 4; ++k) u[k] = node_unknown(e.nodes[k]);
-    const int br = branch_of_[i];
-    switch (e.kind) {
-      case ElementKind::resistor:
-        if (stiff_[i]) stiff_admittance(u[0], u[1], {1.0 / e.value, 0, 0});
-        else admittance(u[0], u[1], {1.0 / e.value, 0, 0});
-        break;
-      case ElementKind::capacitor:
-        if (stiff_[i]) stiff_admittance(u[0], u[1], {0, e.value, 0});
-        else admittance(u[0], u[1], {0, e.value, 0});
-        break;
-      case ElementKind::inductor:
-        incidence(u[0], u[1], br);
-        add(br, br, {0, -e.value, 0});
-        break;
-      case ElementKind::vsource:
-        incidence(u[0], u[1], br);
-        break;
-      case ElementKind::isource:
-        break;
-      case ElementKind::vcvs:
-        incidence(u[0], u[1], br);
-        add(br, u[2], {-e.value, 0, 0}), add(br, u[3], {e.value, 0, 0});
-        break;
-      case ElementKind::vccs:
-        add(u[0], u[2], {e.value, 0, 0}), add(u[0], u[3], {-e.value, 0, 0});
-        add(u[1], u[2], {-e.value, 0, 0}), add(u[1], u[3], {e.value, 0, 0});
-        break;
-      case ElementKind::opamp: {
-        const auto& m = circuit_->model_of(e);
-        const int x = internal_of_[i] >= 0 ? internal_of_[i] : u[2];
-        // 1/A(s) = (1 + s/wp)(1 + s/wp2) / aol, expanded in powers of s.
-        const double wp = kTwoPi * m.gbw / m.aol;
-        const double inv_wp2 = m.fp2 > 0 ? 1.0 / (kTwoPi * m.fp2) : 0.0;
-        add(x, br, {1.0, 0, 0});
-        add(br, x, {1.0 / m.aol, (1.0 / wp + inv_wp2) / m.aol, inv_wp2 / (wp * m.aol)});
-        add(br, u[0], {-1.0, 0, 0}), add(br, u[1], {1.0, 0, 0});
-        if (m.rout > 0) admittance(x, u[2], {1.0 / m.rout, 0, 0});
-        if (m.rin > 0) admittance(u[0], u[1], {1.0 / m.rin, 0, 0});
-        break;
-      }
-    }
-  }
+  for (std::size_t i = 0; i < elements.size(); ++i)
+    stamp_element(elements[i], stamp_values<double>(*circuit_, i, nullptr), unknowns_of(*this, i),
+                  [&](int row, int col, const StampPolynomial<double>& c) {
+                    on_columns(i, col, [&](int column, double sign) {
+                      visit(row, column, Coefficients{sign * c.c0, sign * c.c1, sign * c.c2});
+                    });
+                  });
 }
 
 // Terms are bucketed by column (a counting sort, linear in their number),
@@ -498,6 +560,24 @@ void MnaSystem::build_pattern() {
     if (varies[k]) varying_.push_back(static_cast<int>(k));
 }
 
+// Where a stamp term on column `col` lands (see "Stiff parts" in mna.hpp):
+// a node written as its group's root minus a difference puts the term on
+// both, the difference with the opposite sign. A stiff part's own terms on
+// the root cancel exactly (both its nodes share the root) and are left out,
+// so its large admittance is never summed into the root's small entries.
+template <typename Place>
+void MnaSystem::on_columns(std::size_t element, int col, Place&& place) const {
+  if (col >= node_unknowns_) return place(col, 1.0);
+  const int root = root_of_[static_cast<std::size_t>(col)];
+  if (stiff_[element]) {
+    if (root >= 0) place(col, -1.0);  // the root's own column (root < 0) is left out
+    return;
+  }
+  if (root < 0) return place(col, 1.0);
+  place(root, 1.0);
+  place(col, -1.0);
+}
+
 void MnaSystem::restamp() {
   for (Coefficients& c : coefficients_) c = {0, 0, 0};
   std::size_t term = 0;
@@ -531,21 +611,24 @@ void MnaSystem::assemble_dc(double* values) const {
 void MnaSystem::excitation(std::complex<double>* rhs) const {
   std::fill(rhs, rhs + pattern_.n, std::complex<double>{});
   const auto& elements = circuit_->elements;
-  for (std::size_t i = 0; i < elements.size(); ++i) {
-    const auto& e = elements[i];
-    switch (traits(e.kind).drive) {
-      case Drive::none:
-        break;
-      case Drive::voltage:
-        rhs[branch_of_[i]] += e.ac_phasor();
-        break;
-      case Drive::current: {
-        // The source draws its current out of its first node and into its second.
-        const int plus = node_unknown(e.nodes[0]), minus = node_unknown(e.nodes[1]);
-        if (plus >= 0) rhs[plus] -= e.ac_phasor();
-        if (minus >= 0) rhs[minus] += e.ac_phasor();
-        break;
-      }
+  for (std::size_t i = 0; i < elements.size(); ++i) add_excitation(i, elements[i].ac_phasor(), rhs);
+}
+
+void MnaSystem::add_excitation(std::size_t element, std::complex<double> phasor,
+                               std::complex<double>* rhs) const {
+  const Element& e = circuit_->elements[element];
+  switch (traits(e.kind).drive) {
+    case Drive::none:
+      break;
+    case Drive::voltage:
+      rhs[branch_of_[element]] += phasor;
+      break;
+    case Drive::current: {
+      // The source draws its current out of its first node and into its second.
+      const int plus = node_unknown(e.nodes[0]), minus = node_unknown(e.nodes[1]);
+      if (plus >= 0) rhs[plus] -= phasor;
+      if (minus >= 0) rhs[minus] += phasor;
+      break;
     }
   }
 }
@@ -580,6 +663,60 @@ std::string MnaSystem::unknown_name(int unknown) const {
   const std::size_t element = owner_of_[static_cast<std::size_t>(unknown - node_unknowns_)];
   const auto& name = circuit_->elements[element].name;
   return internal_of_[element] == unknown ? "internal node of " + name : "current in " + name;
+}
+
+const char* to_string(ParameterKey key) {
+  switch (key) {
+    case ParameterKey::value: return "value";
+    case ParameterKey::gbw: return "gbw";
+    case ParameterKey::aol: return "aol";
+    case ParameterKey::fp2: return "fp2";
+    case ParameterKey::rout: return "rout";
+    case ParameterKey::rin: return "rin";
+  }
+  return "?";
+}
+
+std::vector<Parameter> MnaSystem::parameters() const {
+  std::vector<Parameter> out;
+  const auto& elements = circuit_->elements;
+  for (std::size_t i = 0; i < elements.size(); ++i) {
+    const Element& e = elements[i];
+    switch (e.kind) {
+      case ElementKind::resistor:
+      case ElementKind::capacitor:
+      case ElementKind::inductor:
+      case ElementKind::vcvs:
+      case ElementKind::vccs:
+        out.push_back({i, ParameterKey::value, e.value});
+        break;
+      case ElementKind::vsource:
+      case ElementKind::isource:
+        break;
+      case ElementKind::opamp: {
+        const OpAmpModel& m = circuit_->model_of(e);
+        out.push_back({i, ParameterKey::gbw, m.gbw});
+        out.push_back({i, ParameterKey::aol, m.aol});
+        if (m.fp2 > 0) out.push_back({i, ParameterKey::fp2, m.fp2});
+        if (m.rout > 0) out.push_back({i, ParameterKey::rout, m.rout});
+        if (m.rin > 0) out.push_back({i, ParameterKey::rin, m.rin});
+        break;
+      }
+    }
+  }
+  return out;
+}
+
+void MnaSystem::derivative(const Parameter& p, std::vector<EntryPolynomial>& out) const {
+  out.clear();
+  stamp_element(circuit_->elements[p.element], stamp_values<Dual>(*circuit_, p.element, &p),
+                unknowns_of(*this, p.element),
+                [&](int row, int col, const StampPolynomial<Dual>& c) {
+                  if (c.c0.d != 0 || c.c1.d != 0 || c.c2.d != 0)
+                    on_columns(p.element, col, [&](int column, double sign) {
+                      out.push_back({row, column, sign * c.c0.d, sign * c.c1.d, sign * c.c2.d});
+                    });
+                });
 }
 
 int MnaSystem::slot(int row, int col) const {

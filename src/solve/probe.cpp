@@ -6,6 +6,7 @@
 #include <algorithm>
 
 #include <fmt/format.h>
+#include <fmt/ranges.h>
 
 #include "tacet/common/spelling.hpp"
 #include "tacet/common/errors.hpp"
@@ -71,6 +72,27 @@ Probe resolve_probe(const std::string& text, const Circuit& circuit) {
   return probe;
 }
 
+std::size_t resolve_input_source(const std::string& name, const Circuit& circuit) {
+  std::vector<std::string> sources;
+  for (const auto& e : circuit.elements)
+    if (traits(e.kind).drive != Drive::none) sources.push_back(e.name);
+  const std::string listed = sources.empty()
+                                 ? "the circuit has none"
+                                 : fmt::format("the sources are {}", fmt::join(sources, ", "));
+  const auto found = circuit.find_element(name);
+  if (!found) {
+    const std::string near = nearest_word(name, sources);
+    throw InputError::usage(fmt::format("--input '{}' is not an element of the circuit", name),
+                            near.empty() ? listed : "did you mean '" + near + "'?");
+  }
+  const Element& e = circuit.elements[*found];
+  if (traits(e.kind).drive == Drive::none)
+    throw InputError::usage(
+        fmt::format("--input '{}' is a {}, not a source", name, to_keyword(e.kind)),
+        "name a vsrc or isrc; " + listed);
+  return *found;
+}
+
 const char* probe_unit(const Probe& probe) {
   switch (probe.kind) {
     case ProbeKind::voltage: return "V";
@@ -126,6 +148,31 @@ std::complex<double> probe_functional(const Probe& probe, const MnaSystem& mna,
       break;
   }
   return 0.0;
+}
+
+void probe_functional_derivative(const Probe& probe, const MnaSystem& mna, std::complex<double> s,
+                                 const Parameter& p, std::vector<ProbeTerm>& terms) {
+  terms.clear();
+  if (probe.kind != ProbeKind::current || p.element != probe.element ||
+      p.key != ParameterKey::value)
+    return;
+  auto across = [&](int a, int b, std::complex<double> y) {
+    if (const int u = mna.node_unknown(a); u >= 0) terms.push_back({u, y});
+    if (const int u = mna.node_unknown(b); u >= 0) terms.push_back({u, -y});
+  };
+  const Element& e = mna.circuit().elements[probe.element];
+  const auto& n = e.nodes;
+  switch (e.kind) {
+    case ElementKind::resistor: across(n[0], n[1], -1.0 / (e.value * e.value)); break;
+    case ElementKind::capacitor: across(n[0], n[1], s); break;
+    case ElementKind::vccs: across(n[2], n[3], 1.0); break;
+    case ElementKind::inductor:
+    case ElementKind::vsource:
+    case ElementKind::isource:
+    case ElementKind::vcvs:
+    case ElementKind::opamp:
+      break;
+  }
 }
 
 std::complex<double> probe_value(const Probe& probe, const MnaSystem& mna, std::complex<double> s,

@@ -59,6 +59,20 @@ void check_solvable(const Circuit& circuit, AnalysisKind kind);
 
 class MnaSystem;
 
+/// Which number of an element a Parameter is: its main value (ohm, farad,
+/// henry, V/V, siemens) or an entry of an op amp's model (that instance's
+/// copy alone: two op amps of one model have their own gbw each).
+enum class ParameterKey { value, gbw, aol, fp2, rout, rin };
+/// "value", "gbw", "aol", "fp2", "rout", "rin": the model keys as written.
+const char* to_string(ParameterKey key);
+
+/// A number the matrix Y(s) depends on.
+struct Parameter {
+  std::size_t element;  ///< index into Circuit::elements
+  ParameterKey key;
+  double value;         ///< SI, as the circuit holds it
+};
+
 /// The SolveError for a matrix found singular at f (Hz; 0 reads "at DC"):
 /// names the unknown of the singular column when the factorisation knows it.
 [[noreturn]] void throw_singular(const MnaSystem& mna, int column, double f);
@@ -93,6 +107,10 @@ class MnaSystem {
   void assemble_dc(double* values) const;
   /// Writes b (size() entries) from every source's AC phasor.
   void excitation(std::complex<double>* rhs) const;
+  /// Adds one source's drive with the given phasor to b (V for a vsource, A
+  /// for an isource; nothing for an element that is no source).
+  void add_excitation(std::size_t element, std::complex<double> phasor,
+                      std::complex<double>* rhs) const;
 
   /// The row of a node's Kirchhoff equation (inject a current there), which
   /// is also the unknown of its voltage unless the node sits in a stiff
@@ -142,6 +160,18 @@ class MnaSystem {
   /// themselves rather than their value at one s (poles: G, C and the s^2 part).
   std::vector<EntryPolynomial> polynomials() const;
 
+  /// Every number Y(s) depends on, in element order: the main value of each
+  /// resistor, capacitor, inductor, vcvs and vccs; per op amp its gbw and aol,
+  /// and fp2, rout and rin where the model sets them (a zero there means "no
+  /// second pole", "no output resistance", "open input": no value to vary).
+  /// Sources have none: their phasors are the excitation, not the matrix.
+  std::vector<Parameter> parameters() const;
+  /// dY/dx for x = p, as polynomials in s (entries whose derivative is zero
+  /// left out), into `out` (cleared first; its capacity reused). Computed by
+  /// forward-mode differentiation of the same stamp code that builds Y, so
+  /// the two cannot disagree; O(1) entries per parameter.
+  void derivative(const Parameter& p, std::vector<EntryPolynomial>& out) const;
+
   /// Position of entry (row, col) in the values array; -1 if not in the pattern.
   int slot(int row, int col) const;
 
@@ -155,6 +185,8 @@ class MnaSystem {
   void for_each_term(Visit&& visit) const;
   void build_pattern();
   void group_stiff_nodes();
+  template <typename Place>
+  void on_columns(std::size_t element, int col, Place&& place) const;
 
   const Circuit* circuit_;
   CscPattern pattern_;

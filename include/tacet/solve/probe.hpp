@@ -39,6 +39,11 @@ struct Probe {
 /// unknown node or element, with the nearest name as a hint.
 Probe resolve_probe(const std::string& text, const Circuit& circuit);
 
+/// The source an `--input NAME` flag names (noise, sensitivity): its element
+/// index. Throws InputError for a name that is no element (with the nearest
+/// source) or an element that is no source (with the list of sources).
+std::size_t resolve_input_source(const std::string& name, const Circuit& circuit);
+
 /// The unit a probe's values carry: "V", "A" or "ohm".
 const char* probe_unit(const Probe& probe);
 
@@ -53,6 +58,14 @@ struct ProbeTerm {
 /// at the Laplace variable s, and returns the constant part.
 std::complex<double> probe_functional(const Probe& probe, const MnaSystem& mna,
                                       std::complex<double> s, std::vector<ProbeTerm>& terms);
+
+/// The part of d(functional)/dx that comes from the functional itself (its
+/// coefficients, not the solution x), into `terms` (cleared first): non-empty
+/// only for a current probe of the element p belongs to, i(R) = (va - vb)/R,
+/// i(C) = s C (va - vb) and i(G) = gm (vc+ - vc-); every other probe reads
+/// unknowns with coefficients that no parameter changes.
+void probe_functional_derivative(const Probe& probe, const MnaSystem& mna, std::complex<double> s,
+                                 const Parameter& p, std::vector<ProbeTerm>& terms);
 
 /// The probe's value for the solution x (mna.size() values) at s; `scratch`
 /// is reused working space.

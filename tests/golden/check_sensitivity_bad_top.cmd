@@ -1,0 +1,5 @@
+check
+@/sensitivity_stage.tacet
+--sensitivity
+--top
+0

@@ -1,0 +1,5 @@
+check
+@/sensitivity_stage.tacet
+--sensitivity
+--format
+json

@@ -1,0 +1,3 @@
+check
+@/sensitivity_stage.tacet
+--sensitivity

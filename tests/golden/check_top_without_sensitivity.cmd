@@ -1,0 +1,4 @@
+check
+@/sensitivity_stage.tacet
+--top
+3

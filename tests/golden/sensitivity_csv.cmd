@@ -1,0 +1,8 @@
+sensitivity
+@/sensitivity_stage.tacet
+--probe
+out
+--at
+10k
+--format
+csv

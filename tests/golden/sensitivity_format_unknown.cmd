@@ -1,0 +1,10 @@
+sensitivity
+@/sensitivity_stage.tacet
+--probe
+out
+--at
+1k
+--format
+svg
+--output
+@/sensitivity_format_unknown.out

@@ -1,0 +1,10 @@
+sensitivity
+@/sensitivity_stage.tacet
+--probe
+out
+--at
+1k
+--input
+Rf
+--output
+@/sensitivity_input_not_source.out

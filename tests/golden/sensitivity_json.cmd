@@ -1,0 +1,10 @@
+sensitivity
+@/sensitivity_stage.tacet
+--probe
+out
+--at
+10k
+--input
+Vin
+--format
+json

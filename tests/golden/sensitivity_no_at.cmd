@@ -1,0 +1,6 @@
+sensitivity
+@/sensitivity_stage.tacet
+--probe
+out
+--output
+@/sensitivity_no_at.out

@@ -1,0 +1,6 @@
+sensitivity
+@/sensitivity_stage.tacet
+--probe
+out
+--at
+10k
