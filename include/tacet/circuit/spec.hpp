@@ -8,6 +8,7 @@
 #include <string_view>
 #include <vector>
 
+#include "tacet/circuit/weighting.hpp"
 #include "tacet/language/source.hpp"
 
 namespace tacet {
@@ -51,6 +52,7 @@ struct Spec {
   std::string input;      ///< snr: the source the signal enters at
   double level = 0;       ///< snr: rms signal at `input`, V
   double margin = 0;      ///< rails: V inside the rails minus swing
+  Weighting weight = Weighting::none;  ///< noise, snr: weight= on the band total
 };
 
 }  // namespace tacet
