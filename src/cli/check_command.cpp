@@ -16,6 +16,7 @@ void setup_check(CLI::App& app) {
   CLI::App* check = app.add_subcommand(
       "check", "Measure every spec line of the netlist: PASS/FAIL with the margin; exit 1 if any fails");
   add_common_options(*check, *options, check_writers().formats());
+  add_ambient_range_option(*check, *options);
   check->callback([options] {
     const CheckResult result =
         analyse_and_write(*options, check_writers(), [&](const Circuit& circuit) {

@@ -42,7 +42,7 @@ bool vccs_is_conductance(const Element& e) {
 // The node pairs through which an element lets a node voltage be fixed
 // relative to gnd. Current sources and op-amp inputs do not conduct.
 struct NodePairs {
-  std::array<std::pair<int, int>, 2> pair{};
+  std::array<std::pair<int, int>, 5> pair{};
   int count = 0;
   void add(int a, int b) { pair[static_cast<std::size_t>(count++)] = {a, b}; }
 };
@@ -54,8 +54,11 @@ NodePairs conducting_pairs(const Circuit& circuit, const Element& e, AnalysisKin
   // The paths that depend on more than the kind: its wiring or its model.
   if (e.kind == ElementKind::vccs && vccs_is_conductance(e)) pairs.add(n[0], n[1]);
   if (e.kind == ElementKind::opamp) {
+    const OpAmpModel& m = circuit.model_of(e);
     pairs.add(n[2], 0);
-    if (circuit.model_of(e).rin > 0) pairs.add(n[0], n[1]);
+    if (m.rin > 0) pairs.add(n[0], n[1]);
+    if (kind == AnalysisKind::ac && m.cin_diff > 0) pairs.add(n[0], n[1]);
+    if (kind == AnalysisKind::ac && m.cin_cm > 0) pairs.add(n[0], 0), pairs.add(n[1], 0);
   }
   return pairs;
 }
@@ -272,9 +275,14 @@ void MnaSystem::for_each_term(Visit&& visit) const {
         const double inv_wp2 = m.fp2 > 0 ? 1.0 / (kTwoPi * m.fp2) : 0.0;
         add(x, br, {1.0, 0, 0});
         add(br, x, {1.0 / m.aol, (1.0 / wp + inv_wp2) / m.aol, inv_wp2 / (wp * m.aol)});
-        add(br, u[0], {-1.0, 0, 0}), add(br, u[1], {1.0, 0, 0});
+        // -d(s) = -(1 + k(s)) v+ + (1 - k(s)) v-, k(s) = k0 + k1 s.
+        const double k0 = m.cmrr > 0 ? 0.5 / m.cmrr : 0.0;
+        const double k1 = m.cmrr > 0 && m.fcmrr > 0 ? k0 / (kTwoPi * m.fcmrr) : 0.0;
+        add(br, u[0], {-1.0 - k0, -k1, 0}), add(br, u[1], {1.0 - k0, -k1, 0});
         if (m.rout > 0) admittance(x, u[2], {1.0 / m.rout, 0, 0});
         if (m.rin > 0) admittance(u[0], u[1], {1.0 / m.rin, 0, 0});
+        if (m.cin_diff > 0) admittance(u[0], u[1], {0, m.cin_diff, 0});
+        if (m.cin_cm > 0) admittance(u[0], -1, {0, m.cin_cm, 0}), admittance(u[1], -1, {0, m.cin_cm, 0});
         break;
       }
     }
@@ -373,6 +381,12 @@ void MnaSystem::excitation(std::complex<double>* rhs) const {
 }
 
 // --- names and lookups -------------------------------------------------------
+
+std::complex<double> common_mode_feedthrough(const OpAmpModel& m, std::complex<double> s) {
+  if (!(m.cmrr > 0)) return {};
+  const std::complex<double> rolloff = m.fcmrr > 0 ? 1.0 + s / (kTwoPi * m.fcmrr) : 1.0;
+  return rolloff / (2 * m.cmrr);
+}
 
 int MnaSystem::opamp_gain_row(std::size_t element) const {
   return circuit_->elements[element].kind == ElementKind::opamp ? branch_of_[element] : -1;

@@ -28,6 +28,7 @@ enum class Dimension {
   power,        ///< W
   angle,        ///< degrees: deg
   decibel,      ///< a level in dB, kept in dB: plain or with dB (spec limits)
+  drift,        ///< V/C (also V/K: the same step), an offset's temperature coefficient
   any,          ///< params and block arguments: every unit accepted
 };
 
