@@ -412,3 +412,22 @@ TEST_CASE("supply takes ripple= and ripple_f= and checks them", "[opamp][elabora
   auto zero = elaborate_text("supply +15V -15V ripple=0V\nres R1 (a, gnd) 1k\n");
   CHECK(zero.diagnostics.find("main.tacet:1:25: error: ripple= must be above 0") == 0);
 }
+
+TEST_CASE("a follower's closed-loop pole moves with the CMRR's roll-off", "[opamp][poles]") {
+  // The gain row of a follower (v- = v_x, v+ at the zeroed source) with
+  // k(s) = k0 (1 + s/wc), k0 = 1/(2 CMRR0), wc = 2 pi fcmrr (mna.hpp):
+  //   (1 + s/wp)/aol + 1 - k0 - k0 s/wc = 0
+  //   => s = -(1/aol + 1 - k0) / (1/(wp aol) - k0/wc),  wp = 2 pi gbw/aol.
+  auto model = single_pole(1e6, 1e5);
+  model.cmrr = 100;
+  model.fcmrr = 1e6;
+  CircuitBuilder b;
+  b.vsrc("Vin", "in", "gnd", 1);
+  b.opamp("U1", "in", "out", "out", model);
+  const double wp = 2 * kPi * model.gbw / model.aol, wc = 2 * kPi * model.fcmrr, k0 = 0.5 / model.cmrr;
+  const double expected = -(1 / model.aol + 1 - k0) / (1 / (wp * model.aol) - k0 / wc);
+  const auto poles = run_poles(b.circuit, {});
+  REQUIRE(poles.poles.size() == 1);
+  CHECK_THAT(poles.poles[0].s.real(), IsClose(expected, 1e-9));
+  CHECK(poles.poles[0].s.imag() == 0);
+}

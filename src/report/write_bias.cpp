@@ -224,12 +224,12 @@ std::string bias_table(const BiasReport& report, const ReportContext& context) {
   std::string out = report_header(context);
   out += lines(headroom.cautions, "");
   out += "DC operating point (capacitors open, inductors shorted); low and high bound each "
-         "output over every vos and ios sign\n\n";
+         "output over every sign of vos, ios and ib_max\n\n";
   out += opamp_table(bias);
   out += bias.warnings.empty() ? "" : "\n" + lines(bias.warnings, "warning: ");
   out += "\n" + ripple_section(headroom) + headroom_section(headroom);
   out += "\nNodes: nominal with each model's ib flowing (typical, not a limit), worst-case band "
-         "over every vos and ios sign at their limits, root-sum-square\n";
+         "over every sign of vos, ios and ib_max at their limits, root-sum-square\n";
   out += range_line(bias) + "\n";
   return out + node_table(bias);
 }
