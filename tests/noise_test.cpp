@@ -8,6 +8,7 @@
 
 #include "is_close.hpp"
 #include "reference_circuits.hpp"
+#include "tacet/analysis/weighting.hpp"
 #include "tacet/common/errors.hpp"
 
 using namespace tacet;
@@ -462,4 +463,136 @@ TEST_CASE("a noise density that overflows a double is an error naming the source
                     "hint: check the values that set it (the model's en and fce)\n");
   CHECK_THROWS_AS(run_noise(noninverting(1e3, 9e3, 1e3, m), noise_at({1e3}, "out", 10, 1e3)),
                   SolveError);
+}
+
+// --- weighting and noise figure -------------------------------------------------------
+
+namespace {
+
+// Vs -> Rs -> out, RL from out to gnd: a source resistance into a resistive load.
+Circuit source_into_load(double rs, double rl) {
+  CircuitBuilder b;
+  b.vsrc("Vs", "src", "gnd", 1.0);
+  b.add(ElementKind::resistor, "Rs", {"src", "out"}, rs);
+  b.add(ElementKind::resistor, "RL", {"out", "gnd"}, rl);
+  return b.circuit;
+}
+
+}  // namespace
+
+TEST_CASE("an A-weighted band total is the white density times the weighted bandwidth",
+          "[noise][weighting]") {
+  // Band total of density x |W(f)|^2 (brief 14). For a white density S0 the
+  // weighted power is S0 times the integral of |W_A|^2; that integral against
+  // SciPy's quad is tests/scipy/weighted_noise_check.py. Here: the weighting
+  // scales every contributor alike, so each share is unchanged and the
+  // weighted rms squares still add up to the weighted total.
+  const auto circuit = source_into_load(1e3, 10e3);
+  auto flat = noise_at({1e3}, "out", 20, 20e3);
+  auto weighted = flat;
+  weighted.weight = Weighting::a;
+  const auto r_flat = run_noise(circuit, flat);
+  const auto r_a = run_noise(circuit, weighted);
+  CHECK(r_a.weight == Weighting::a);
+  CHECK(r_a.total_rms < r_flat.total_rms);
+  double sum = 0;
+  for (const auto& c : r_a.contributors) {
+    sum += c.rms * c.rms;
+    CHECK_THAT(c.share, IsClose(contributor(r_flat, c.source, c.mechanism).share, 1e-9));
+  }
+  CHECK_THAT(sum, IsClose(r_a.total_rms * r_a.total_rms, 1e-12));
+  // The printed spot densities are the circuit's own, unweighted.
+  CHECK_THAT(r_a.density[0], IsClose(r_flat.density[0], 1e-15));
+}
+
+TEST_CASE("a weighted total of a shaped density follows the weighting where it matters",
+          "[noise][weighting]") {
+  // A white density through an RC low-pass with its corner at 1 kHz, 468-weighted:
+  // the integrand is S(f) |W(f)|^2 with S the RC's |H|^2 4kTR (Nyquist 1928).
+  // Checked against composite Simpson in ln f of the same integrand with
+  // 20000 panels (independent of the analysis' adaptive Gauss-Kronrod).
+  const double r = 10e3, c = 1 / (2 * kPi * 1e3 * r);
+  const auto circuit = rc_lowpass(r, c);
+  auto options = noise_at({1e3}, "out", 20, 20e3);
+  options.weight = Weighting::itu468;
+  const auto result = run_noise(circuit, options);
+  auto integrand = [&](double f) {
+    const double w = itu468_weighting(f);
+    return 4 * kT25 * r / (1 + std::pow(f / 1e3, 2)) * w * w * f;  // d f = f d ln f
+  };
+  const int n = 20000;
+  const double a = std::log(20.0), h = (std::log(20e3) - a) / n;
+  double simpson = integrand(20.0) + integrand(20e3);
+  for (int k = 1; k < n; ++k) simpson += (k % 2 ? 4 : 2) * integrand(std::exp(a + k * h));
+  simpson *= h / 3;
+  CHECK_THAT(result.total_rms, IsClose(std::sqrt(simpson), 1e-8));
+}
+
+TEST_CASE("the noise figure of a source resistance into a resistive load is 10 log10((Rs + RL)/RL)",
+          "[noise][figure]") {
+  // Closed form: at the load both resistors' thermal noises add,
+  // 4kT Rs (RL/(Rs+RL))^2 + 4kT RL (Rs/(Rs+RL))^2, of which the first is the
+  // source's; the ratio is 1 + Rs/RL (Friis 1944, noise factor F = total / source).
+  const double rs = 1e3, rl = 10e3, expected = 10 * std::log10((rs + rl) / rl);
+  const auto circuit = source_into_load(rs, rl);
+  auto options = noise_at({20, 1e3, 20e3}, "out", 20, 20e3);
+  options.source = "Rs";
+  const auto r = run_noise(circuit, options);
+  REQUIRE(r.noise_figure_db);
+  CHECK_THAT(*r.noise_figure_db, IsClose(expected, 1e-9));
+  REQUIRE(r.spot_noise_figure_db.size() == 3);
+  for (double nf : r.spot_noise_figure_db) CHECK_THAT(nf, IsClose(expected, 1e-9));
+  // Both noises are white, so a weighting cannot change their ratio.
+  options.weight = Weighting::a;
+  CHECK_THAT(*run_noise(circuit, options).noise_figure_db, IsClose(expected, 1e-9));
+}
+
+TEST_CASE("the noise figure of a noiseless amplifier after the source is 0 dB", "[noise][figure]") {
+  // Friis 1944: F = 1 when the only noise is the source's. Rs into an ideal
+  // buffer with noiseless feedback resistors.
+  auto model = single_pole(10e6, 1e6);
+  auto circuit = noninverting(1e3, 9e3, 1e3, model);
+  for (auto& e : circuit.elements)
+    if (e.name == "Rf" || e.name == "Rg") e.noiseless = true;
+  auto options = noise_at({1e3}, "out", 20, 20e3);
+  options.source = "Rs";
+  const auto r = run_noise(circuit, options);
+  CHECK(std::abs(*r.noise_figure_db) < 1e-12);
+}
+
+TEST_CASE("a noise figure against a resistor whose noise cannot reach the probe is unbounded",
+          "[noise][figure]") {
+  CircuitBuilder b;
+  b.vsrc("Vs", "out", "gnd", 1.0);
+  b.add(ElementKind::resistor, "Rs", {"out", "gnd"}, 1e3);  // across an ideal source: shorted
+  b.add(ElementKind::resistor, "R2", {"out", "x"}, 1e3);
+  b.add(ElementKind::resistor, "R3", {"x", "gnd"}, 1e3);
+  auto options = noise_at({1e3}, "x", 20, 20e3);
+  options.source = "Rs";
+  const auto r = run_noise(b.circuit, options);
+  CHECK(std::isinf(*r.noise_figure_db));
+  CHECK(std::isinf(r.spot_noise_figure_db[0]));
+  REQUIRE_FALSE(r.notes.empty());
+  CHECK(r.notes.back() ==
+        "the thermal noise of 'Rs' does not reach the probe 'x': the noise figure is unbounded");
+}
+
+TEST_CASE("rejects a noise-figure source that is not a noisy resistor", "[noise][figure][errors]") {
+  auto circuit = rc_lowpass(1e3, 1e-9);
+  auto options = noise_at({1e3}, "out", 10, 1e3);
+  options.source = "C1";
+  CHECK_THROWS_WITH(run_noise(circuit, options),
+                    "error: --source 'C1' is a cap, not a resistor: a noise figure is taken "
+                    "against a resistor's thermal noise\n"
+                    "hint: name the source resistance; the noisy resistors are R1\n");
+  options.source = "R2";
+  CHECK_THROWS_WITH(run_noise(circuit, options),
+                    "error: --source 'R2' is not an element of the circuit\n"
+                    "hint: did you mean 'R1'?\n");
+  circuit.elements[*circuit.find_element("R1")].noiseless = true;
+  options.source = "R1";
+  CHECK_THROWS_WITH(run_noise(circuit, options),
+                    "error: --source 'R1' is noiseless: it has no thermal noise to compare against\n"
+                    "hint: drop `noiseless` from it, or name another resistor; the circuit has no "
+                    "resistor that makes noise\n");
 }

@@ -50,6 +50,36 @@ void draw_current(const MnaSystem& mna, double* rhs, int node, double amps) {
   if (u >= 0) rhs[u] -= amps;
 }
 
+/// 2^((T - 25 C)/ib_double): how bias and offset currents grow with temperature.
+double current_factor(const OpAmpModel& m, double celsius) {
+  return m.ib_double > 0 ? std::exp2((celsius - kModelReferenceCelsius) / m.ib_double) : 1.0;
+}
+
+/// The temperatures the DC errors are taken over: the declared range, else the ambient.
+AmbientRange error_range(const Circuit& circuit) {
+  return circuit.ambient_range.value_or(AmbientRange{circuit.ambient_celsius, circuit.ambient_celsius});
+}
+
+}  // namespace
+
+DcLimits dc_limits(const Circuit& circuit, const OpAmpModel& m) {
+  const AmbientRange range = error_range(circuit);
+  const double farthest = std::max(std::abs(range.low - kModelReferenceCelsius),
+                                   std::abs(range.high - kModelReferenceCelsius));
+  DcLimits limits;
+  limits.vos = std::abs(m.vos) + std::abs(m.vos_drift) * farthest;
+  limits.ios = std::abs(m.ios) * current_factor(m, range.high);
+  limits.ib = m.ib * current_factor(m, circuit.ambient_celsius);
+  // The largest and smallest magnitude the bias current reaches over the
+  // range, the worst one from ib_max (ib when not given), the least from ib.
+  const double largest = std::max(std::abs(m.ib), m.ib_max.value_or(0.0)) * current_factor(m, range.high);
+  const double least = std::abs(m.ib) * current_factor(m, range.low);
+  limits.ib_excess = std::max({0.0, largest - std::abs(limits.ib), std::abs(limits.ib) - least});
+  return limits;
+}
+
+namespace {
+
 Vector nominal_rhs(const Circuit& circuit, const DcSolver& dc) {
   const MnaSystem& mna = dc.mna();
   Vector rhs(dc.size(), 0.0);
@@ -67,7 +97,7 @@ Vector nominal_rhs(const Circuit& circuit, const DcSolver& dc) {
         break;
     }
     if (e.kind == ElementKind::opamp) {
-      const double ib = circuit.model_of(e).ib;
+      const double ib = dc_limits(circuit, circuit.model_of(e)).ib;
       draw_current(mna, rhs.data(), e.nodes[0], ib);
       draw_current(mna, rhs.data(), e.nodes[1], ib);
     }
@@ -86,8 +116,8 @@ struct DcError {
 // drawn from + alone, from - alone) give both: ios = (P - M)/2, ib = P + M.
 struct OpAmpErrors {
   std::size_t element;
-  double vos, ios, ib;  // |vos| V, |ios| A, ib A (signed)
-  bool pins() const { return ios != 0 || ib != 0; }
+  double vos, ios, ib, ib_excess;  // |vos| V, |ios| A, ib A (signed), ib_excess A
+  bool pins() const { return ios != 0 || ib != 0 || ib_excess != 0; }
   std::size_t columns() const { return (vos != 0 ? 1 : 0) + (pins() ? 2 : 0); }
 };
 
@@ -96,8 +126,8 @@ std::vector<OpAmpErrors> opamp_errors(const Circuit& circuit) {
   for (std::size_t i = 0; i < circuit.elements.size(); ++i) {
     const auto& e = circuit.elements[i];
     if (e.kind != ElementKind::opamp) continue;
-    const auto& m = circuit.model_of(e);
-    const OpAmpErrors amp{i, std::abs(m.vos), std::abs(m.ios), m.ib};
+    const DcLimits limits = dc_limits(circuit, circuit.model_of(e));
+    const OpAmpErrors amp{i, limits.vos, limits.ios, limits.ib, limits.ib_excess};
     if (amp.columns() > 0) errors.push_back(amp);
   }
   return errors;
@@ -279,6 +309,7 @@ const char* to_string(DcErrorKind kind) {
     case DcErrorKind::vos: return "vos";
     case DcErrorKind::ios: return "ios";
     case DcErrorKind::ib: return "ib";
+    case DcErrorKind::ib_max: return "ib_max";
   }
   return "?";
 }
@@ -297,6 +328,7 @@ BiasResult run_bias(const Circuit& circuit, const BiasOptions& options) {
   const DcSolver dc(circuit, options.solver);
   const MnaSystem& mna = dc.mna();
   BiasResult result;
+  result.range = error_range(circuit);
   Vector x = nominal_rhs(circuit, dc);
   dc.solve(x, 1);
   require_finite(x, mna);
@@ -343,10 +375,13 @@ BiasResult run_bias(const Circuit& circuit, const BiasOptions& options) {
         for (std::size_t u = 0; u < n; ++u) combined[u] = 0.5 * (plus[u] - minus[u]);
         add_error(circuit, mna, pins, {amp.element, DcErrorKind::ios, amp.ios}, combined.data(), result, bands);
       }
-      if (amp.ib != 0) {
+      if (amp.ib != 0 || amp.ib_excess != 0)
         for (std::size_t u = 0; u < n; ++u) combined[u] = plus[u] + minus[u];
+      if (amp.ib != 0)
         add_error(circuit, mna, pins, {amp.element, DcErrorKind::ib, amp.ib}, combined.data(), result, bands);
-      }
+      if (amp.ib_excess != 0)
+        add_error(circuit, mna, pins, {amp.element, DcErrorKind::ib_max, amp.ib_excess},
+                  combined.data(), result, bands);
     }
   }
   for (std::size_t k = 0; k < result.nodes.size(); ++k) {

@@ -389,6 +389,7 @@ class SpecMeter {
     options.sweep.at = {s.from, s.to};
     options.probe = s.probe;
     options.band = Band{s.from, s.to};
+    options.weight = s.weight;
     if (s.kind == SpecKind::snr) {
       options.input = s.input;
       options.level = s.level;
@@ -404,6 +405,7 @@ class SpecMeter {
     } else if (n.signal) {
       snr(r, *n.signal, n.total_rms);
     }
+    if (s.weight != Weighting::none) r.note = fmt::format("{}-weighted; {}", to_string(s.weight), r.note);
   }
 
   /// A ratio in dB; without noise it is unbounded (and meets any minimum),

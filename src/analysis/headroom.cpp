@@ -63,6 +63,7 @@ void set_limits(const Circuit& circuit, const Element& e, OpAmpHeadroom& amp) {
   const auto& m = circuit.model_of(e);
   amp.has_cm_range = m.vcm_low.has_value() || m.vcm_high.has_value();
   amp.slew.available = m.slew;
+  amp.current.available = m.iout_max;
   if (!rails) return;
   amp.has_rails = true;
   amp.out.limit_low = rails->low + m.swing;
@@ -85,6 +86,10 @@ void track(PinHeadroom& pin, const NodeBias& dc, double peak, double f) {
   pin.signal_peak = peak, pin.low = low, pin.high = high, pin.margin = margin, pin.frequency = f;
 }
 
+void track_current(CurrentHeadroom& current, double peak, double f) {
+  if (current.frequency == 0 || peak > current.needed) current.needed = peak, current.frequency = f;
+}
+
 void track_slew(SlewHeadroom& slew, double peak, double f) {
   const double needed = kTwoPi * f * peak;
   if (slew.frequency == 0 || needed > slew.needed) slew.needed = needed, slew.frequency = f;
@@ -103,16 +108,21 @@ std::vector<LevelDrive> drives_of(const Circuit& circuit, const MnaSystem& mna, 
   return drives;
 }
 
-// |V| at every node (index = node id), summed over the level sources.
+// |V| at every node (index = node id) and |I| of every op amp's output branch
+// (`branches`, its unknowns), summed over the level sources.
 void signal_peaks(const MnaSystem& mna, SparseLu& lu, const std::vector<LevelDrive>& drives, Vector& x,
-                  std::vector<double>& peaks) {
+                  std::vector<double>& peaks, const std::vector<int>& branches,
+                  std::vector<double>& currents) {
   std::fill(peaks.begin(), peaks.end(), 0.0);
+  std::fill(currents.begin(), currents.end(), 0.0);
   for (const auto& drive : drives) {
     std::fill(x.begin(), x.end(), std::complex<double>{});
     x[static_cast<std::size_t>(drive.row)] = drive.peak;
     lu.solve(x.data());
     for (std::size_t node = 1; node < peaks.size(); ++node)
       peaks[node] += std::abs(mna.node_voltage(x.data(), static_cast<int>(node)));
+    for (std::size_t k = 0; k < branches.size(); ++k)
+      currents[k] += std::abs(x[static_cast<std::size_t>(branches[k])]);
   }
 }
 
@@ -134,6 +144,12 @@ void warn(const OpAmpHeadroom& amp, std::vector<std::string>& warnings) {
     warn_pin(amp.name, "+ input", amp.plus, range, warnings);
     warn_pin(amp.name, "- input", amp.minus, range, warnings);
   }
+  if (!amp.current.ok())
+    warnings.push_back(fmt::format("{}: the output must deliver {}A peak at {}Hz, more than its "
+                                   "iout_max {}A",
+                                   amp.name, format_si(amp.current.needed),
+                                   format_si(amp.current.frequency),
+                                   format_si(amp.current.available)));
   if (!amp.slew.ok())
     warnings.push_back(fmt::format("{}: the signal needs {}V/us at {}Hz, more than its slew {}V/us",
                                    amp.name, format_si(amp.slew.needed * 1e-6),
@@ -147,6 +163,38 @@ std::string caution(const LevelSource& source) {
       "(30 V rms, 42.4 V peak): the input carries a hazardous voltage. Follow local electrical "
       "codes and licensed practice for anything built and connected; tacet does not assess safety.",
       source.name, format_si(source.rms), format_si(source.peak));
+}
+
+// The ripple at every op-amp output: one solve per op amp with psrr, its
+// error R/psrr on its gain row (headroom.hpp).
+void supply_ripple(const Circuit& circuit, FrequencyResponse& response, HeadroomResult& result) {
+  result.ripple = circuit.supply_ripple;
+  result.ripple_hz = circuit.supply_ripple_hz;
+  std::vector<std::size_t> amps, rejecting;
+  for (std::size_t i = 0; i < circuit.elements.size(); ++i) {
+    if (circuit.elements[i].kind != ElementKind::opamp) continue;
+    amps.push_back(i);
+    if (circuit.model_of(circuit.elements[i]).psrr > 0) rejecting.push_back(i);
+  }
+  if (rejecting.empty()) return;
+  response.factor_at(circuit.supply_ripple_hz);
+  const MnaSystem& mna = response.mna();
+  std::vector<double> peak(amps.size(), 0.0);
+  Vector x(static_cast<std::size_t>(mna.size()));
+  for (const std::size_t k : rejecting) {
+    std::fill(x.begin(), x.end(), std::complex<double>{});
+    x[static_cast<std::size_t>(mna.opamp_gain_row(k))] =
+        circuit.supply_ripple / circuit.model_of(circuit.elements[k]).psrr;
+    response.lu().solve(x.data());
+    for (std::size_t a = 0; a < amps.size(); ++a) {
+      const int u = mna.node_unknown(circuit.elements[amps[a]].nodes[2]);
+      if (u >= 0) peak[a] += std::abs(x[static_cast<std::size_t>(u)]);
+    }
+  }
+  for (std::size_t a = 0; a < amps.size(); ++a) {
+    const Element& e = circuit.elements[amps[a]];
+    result.ripple_at.push_back({e.name, circuit.node_names[static_cast<std::size_t>(e.nodes[2])], peak[a]});
+  }
 }
 
 }  // namespace
@@ -179,6 +227,7 @@ static HeadroomResult headroom_of(const Circuit& circuit, const BiasResult& bias
   if (auto problem = options.validate(); !problem.empty())
     throw InputError::usage(problem);
   HeadroomResult result;
+  if (circuit.supply && circuit.supply_ripple > 0) supply_ripple(circuit, response_of(), result);
   result.sources = level_sources(circuit);
   for (const auto& source : result.sources)
     if (source.hazardous) result.cautions.push_back(caution(source));
@@ -187,8 +236,11 @@ static HeadroomResult headroom_of(const Circuit& circuit, const BiasResult& bias
   result.band_low = band.from, result.band_high = band.to;
 
   std::vector<const Element*> amps;
-  for (const auto& e : circuit.elements) {
+  std::vector<std::size_t> amp_elements;
+  for (std::size_t i = 0; i < circuit.elements.size(); ++i) {
+    const Element& e = circuit.elements[i];
     if (e.kind != ElementKind::opamp) continue;
+    amp_elements.push_back(i);
     OpAmpHeadroom amp;
     amp.name = e.name;
     amp.out.node = circuit.node_names[static_cast<std::size_t>(e.nodes[2])];
@@ -206,9 +258,12 @@ static HeadroomResult headroom_of(const Circuit& circuit, const BiasResult& bias
   Vector x(static_cast<std::size_t>(mna.size()));
   std::vector<double> peaks(circuit.node_count());
   const std::vector<LevelDrive> drives = drives_of(circuit, mna, result.sources);
+  std::vector<int> branches;
+  for (const std::size_t i : amp_elements) branches.push_back(mna.branch_unknown(i));
+  std::vector<double> currents(branches.size());
   for (const double f : grid.frequencies()) {
     response.factor_at(f);
-    signal_peaks(mna, response.lu(), drives, x, peaks);
+    signal_peaks(mna, response.lu(), drives, x, peaks, branches, currents);
     for (std::size_t k = 0; k < amps.size(); ++k) {
       const auto& pins = amps[k]->nodes;
       auto& amp = result.opamps[k];
@@ -216,6 +271,7 @@ static HeadroomResult headroom_of(const Circuit& circuit, const BiasResult& bias
       track(amp.plus, bias.node(pins[0]), peaks[static_cast<std::size_t>(pins[0])], f);
       track(amp.minus, bias.node(pins[1]), peaks[static_cast<std::size_t>(pins[1])], f);
       track_slew(amp.slew, peaks[static_cast<std::size_t>(pins[2])], f);
+      track_current(amp.current, currents[k], f);
     }
   }
   for (const auto& amp : result.opamps) warn(amp, result.warnings);

@@ -13,6 +13,7 @@
 #include "tacet/common/errors.hpp"
 #include "tacet/common/format.hpp"
 #include "tacet/common/spelling.hpp"
+#include "tacet/solve/mna.hpp"
 #include "tacet/solve/search.hpp"
 
 namespace tacet {
@@ -194,10 +195,13 @@ std::complex<double> LoopGain::at(std::size_t opamp, double f) {
   rhs_[static_cast<std::size_t>(mna.opamp_gain_row(opamp))] = 1.0;
   response_.lu().solve(rhs_.data());
   const auto& e = mna.circuit().elements[opamp];
-  const std::complex<double> d =
-      mna.node_voltage(rhs_.data(), e.nodes[0]) - mna.node_voltage(rhs_.data(), e.nodes[1]);
-  const std::complex<double> vx = mna.voltage_at_unknown(rhs_.data(), mna.opamp_source_unknown(opamp));
+  auto voltage = [&](int node) { return mna.node_voltage(rhs_.data(), node); };
+  // The voltage the gain source amplifies, with its common-mode error (mna.hpp).
   const std::complex<double> s(0, kTwoPi * f);
+  const std::complex<double> plus = voltage(e.nodes[0]), minus = voltage(e.nodes[1]);
+  const std::complex<double> d =
+      plus - minus + common_mode_feedthrough(model_of(mna.circuit(), opamp), s) * (plus + minus);
+  const std::complex<double> vx = mna.voltage_at_unknown(rhs_.data(), mna.opamp_source_unknown(opamp));
   const std::complex<double> t = -opamp_gain(model_of(mna.circuit(), opamp), s) * d / vx;
   if (!std::isfinite(t.real()) || !std::isfinite(t.imag()))
     throw SolveError::unsolvable_at(

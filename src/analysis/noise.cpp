@@ -14,6 +14,7 @@
 #include "tacet/common/spelling.hpp"
 #include "tacet/common/errors.hpp"
 #include "tacet/common/format.hpp"
+#include "tacet/analysis/weighting.hpp"
 #include "tacet/solve/integrate.hpp"
 #include "tacet/solve/mna.hpp"
 
@@ -106,6 +107,48 @@ InputPort resolve_input(const std::string& name, const Circuit& circuit, const M
   return {mna.node_unknown(e.nodes[1]), mna.node_unknown(e.nodes[0])};
 }
 
+// The noise figure's source: a resistor that makes thermal noise.
+std::size_t resolve_source(const std::string& name, const Circuit& circuit) {
+  std::vector<std::string> resistors;
+  for (const Element& e : circuit.elements)
+    if (traits(e.kind).thermal_noise && !e.noiseless) resistors.push_back(e.name);
+  const std::string listed = resistors.empty()
+                                 ? "the circuit has no resistor that makes noise"
+                                 : fmt::format("the noisy resistors are {}", fmt::join(resistors, ", "));
+  const auto index = circuit.find_element(name);
+  if (!index) {
+    const std::string near = nearest_word(name, resistors);
+    throw InputError::usage(fmt::format("--source '{}' is not an element of the circuit", name),
+                            near.empty() ? listed : "did you mean '" + near + "'?");
+  }
+  const Element& e = circuit.elements[*index];
+  if (!traits(e.kind).thermal_noise)
+    throw InputError::usage(
+        fmt::format("--source '{}' is a {}, not a resistor: a noise figure is taken against a "
+                    "resistor's thermal noise",
+                    name, to_keyword(e.kind)),
+        "name the source resistance; " + listed);
+  if (e.noiseless)
+    throw InputError::usage(
+        fmt::format("--source '{}' is noiseless: it has no thermal noise to compare against", name),
+        "drop `noiseless` from it, or name another resistor; " + listed);
+  return *index;
+}
+
+// Which of the noise sources is the source resistor's thermal noise; none
+// when its noise cannot reach the probe (both ends on gnd).
+std::optional<std::size_t> source_noise(const std::vector<NoiseSource>& sources, std::size_t element) {
+  for (std::size_t i = 0; i < sources.size(); ++i)
+    if (sources[i].element == element && sources[i].mechanism == NoiseMechanism::thermal) return i;
+  return std::nullopt;
+}
+
+// 10 log10(total / part), +inf where the part is 0 (the source does not reach).
+double noise_figure(double total, double part) {
+  if (part > 0) return 10 * std::log10(total / part);
+  return std::numeric_limits<double>::infinity();
+}
+
 /// The integration band: the one given, else the sweep's lowest to highest point.
 Band integration_band(const NoiseOptions& options) {
   if (options.band) return *options.band;
@@ -151,7 +194,7 @@ double input_referred_power(double output_power, std::complex<double> gain) {
 // an input the gain and the input-referred density.
 void fill_points(NoiseResult& result, AdjointSolver& adjoint, const Circuit& circuit,
                  const std::vector<NoiseSource>& sources, const std::vector<std::size_t>& largest,
-                 const InputPort* input) {
+                 const InputPort* input, std::optional<std::size_t> source, bool figure) {
   for (std::size_t k : largest)
     result.contributor_density.push_back(
         {circuit.elements[sources[k].element].name, sources[k].mechanism, {}});
@@ -167,6 +210,7 @@ void fill_points(NoiseResult& result, AdjointSolver& adjoint, const Circuit& cir
     for (std::size_t j = 0; j < largest.size(); ++j)
       result.contributor_density[j].density.push_back(std::sqrt(part[largest[j]]));
     result.density.push_back(std::sqrt(power));
+    if (figure) result.spot_noise_figure_db.push_back(noise_figure(power, source ? part[*source] : 0.0));
     if (!input) continue;
     const auto g = transfer(y, input->plus, input->minus);
     result.gain.push_back(g);
@@ -187,7 +231,7 @@ std::string unreached_note(const NoiseResult& result, double f) {
 std::vector<std::size_t> integrate_contributors(NoiseResult& result, AdjointSolver& adjoint,
                                                 const Circuit& circuit,
                                                 const std::vector<NoiseSource>& sources,
-                                                const InputPort* input) {
+                                                const InputPort* input, Weighting weight) {
   if (sources.empty()) {  // nothing makes noise: 0 V, and 0 referred to any input
     if (input) result.input_referred_rms = 0.0;
     return {};
@@ -197,10 +241,11 @@ std::vector<std::size_t> integrate_contributors(NoiseResult& result, AdjointSolv
       result.band.from, result.band.to, first + sources.size(), first,
       [&](double f, double* out) {
         const auto& y = adjoint.solve(f);
+        const double w = weighting_gain(weight, f);
         out[0] = 0;
         for (std::size_t i = 0; i < sources.size(); ++i) {
           const auto& source = sources[i];
-          out[first + i] = std::norm(transfer(y, source)) * source.power(f);
+          out[first + i] = std::norm(transfer(y, source)) * source.power(f) * w * w;
           out[0] += out[first + i];
         }
         require_finite_power(out[0], f, result.probe);
@@ -227,6 +272,17 @@ std::vector<std::size_t> integrate_contributors(NoiseResult& result, AdjointSolv
                                    total > 0 ? power / total : 0.0});
   }
   return order;
+}
+
+// The band figure from the contributors: total power over the source's part.
+double band_noise_figure(NoiseResult& result, const std::string& source) {
+  for (const NoiseContributor& c : result.contributors)
+    if (c.source == source && c.mechanism == NoiseMechanism::thermal && c.rms > 0)
+      return noise_figure(result.total_rms * result.total_rms, c.rms * c.rms);
+  result.notes.push_back(fmt::format(
+      "the thermal noise of '{}' does not reach the probe '{}': the noise figure is unbounded",
+      source, result.probe.text));
+  return std::numeric_limits<double>::infinity();
 }
 
 SignalToNoise signal_to_noise(const NoiseResult& result, const NoiseOptions& options,
@@ -296,6 +352,9 @@ NoiseResult run_noise(const Circuit& circuit, const NoiseOptions& options,
                     result.probe.text),
         "probe the node the impedance is seen at: --probe out");
   result.input = options.input;
+  result.weight = options.weight;
+  result.source = options.source;
+  if (!options.source.empty()) resolve_source(options.source, circuit);
   result.band = integration_band(options);
   result.temperature_kelvin = circuit.ambient_celsius + kZeroCelsius;
   result.frequencies = options.sweep.frequencies();
@@ -312,9 +371,16 @@ NoiseResult run_noise(const Circuit& circuit, const NoiseOptions& options,
   require_finite_sources(circuit, sources, std::min(result.band.from, *lowest));
   AdjointSolver adjoint(response, result.probe);
   const InputPort* port = input ? &*input : nullptr;
-  std::vector<std::size_t> largest = integrate_contributors(result, adjoint, circuit, sources, port);
+  std::vector<std::size_t> largest =
+      integrate_contributors(result, adjoint, circuit, sources, port, options.weight);
+  const bool figure = !options.source.empty();
+  std::optional<std::size_t> source;
+  if (figure) {
+    source = source_noise(sources, *circuit.find_element(options.source));
+    result.noise_figure_db = band_noise_figure(result, options.source);
+  }
   largest.resize(std::min(largest.size(), options.curves));
-  fill_points(result, adjoint, circuit, sources, largest, port);
+  fill_points(result, adjoint, circuit, sources, largest, port, source, figure);
   if (options.level) result.signal = signal_to_noise(result, options, adjoint, *input);
   return result;
 }

@@ -64,6 +64,15 @@ std::string model_line(const OpAmpModel& m) {
   if (m.slew != 0) out += fmt::format(" slew {:g}V/us", m.slew * 1e-6);
   if (m.vcm_low) out += fmt::format(" vcm_low {}V", format_si(*m.vcm_low, 6));
   if (m.vcm_high) out += fmt::format(" vcm_high {}V", format_si(*m.vcm_high, 6));
+  if (m.cmrr != 0) out += fmt::format(" cmrr {:.6g}dB", 20 * std::log10(m.cmrr));
+  add("fcmrr", m.fcmrr, "Hz");
+  add("cin_diff", m.cin_diff, "F");
+  add("cin_cm", m.cin_cm, "F");
+  if (m.psrr != 0) out += fmt::format(" psrr {:.6g}dB", 20 * std::log10(m.psrr));
+  if (m.ib_max) out += fmt::format(" ib_max {}A", format_si(*m.ib_max, 6));
+  add("vos_drift", m.vos_drift, "V/C");
+  add("ib_double", m.ib_double, "C");
+  add("iout_max", m.iout_max, "A");
   for (const ModelTolerance& t : m.tolerances) out += fmt::format(" {}_tol {:g}%", t.key, t.tolerance * 100);
   if (!m.tolerances.empty() && m.dist != Distribution::uniform) out += fmt::format(" dist {}", to_string(m.dist));
   return out + " }\n";

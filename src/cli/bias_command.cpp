@@ -56,6 +56,7 @@ void setup_bias(CLI::App& app) {
   CLI::App* bias = app.add_subcommand(
       "bias", "DC operating point, worst-case offsets against the rails, headroom at the level");
   add_common_options(*bias, options->common, bias_writers().formats());
+  add_ambient_range_option(*bias, options->common);
   bias->add_option("--band", options->band,
                    "Headroom band FROM..TO (20..20k); default: band_low=/band_high= on the source");
   bias->add_option("--per-decade", options->per_decade, "Headroom grid: points per decade")

@@ -67,6 +67,7 @@ void setup_check(CLI::App& app) {
   CLI::App* check = app.add_subcommand(
       "check", "Measure every spec line of the netlist: PASS/FAIL with the margin; exit 1 if any fails");
   add_common_options(*check, options->common, check_writers().formats());
+  add_ambient_range_option(*check, options->common);
   check->add_flag("--sensitivity", options->sensitivity,
                   "Also show, per spec, the parts that move its value most (per +1 %, and their tol=)");
   check->add_option("--top", options->top, "With --sensitivity: parts shown per spec (default 5)");

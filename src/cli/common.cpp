@@ -9,6 +9,7 @@
 
 #include "tacet/elaborate/elaborate.hpp"
 #include "tacet/common/errors.hpp"
+#include "tacet/common/format.hpp"
 
 namespace tacet::cli {
 
@@ -65,14 +66,48 @@ std::vector<double> parse_quantity_list(const std::string& option, const std::st
   return out;
 }
 
-Band parse_band(const std::string& option, const std::string& text) {
+namespace {
+
+// "LOW..HIGH" as its two ends, each read as a quantity of `dimension`;
+// `form` ("F1..F2") and `example` ("20..20k") for the message.
+std::pair<double, double> parse_span(const std::string& option, const std::string& text,
+                                     Dimension dimension, const char* form, const char* example) {
   const auto dots = text.find("..");
   if (dots == std::string::npos || dots == 0 || dots + 2 == text.size())
-    throw InputError::bad_value(option, text, "F1..F2", fmt::format("write {} 20..20k", option));
-  const Band band{parse_quantity(option, text.substr(0, dots), Dimension::frequency),
-                  parse_quantity(option, text.substr(dots + 2), Dimension::frequency)};
+    throw InputError::bad_value(option, text, form, fmt::format("write {} {}", option, example));
+  return {parse_quantity(option, text.substr(0, dots), dimension),
+          parse_quantity(option, text.substr(dots + 2), dimension)};
+}
+
+}  // namespace
+
+Band parse_band(const std::string& option, const std::string& text) {
+  const auto [from, to] = parse_span(option, text, Dimension::frequency, "F1..F2", "20..20k");
+  const Band band{from, to};
   if (auto problem = band.validate(); !problem.empty()) throw InputError::usage(problem);
   return band;
+}
+
+void add_ambient_range_option(CLI::App& command, CommonOptions& options) {
+  command.add_option("--ambient-range", options.ambient_range,
+                     "Take the offsets over this ambient range (0C..70C): vos_drift, ib_max, "
+                     "ib_double");
+}
+
+AmbientRange parse_ambient_range(const std::string& option, const std::string& text) {
+  const auto [low, high] = parse_span(option, text, Dimension::temperature, "T1..T2", "0C..70C");
+  const AmbientRange range{low, high};
+  const auto dots = text.find("..");
+  for (const double t : {range.low, range.high})
+    if (const std::string problem = ambient_problem(t); !problem.empty())
+      throw InputError::usage(fmt::format("{} {}: {}", option, text, problem));
+  if (range.low > range.high)
+    throw InputError::usage(
+        fmt::format("{} {}: the range runs from {} C down to {} C", option, text,
+                    format_si(range.low), format_si(range.high)),
+        fmt::format("write the cold end first: {} {}..{}", option, text.substr(dots + 2),
+                    text.substr(0, dots)));
+  return range;
 }
 
 OutputFormat output_format(const CommonOptions& options) {
@@ -133,8 +168,12 @@ Circuit load(const CommonOptions& options, ReportContext& context) {
       throw InputError::usage(fmt::format("--ambient {}: {}", options.ambient, problem));
   }
   elaborate.confine_includes = options.confine_includes;
+  std::optional<AmbientRange> range;
+  if (!options.ambient_range.empty())
+    range = parse_ambient_range("--ambient-range", options.ambient_range);
   std::string warnings;
   Circuit circuit = load_circuit(options.file, elaborate, &warnings);
+  if (range) circuit.ambient_range = range;
   std::cerr << warnings;
   context.file = options.file;
   context.title = circuit.title;

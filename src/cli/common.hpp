@@ -26,7 +26,15 @@ struct CommonOptions {
   std::string command;              ///< "tacet ac", for messages
   std::vector<OutputFormat> formats;  ///< what the command's writers have
   std::string confine_includes;     ///< folder every file read must lie in; empty: anywhere
+  std::string ambient_range;        ///< T1..T2 the DC errors are taken over; empty: the ambient
 };
+
+/// --ambient-range T1..T2, for the commands whose analyses take the DC errors (bias, check).
+void add_ambient_range_option(CLI::App& command, CommonOptions& options);
+
+/// "0C..70C" as a range in C; throws InputError when it is not one, is
+/// outside the temperatures tacet models or runs from hot to cold.
+AmbientRange parse_ambient_range(const std::string& option, const std::string& text);
 
 /// The netlist argument, --format (from `formats`, the analysis' Writers),
 /// --output, --set and --ambient.

@@ -6,6 +6,8 @@
 #include "commands.hpp"
 #include "common.hpp"
 #include "tacet/common/errors.hpp"
+#include "tacet/common/spelling.hpp"
+#include "tacet/circuit/weighting.hpp"
 #include "tacet/analysis/noise.hpp"
 #include "tacet/report/write_noise.hpp"
 
@@ -21,7 +23,15 @@ struct NoiseCommandOptions {
   std::string band;   // F1..F2
   std::string level;  // rms at the input source
   std::string ref;    // Hz
+  std::string weight;  // a | itu468
+  std::string source;  // a resistor: noise figure
 };
+
+Weighting parse_weight_flag(const std::string& text) {
+  if (auto w = parse_weighting(text)) return *w;
+  throw InputError::bad_value("--weight", text, "a weighting",
+                              choice_hint(text, weighting_names(), "weightings"));
+}
 
 NoiseOptions options_from(const NoiseCommandOptions& o) {
   NoiseOptions options;
@@ -31,6 +41,8 @@ NoiseOptions options_from(const NoiseCommandOptions& o) {
   if (!o.band.empty()) options.band = parse_band("--band", o.band);
   if (!o.level.empty()) options.level = parse_quantity("--level", o.level, Dimension::any);
   if (!o.ref.empty()) options.reference = parse_quantity("--ref", o.ref, Dimension::frequency);
+  if (!o.weight.empty()) options.weight = parse_weight_flag(o.weight);
+  options.source = o.source;
   return options;
 }
 
@@ -57,6 +69,10 @@ void setup_noise(CLI::App& app) {
                     "Signal rms at the --input source (1m, 200mV): signal-to-noise ratio");
   noise->add_option("--ref", options->ref,
                     "Where the signal gain is taken (default: sqrt(F1 F2), the band's centre)");
+  noise->add_option("--weight", options->weight,
+                    "Weight the band figures: a (IEC 61672-1) or itu468 (ITU-R BS.468-4)");
+  noise->add_option("--source", options->source,
+                    "The source resistor: spot and band noise figure against its thermal noise");
   add_sweep_options(*noise, options->sweep);
   noise->callback([options] { run(*options); });
 }

@@ -16,6 +16,7 @@ void setup_report(CLI::App& app) {
   CLI::App* report = app.add_subcommand(
       "report", "One self-contained HTML page for a review: the budget, the plots, bias, the circuit");
   add_common_options(*report, *options, report_writers().formats());
+  add_ambient_range_option(*report, *options);
   report->callback([options] {
     analyse_and_write(*options, report_writers(), [&](const Circuit& circuit) {
       ReportContext context{options->file, circuit.title};

@@ -8,6 +8,7 @@
 
 #include "elaborate/elaborator.hpp"
 #include "tacet/common/errors.hpp"
+#include "tacet/common/format.hpp"
 #include "tacet/language/parser.hpp"
 
 namespace tacet {
@@ -177,8 +178,33 @@ void Elaborator::declare_ambient(const ast::Ambient& ambient, int file) {
     error(file, extent(ambient.value), problem);
     return;
   }
-  circuit_.ambient_celsius = *t;
+  if (!ambient.high) {
+    circuit_.ambient_celsius = *t;
+    return;
+  }
+  auto high = evaluate(*ambient.high, file, globals_, Dimension::temperature, diagnostics_);
+  if (!high) return;
+  if (const std::string problem = ambient_problem(*high); !problem.empty()) {
+    error(file, extent(*ambient.high), problem);
+    return;
+  }
+  if (*t > *high) {
+    error(file, extent(ambient.value),
+          fmt::format("the ambient range runs from {} C down to {} C", format_si(*t), format_si(*high)),
+          "write the cold end first: ambient 0C..70C");
+    return;
+  }
+  // The typical point (thermal noise, the nominal bias) is the models' 25 C
+  // when the range holds it, else the range's end nearest to it.
+  circuit_.ambient_range = AmbientRange{*t, *high};
+  circuit_.ambient_celsius = std::clamp(kModelReferenceCelsius, *t, *high);
 }
+
+namespace {
+
+constexpr KeyRule kSupplyKeys[] = {{"ripple", Dimension::voltage}, {"ripple_f", Dimension::frequency}};
+
+}  // namespace
 
 void Elaborator::declare_supply(const ast::Supply& supply, int file) {
   auto high = evaluate(supply.high, file, globals_, Dimension::voltage, diagnostics_);
@@ -190,7 +216,27 @@ void Elaborator::declare_supply(const ast::Supply& supply, int file) {
           "write the high rail first: supply +12 -12");
     return;
   }
+  const KeyWording wording{"supply takes no option '{}'", "options", "option '{}' is given twice"};
+  bool ok = true;
+  double ripple = 0, ripple_f = kDefaultRippleHz;
+  const KeysRead keys = read_keys(written_keys(supply.options), kSupplyKeys, wording, file, "",
+                                  [&](const KeyValue& option) {
+                                    const auto v = value_of(*option.value, option.file, globals_,
+                                                            option.rule->dimension);
+                                    if (!v) {
+                                      ok = false;
+                                    } else if (*v <= 0) {
+                                      error(option.file, extent(*option.value),
+                                            fmt::format("{}= must be above 0", option.rule->name));
+                                      ok = false;
+                                    } else {
+                                      (option.rule->name == "ripple" ? ripple : ripple_f) = *v;
+                                    }
+                                  });
+  if (!keys.ok || !ok) return;
   circuit_.supply = Rails{*high, *low};
+  circuit_.supply_ripple = ripple;
+  circuit_.supply_ripple_hz = ripple_f;
 }
 
 // ---- overrides --------------------------------------------------------------
@@ -263,6 +309,15 @@ const ModelKey kOpAmpKeys[] = {
     {{"slew", Dimension::slew}, &OpAmpModel::slew, nullptr, Bound::positive},
     {{"vcm_low", Dimension::voltage}, nullptr, &OpAmpModel::vcm_low, Bound::any},
     {{"vcm_high", Dimension::voltage}, nullptr, &OpAmpModel::vcm_high, Bound::any},
+    {{"cmrr", Dimension::gain}, &OpAmpModel::cmrr, nullptr, Bound::positive},
+    {{"fcmrr", Dimension::frequency}, &OpAmpModel::fcmrr, nullptr, Bound::positive},
+    {{"cin_diff", Dimension::capacitance}, &OpAmpModel::cin_diff},
+    {{"cin_cm", Dimension::capacitance}, &OpAmpModel::cin_cm},
+    {{"psrr", Dimension::gain}, &OpAmpModel::psrr, nullptr, Bound::positive},
+    {{"ib_max", Dimension::current}, nullptr, &OpAmpModel::ib_max, Bound::non_negative},
+    {{"vos_drift", Dimension::drift}, &OpAmpModel::vos_drift},
+    {{"ib_double", Dimension::temperature}, &OpAmpModel::ib_double, nullptr, Bound::positive},
+    {{"iout_max", Dimension::current}, &OpAmpModel::iout_max, nullptr, Bound::positive},
 };
 
 constexpr std::string_view kTolSuffix = "_tol";

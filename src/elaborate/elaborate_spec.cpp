@@ -17,6 +17,7 @@ constexpr KeyRule kFrom{"from", Dimension::frequency, KeyForm::value, Need::requ
 constexpr KeyRule kTo{"to", Dimension::frequency, KeyForm::value, Need::required};
 constexpr KeyRule kCurrent{"current", Dimension::none};  // an element name: current=R1
 constexpr KeyRule kInput{"input", Dimension::none};      // a source's name: input=Vin
+constexpr KeyRule kWeight{"weight", Dimension::none};    // a weighting's name: weight=a
 
 constexpr KeyRule kGainKeys[] = {kAt, {"min", Dimension::gain}, {"max", Dimension::gain}, kCurrent,
                                  kInput};
@@ -31,12 +32,12 @@ constexpr KeyRule kCornerKeys[] = {
     {"from", Dimension::frequency}, {"to", Dimension::frequency}, kCurrent, kInput};
 constexpr KeyRule kNoiseKeys[] = {kFrom, kTo,
                                   {"max", Dimension::voltage, KeyForm::value, Need::required},
-                                  kCurrent};
+                                  kCurrent, kWeight};
 constexpr KeyRule kSnrKeys[] = {kFrom, kTo,
                                 {"input", Dimension::none, KeyForm::value, Need::required},
                                 {"level", Dimension::voltage, KeyForm::value, Need::required},
                                 {"min", Dimension::decibel, KeyForm::value, Need::required},
-                                {"ref", Dimension::frequency}, kCurrent};
+                                {"ref", Dimension::frequency}, kCurrent, kWeight};
 constexpr KeyRule kOffsetKeys[] = {{"max", Dimension::voltage, KeyForm::value, Need::required}};
 constexpr KeyRule kRailsKeys[] = {{"margin", Dimension::voltage}};
 constexpr KeyRule kDeviationKeys[] = {
@@ -93,6 +94,8 @@ KeyTable options_for(SpecKind kind) {
   }
   return {};
 }
+
+bool takes_weight(SpecKind kind) { return kind == SpecKind::noise || kind == SpecKind::snr; }
 
 bool needs_probe(SpecKind kind) {
   return kind != SpecKind::rails && kind != SpecKind::phase_margin &&
@@ -278,6 +281,22 @@ bool Elaborator::read_step_spec(Spec& spec, const ast::Spec& ast_spec, const Spe
                     sources.size(), with_ac.size() > 1 ? " with an ac value" : ""),
         choice_hint("", with_ac.size() > 1 ? with_ac : sources, "sources"));
   return false;
+}
+
+bool Elaborator::read_spec_weight(Spec& spec, const SpecKeys& given) {
+  const auto it = given.find("weight");
+  if (it == given.end()) return true;
+  const KeyValue& weight = it->second;
+  const auto* id = boost::get<ast::Identifier>(&unwrap(*weight.value));
+  const auto parsed = id ? parse_weighting(id->text) : std::nullopt;
+  if (!parsed) {
+    error(weight.file, extent(*weight.value),
+          id ? fmt::format("unknown weighting '{}'", id->text) : "weight= takes a weighting's name",
+          choice_hint(id ? id->text : "", weighting_names(), "weightings"));
+    return false;
+  }
+  spec.weight = *parsed;
+  return true;
 }
 
 bool Elaborator::read_spec_limits(Spec& spec, const ast::Spec& ast_spec, const SpecKeys& given,
@@ -472,6 +491,18 @@ bool Elaborator::attach_spec_probe(Spec& spec, const ast::Spec& ast_spec, const 
   return true;
 }
 
+bool Elaborator::weight_fits(SpecKind kind, const ast::Spec& ast_spec, int file) {
+  if (takes_weight(kind)) return true;
+  for (const auto& option : ast_spec.options)
+    if (option.key.text == "weight") {
+      error(file, option.key,
+            fmt::format("a {} spec takes no weight=: a weighting applies to noise", to_string(kind)),
+            "weight= goes on a noise or snr spec");
+      return false;
+    }
+  return true;
+}
+
 void Elaborator::elaborate_spec(const ast::Spec& ast_spec, int file) {
   auto kind = parse_spec_kind(ast_spec.kind.text);
   if (!kind) {
@@ -485,6 +516,7 @@ void Elaborator::elaborate_spec(const ast::Spec& ast_spec, int file) {
   spec.kind = *kind;
   spec.where = {file, ast_spec.name.offset};
 
+  if (!weight_fits(*kind, ast_spec, file)) return;
   SpecKeys given;
   const KeyWording wording{fmt::format("a {} spec takes no option '{{}}'", ast_spec.kind.text),
                            "options", "option '{}' is given twice"};
@@ -501,6 +533,7 @@ void Elaborator::elaborate_spec(const ast::Spec& ast_spec, int file) {
   ok = read_spec_band(spec, given);
   if (!read_spec_limits(spec, ast_spec, given, ok)) return;  // limits in the unit the spec reports
   if (!read_input_source(spec, given)) return;
+  if (!read_spec_weight(spec, given)) return;
   if (!attach_spec_probe(spec, ast_spec, given, file)) return;
   // A gain on a branch current i(NAME) is amperes per volt of the source, not V/V.
   if (spec.unit == SpecUnit::ratio && spec.probe.rfind("i(", 0) == 0) spec.unit = SpecUnit::amps_per_volt;

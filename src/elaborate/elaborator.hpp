@@ -133,6 +133,8 @@ class Elaborator {
   bool read_stability_limits(Spec& spec, const ast::Spec& ast_spec, const SpecKeys& given, bool& ok);
   bool read_impedance_limits(Spec& spec, const ast::Spec& ast_spec, const SpecKeys& given, bool& ok);
   bool read_spec_opamp(Spec& spec, const SpecKeys& given);
+  bool read_spec_weight(Spec& spec, const SpecKeys& given);
+  bool weight_fits(SpecKind kind, const ast::Spec& ast_spec, int file);
   bool attach_spec_probe(Spec& spec, const ast::Spec& ast_spec, const SpecKeys& given, int file);
 
   // elaborate_instance.cpp: elements and blocks

@@ -32,7 +32,7 @@ struct UnitSymbol {
   Transform transform;
 };
 
-constexpr std::array<UnitSymbol, 18> kUnits{{
+constexpr std::array<UnitSymbol, 20> kUnits{{
     {"ohm", Dimension::resistance, Transform::scale},
     {"\xCE\xA9", Dimension::resistance, Transform::scale},  // Ω
     {"F", Dimension::capacitance, Transform::scale},
@@ -51,6 +51,8 @@ constexpr std::array<UnitSymbol, 18> kUnits{{
     {"W", Dimension::power, Transform::scale},
     {"deg", Dimension::angle, Transform::scale},
     {"s", Dimension::time, Transform::scale},
+    {"V/C", Dimension::drift, Transform::scale},  // a step of 1 C is a step of 1 K
+    {"V/K", Dimension::drift, Transform::scale},
 }};
 
 std::optional<Unit> decode_unit(std::string_view text) {
@@ -87,6 +89,7 @@ const char* describe(Dimension dimension) {
     case Dimension::angle: return "an angle";
     case Dimension::decibel: return "a level in dB";
     case Dimension::time: return "a time";
+    case Dimension::drift: return "a drift (V/C)";
     case Dimension::any: return "a value";
   }
   return "a value";

@@ -1,5 +1,6 @@
 #include "tacet/report/write_bias.hpp"
 
+#include <algorithm>
 #include <cmath>
 #include <optional>
 
@@ -96,6 +97,29 @@ std::string headroom_table(const HeadroomResult& h) {
   return without_trailing_spaces(table.render());
 }
 
+// Output current at the level: only where some model gives iout_max (a
+// current without its limit is in the JSON).
+std::string current_table(const HeadroomResult& h) {
+  const bool any = std::any_of(h.opamps.begin(), h.opamps.end(),
+                               [](const OpAmpHeadroom& a) { return a.current.available > 0; });
+  if (!any) return {};
+  Table table({"op amp", "output current peak [A]", "at [Hz]", "iout_max [A]", "ok"});
+  for (const auto& a : h.opamps)
+    table.add({a.name, cell(a.current.needed), cell(a.current.frequency),
+               a.current.available > 0 ? cell(a.current.available) : "-",
+               ok_cell(a.current.available > 0, a.current.ok())});
+  return "\n" + table.render();
+}
+
+std::string ripple_section(const HeadroomResult& h) {
+  if (h.ripple_at.empty()) return {};
+  Table table({"op amp", "output", "ripple peak [V]"});
+  for (const auto& r : h.ripple_at) table.add({r.opamp, r.node, cell(r.peak)});
+  return fmt::format("Supply ripple {}V peak at {}Hz, through each model's psrr, at the outputs\n\n",
+                     format_si(h.ripple), format_si(h.ripple_hz)) +
+         table.render() + "\n";
+}
+
 std::string headroom_section(const HeadroomResult& h) {
   if (h.sources.empty())
     return "Headroom: no source declares level= (e.g. vsrc Vin (in, gnd) level=2Vrms "
@@ -106,7 +130,16 @@ std::string headroom_section(const HeadroomResult& h) {
              "Headroom at {}, {}Hz to {}Hz: signal peak plus the DC band against the limits; "
              "margin and slew at the worst frequency\n\n",
              levels, format_si(h.band_low), format_si(h.band_high)) +
-         headroom_table(h) + (h.warnings.empty() ? "" : "\n" + lines(h.warnings, "warning: "));
+         headroom_table(h) + current_table(h) +
+         (h.warnings.empty() ? "" : "\n" + lines(h.warnings, "warning: "));
+}
+
+// The temperatures the band covers, when they are a range.
+std::string range_line(const BiasResult& bias) {
+  if (bias.range.low == bias.range.high) return {};
+  return fmt::format("Ambient range {}C..{}C: vos with its drift, ib_max and ios scaled to the "
+                     "range's worst\n",
+                     format_si(bias.range.low), format_si(bias.range.high));
 }
 
 // --- json ---------------------------------------------------------------------
@@ -149,16 +182,29 @@ json headroom_json(const HeadroomResult& h) {
                        {"available", a.slew.available > 0 ? number(a.slew.available) : json(nullptr)},
                        {"f", number(a.slew.frequency)},
                        {"ok", a.slew.available > 0 ? json(a.slew.ok()) : json(nullptr)}};
+    const json current = {
+        {"needed", number(a.current.needed)},
+        {"available", a.current.available > 0 ? number(a.current.available) : json(nullptr)},
+        {"f", number(a.current.frequency)},
+        {"ok", a.current.available > 0 ? json(a.current.ok()) : json(nullptr)}};
     opamps.push_back({{"name", a.name},
                       {"out", pin_json(a.out, a.has_rails)},
                       {"plus", pin_json(a.plus, a.has_rails)},
                       {"minus", pin_json(a.minus, a.has_rails)},
-                      {"slew", slew}});
+                      {"slew", slew},
+                      {"iout", current}});
   }
   json band = h.sources.empty() ? json(nullptr)
                                 : json{{"from", number(h.band_low)}, {"to", number(h.band_high)}};
-  return {{"sources", sources}, {"band", band},          {"opamps", opamps},
-          {"warnings", h.warnings}, {"cautions", h.cautions}};
+  json out = {{"sources", sources}, {"band", band},          {"opamps", opamps},
+              {"warnings", h.warnings}, {"cautions", h.cautions}};
+  if (!h.ripple_at.empty()) {
+    json at = json::array();
+    for (const auto& r : h.ripple_at)
+      at.push_back({{"opamp", r.opamp}, {"node", r.node}, {"peak", number(r.peak)}});
+    out["ripple"] = {{"peak", number(h.ripple)}, {"f", number(h.ripple_hz)}, {"outputs", at}};
+  }
+  return out;
 }
 
 }  // namespace
@@ -178,12 +224,13 @@ std::string bias_table(const BiasReport& report, const ReportContext& context) {
   std::string out = report_header(context);
   out += lines(headroom.cautions, "");
   out += "DC operating point (capacitors open, inductors shorted); low and high bound each "
-         "output over every vos and ios sign\n\n";
+         "output over every sign of vos, ios and ib_max\n\n";
   out += opamp_table(bias);
   out += bias.warnings.empty() ? "" : "\n" + lines(bias.warnings, "warning: ");
-  out += "\n" + headroom_section(headroom);
+  out += "\n" + ripple_section(headroom) + headroom_section(headroom);
   out += "\nNodes: nominal with each model's ib flowing (typical, not a limit), worst-case band "
-         "over every vos and ios sign at their limits, root-sum-square\n\n";
+         "over every sign of vos, ios and ib_max at their limits, root-sum-square\n";
+  out += range_line(bias) + "\n";
   return out + node_table(bias);
 }
 
@@ -204,6 +251,8 @@ std::string bias_json(const BiasReport& report, const ReportContext& context) {
     offset[n.name] = {{"worst", number(n.worst)}, {"rss", number(n.rss)}};
   }
   for (const auto& a : bias.opamps) opamps.push_back(opamp_json(a));
+  if (bias.range.low != bias.range.high)
+    document["ambient_range"] = {{"low", number(bias.range.low)}, {"high", number(bias.range.high)}};
   document["nodes"] = nodes;
   document["offset"] = offset;
   document["opamps"] = opamps;

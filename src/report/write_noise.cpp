@@ -50,12 +50,44 @@ std::string snr_text(const SignalToNoise& s) {
   return "unbounded: no noise reaches the probe";
 }
 
+// The weighting, said once above the figures it changes.
+std::string weighting_line(const NoiseResult& r) {
+  switch (r.weight) {
+    case Weighting::none: return {};
+    case Weighting::a:
+      return fmt::format("{:<18}A (IEC 61672-1, 0 dB at 1 kHz): totals, rms and shares are weighted\n",
+                         "weighting");
+    case Weighting::itu468:
+      return fmt::format(
+          "{:<18}ITU-R BS.468-4 (0 dB at 1 kHz, rms): totals, rms and shares are weighted\n",
+          "weighting");
+  }
+  return {};
+}
+
+// A noise figure in dB; unbounded where the source's noise does not reach.
+std::string figure_cell(double db) {
+  return std::isfinite(db) ? fmt::format("{:.2f}", db) : std::string("unbounded");
+}
+
+std::string figure_line(const NoiseResult& r) {
+  if (!r.noise_figure_db) return {};
+  const std::string value = std::isfinite(*r.noise_figure_db)
+                                ? fmt::format("{:.2f} dB", *r.noise_figure_db)
+                                : std::string("unbounded");
+  return fmt::format("{:<18}{}  (against the thermal noise of {}{})\n", "noise figure", value,
+                     r.source, r.weight == Weighting::none ? "" : ", weighted");
+}
+
 std::string totals(const NoiseResult& r) {
-  std::string out = total_line("output noise", r.total_rms, unit_of(r));
+  std::string out = weighting_line(r);
+  out += total_line(r.weight == Weighting::none ? "output noise" : "weighted noise", r.total_rms,
+                    unit_of(r));
   if (r.input_referred_rms)
     out += total_line("input-referred", *r.input_referred_rms, r.input_unit);
   else if (!r.input.empty())
     out += fmt::format("{:<18}unbounded\n", "input-referred");
+  out += figure_line(r);
   for (const auto& note : r.notes) out += "note: " + note + "\n";
   if (r.signal) {
     out += fmt::format("{:<18}{} rms  ({} rms at {} x gain at {} Hz)\n", "signal at probe",
@@ -76,7 +108,8 @@ std::string share_cell(const NoiseResult& r, double share) {
 
 std::string contributor_rows(const NoiseResult& r, std::size_t top) {
   if (r.contributors.empty()) return "no noise sources (every part is noiseless)\n";
-  Table table({"source", "mechanism", "rms", "share"}, Table::Align::left);
+  Table table({"source", "mechanism", r.weight == Weighting::none ? "rms" : "weighted rms", "share"},
+              Table::Align::left);
   for (std::size_t k = 0; k < r.contributors.size() && k < top; ++k) {
     const auto& c = r.contributors[k];
     table.add({c.source, to_string(c.mechanism), si_cell(c.rms, unit_of(r)), share_cell(r, c.share)});
@@ -117,6 +150,8 @@ std::string point_rows(const NoiseResult& r) {
     header.push_back("input density [" + r.input_unit + "/rtHz]");
     header.push_back("gain [dB]");
   }
+  const bool figure = !r.spot_noise_figure_db.empty();
+  if (figure) header.push_back("NF [dB]");
   Table table(header);
   for (std::size_t k = 0; k < r.frequencies.size(); ++k) {
     std::vector<std::string> row{format_si_fixed(r.frequencies[k]), si_cell(r.density[k], "")};
@@ -124,6 +159,7 @@ std::string point_rows(const NoiseResult& r) {
       row.push_back(si_cell(r.input_density[k], ""));
       row.push_back(db_cell(std::abs(r.gain[k])));
     }
+    if (figure) row.push_back(figure_cell(r.spot_noise_figure_db[k]));
     table.add(std::move(row));
   }
   return table.render();
@@ -156,6 +192,8 @@ std::string noise_csv(const NoiseResult& r) {
   std::string out = "f_Hz,density_" + unit + "_rtHz";
   const bool input = !r.input.empty();
   if (input) out += ",input_density_" + r.input_unit + "_rtHz,gain_re,gain_im";
+  const bool figure = !r.spot_noise_figure_db.empty();
+  if (figure) out += ",nf_dB";
   out += "\n";
   auto cell = [](double v) { return std::isfinite(v) ? format_exact(v) : std::string(); };
   for (std::size_t k = 0; k < r.frequencies.size(); ++k) {
@@ -163,6 +201,7 @@ std::string noise_csv(const NoiseResult& r) {
     if (input)
       out += "," + cell(r.input_density[k]) + "," + cell(r.gain[k].real()) + "," +
              cell(r.gain[k].imag());
+    if (figure) out += "," + cell(r.spot_noise_figure_db[k]);
     out += "\n";
   }
   return out;
@@ -174,6 +213,7 @@ std::string noise_json(const NoiseResult& r, const ReportContext& context) {
   d["unit"] = unit_of(r);
   d["band"] = {{"from", number(r.band.from)}, {"to", number(r.band.to)}};
   d["temperature_K"] = number(r.temperature_kelvin);
+  if (r.weight != Weighting::none) d["weight"] = to_string(r.weight);
   d["total_rms"] = number(r.total_rms);
   if (!r.input.empty()) {
     d["input"] = r.input;
@@ -183,10 +223,15 @@ std::string noise_json(const NoiseResult& r, const ReportContext& context) {
     d["signal"] = {{"level", number(r.signal->level)}, {"reference", number(r.signal->reference)},
                    {"signal_rms", number(r.signal->signal_rms)},
                    {"snr_db", number(r.signal->ratio_db)}};
+  if (r.noise_figure_db) {
+    d["source"] = r.source;
+    d["noise_figure"] = number(*r.noise_figure_db);
+  }
   json points = json::array();
   for (std::size_t k = 0; k < r.frequencies.size(); ++k) {
     json point{{"f", number(r.frequencies[k])}, {"density", number(r.density[k])}};
     if (!r.input.empty()) point["input_density"] = number(r.input_density[k]);
+    if (!r.spot_noise_figure_db.empty()) point["nf"] = number(r.spot_noise_figure_db[k]);
     points.push_back(point);
   }
   d["points"] = points;

@@ -46,7 +46,7 @@ bool vccs_is_conductance(const Element& e) {
 // The node pairs through which an element lets a node voltage be fixed
 // relative to gnd. Current sources and op-amp inputs do not conduct.
 struct NodePairs {
-  std::array<std::pair<int, int>, 2> pair{};
+  std::array<std::pair<int, int>, 5> pair{};
   int count = 0;
   void add(int a, int b) { pair[static_cast<std::size_t>(count++)] = {a, b}; }
 };
@@ -58,8 +58,11 @@ NodePairs conducting_pairs(const Circuit& circuit, const Element& e, AnalysisKin
   // The paths that depend on more than the kind: its wiring or its model.
   if (e.kind == ElementKind::vccs && vccs_is_conductance(e)) pairs.add(n[0], n[1]);
   if (e.kind == ElementKind::opamp) {
+    const OpAmpModel& m = circuit.model_of(e);
     pairs.add(n[2], 0);
-    if (circuit.model_of(e).rin > 0) pairs.add(n[0], n[1]);
+    if (m.rin > 0) pairs.add(n[0], n[1]);
+    if (kind == AnalysisKind::ac && m.cin_diff > 0) pairs.add(n[0], n[1]);
+    if (kind == AnalysisKind::ac && m.cin_cm > 0) pairs.add(n[0], 0), pairs.add(n[1], 0);
   }
   return pairs;
 }
@@ -193,6 +196,9 @@ void check_no_voltage_loop(const Circuit& circuit, AnalysisKind kind) {
 template <typename T>
 struct StampValues {
   T value, gbw, aol, fp2, rout, rin;
+  // Entries not (yet) differentiated: the common-mode error k(s) = k0 + k1 s
+  // and the input capacitances.
+  double k0 = 0, k1 = 0, cin_diff = 0, cin_cm = 0;
 };
 
 // One matrix entry c0 + c1 s + c2 s^2 of scalar type T.
@@ -255,6 +261,10 @@ StampValues<T> stamp_values(const Circuit& circuit, std::size_t i, const Paramet
     p.fp2 = seeded(m.fp2, ParameterKey::fp2);
     p.rout = seeded(m.rout, ParameterKey::rout);
     p.rin = seeded(m.rin, ParameterKey::rin);
+    p.k0 = m.cmrr > 0 ? 0.5 / m.cmrr : 0.0;
+    p.k1 = m.cmrr > 0 && m.fcmrr > 0 ? p.k0 / (kTwoPi * m.fcmrr) : 0.0;
+    p.cin_diff = m.cin_diff;
+    p.cin_cm = m.cin_cm;
   }
   return p;
 }
@@ -309,9 +319,12 @@ void stamp_element(const Element& e, const StampValues<T>& p, const ElementUnkno
       const T inv_wp2 = value_of(p.fp2) > 0 ? one / (T(kTwoPi) * p.fp2) : zero;
       add(source, br, {one, zero, zero});
       add(br, source, {one / p.aol, (one / wp + inv_wp2) / p.aol, inv_wp2 / (wp * p.aol)});
-      add(br, x[0], {-one, zero, zero}), add(br, x[1], {one, zero, zero});
+      // -d(s) = -(1 + k(s)) v+ + (1 - k(s)) v-, k(s) = k0 + k1 s (common-mode error).
+      add(br, x[0], {-one - T(p.k0), -T(p.k1), zero}), add(br, x[1], {one - T(p.k0), -T(p.k1), zero});
       if (value_of(p.rout) > 0) admittance(source, x[2], {one / p.rout, zero, zero});
       if (value_of(p.rin) > 0) admittance(x[0], x[1], {one / p.rin, zero, zero});
+      if (p.cin_diff > 0) admittance(x[0], x[1], {zero, T(p.cin_diff), zero});
+      if (p.cin_cm > 0) admittance(x[0], -1, {zero, T(p.cin_cm), zero}), admittance(x[1], -1, {zero, T(p.cin_cm), zero});
       break;
     }
   }
@@ -634,6 +647,12 @@ void MnaSystem::add_excitation(std::size_t element, std::complex<double> phasor,
 }
 
 // --- names and lookups -------------------------------------------------------
+
+std::complex<double> common_mode_feedthrough(const OpAmpModel& m, std::complex<double> s) {
+  if (!(m.cmrr > 0)) return {};
+  const std::complex<double> rolloff = m.fcmrr > 0 ? 1.0 + s / (kTwoPi * m.fcmrr) : 1.0;
+  return rolloff / (2 * m.cmrr);
+}
 
 int MnaSystem::opamp_gain_row(std::size_t element) const {
   return circuit_->elements[element].kind == ElementKind::opamp ? branch_of_[element] : -1;

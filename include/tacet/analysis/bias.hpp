@@ -17,6 +17,18 @@
 //   rss_n   = sqrt(sum_j (S_nj limit_j)^2)  (a statistical estimate).
 // An op-amp output is then bounded by nominal -/+ worst and checked against
 // [rail_low + swing, rail_high - swing].
+//
+// Temperature and limits (dc_limits): the model's vos, ib, ib_max and ios are
+// at 25 C. Over the ambient range [T1, T2] (Circuit::ambient_range, else the
+// ambient alone):
+//   vos limit = |vos| + |vos_drift| max(|T1 - 25|, |T2 - 25|);
+//   currents scale by 2^((T - 25)/ib_double) (no scaling without ib_double):
+//   ios limit = |ios| 2^((T2 - 25)/d); the nominal ib = ib 2^((Tambient - 25)/d);
+//   ib_max band = the largest departure of the bias current's magnitude from
+//   that nominal over the range: max(ib_max 2^((T2-25)/d) - |ib nominal|,
+//   |ib nominal| - |ib| 2^((T1-25)/d), 0), a source of unknown sign drawn
+//   into both pins alike (ib_max defaults to |ib|, so without ib_max and a
+//   range it is 0).
 
 #include <cstddef>
 #include <limits>
@@ -34,8 +46,10 @@ struct BiasOptions {
 };
 
 /// Which DC error of an op amp a contribution comes from.
-enum class DcErrorKind { vos, ios, ib };
-/// "vos", "ios", "ib".
+/// ib is the nominal shift of the typical bias current; ib_max the band term
+/// of its worst departure from typical (ib_max and temperature).
+enum class DcErrorKind { vos, ios, ib, ib_max };
+/// "vos", "ios", "ib", "ib_max".
 const char* to_string(DcErrorKind kind);
 
 /// One DC error's share at a node.
@@ -72,7 +86,17 @@ struct OpAmpBias {
   std::vector<OffsetContribution> largest;  ///< up to three, largest |volts| first
 };
 
+/// An op amp's DC error limits over the circuit's ambient range (see above).
+struct DcLimits {
+  double vos = 0;        ///< V, magnitude with drift
+  double ios = 0;        ///< A, magnitude at the hottest
+  double ib = 0;         ///< A, signed: the typical current at the ambient
+  double ib_excess = 0;  ///< A, the worst departure of |ib| from typical over the range
+};
+DcLimits dc_limits(const Circuit& circuit, const OpAmpModel& model);
+
 struct BiasResult {
+  AmbientRange range;             ///< C, the temperatures the band covers
   std::vector<NodeBias> nodes;    ///< node id k at index k - 1 (gnd left out)
   std::vector<OpAmpBias> opamps;  ///< in the order of the netlist
   std::vector<std::string> warnings;  ///< for people: saturation, unchecked rails

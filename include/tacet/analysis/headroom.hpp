@@ -16,6 +16,17 @@
 //           counts as 0: an input may not go past its supply).
 // The margin is the smaller distance to the two limits (negative: exceeded).
 // The slew rate a sine needs is its largest slope, 2 pi f Vp, against `slew`.
+// The output current is the peak of the current the op amp's output branch
+// delivers (into the feedback network and the load alike), |I(f)| summed over
+// the level sources like the voltages, against the model's `iout_max`; the
+// DC output current is not part of it (the DC point carries no load current
+// unless a source biases one).
+//
+// Supply ripple: with `supply ... ripple=R ripple_f=F`, every op amp k whose
+// model gives psrr sees e_k = R/psrr_k in series with its + input (a source on
+// its gain row, like vos). The ripple at node n is sum_k |H_kn(F)| e_k, the
+// worst relative phase of the op amps' errors, on the AC factorisation at F.
+// It is reported at every op-amp output (no level= needed).
 //
 // Cautions: a declared level above 30 V rms or 42.4 V peak (the usual
 // extra-low-voltage limits) is reported as hazardous; tacet defers to local
@@ -78,15 +89,33 @@ struct SlewHeadroom {
   bool ok() const { return available == 0 || needed <= available; }
 };
 
+struct CurrentHeadroom {
+  double needed = 0;     ///< A, largest peak output current over the band
+  double available = 0;  ///< A, the model's iout_max; 0: not given
+  double frequency = 0;  ///< Hz, where the need is largest
+  bool ok() const { return available == 0 || needed <= available; }
+};
+
 struct OpAmpHeadroom {
   std::string name;
   bool has_rails = false;     ///< false: no pin was checked
   bool has_cm_range = false;  ///< the model gives vcm_low or vcm_high
   PinHeadroom out, plus, minus;
   SlewHeadroom slew;
+  CurrentHeadroom current;
+};
+
+/// The supply ripple that reaches an op amp's output.
+struct RippleAtOutput {
+  std::string opamp;
+  std::string node;  ///< its output node
+  double peak = 0;   ///< V peak at the ripple frequency
 };
 
 struct HeadroomResult {
+  double ripple = 0;                 ///< V peak on the rails; 0: none declared
+  double ripple_hz = 0;              ///< Hz
+  std::vector<RippleAtOutput> ripple_at;  ///< per op amp; empty without ripple or psrr
   std::vector<LevelSource> sources;  ///< empty: no source declares level=
   double band_low = 0;               ///< Hz
   double band_high = 0;              ///< Hz

@@ -10,6 +10,9 @@
 // One solve per op amp on the closed-loop factorisation gives h: a unit
 // voltage e in series with the + input (rhs of the op amp's gain row) makes
 // v_x / A - d = e, so d = h v_x and h = d / v_x, each read from the solution.
+// d is what the gain source amplifies: v+ - v- plus the common-mode error
+// k(s)(v+ + v-) of a model with cmrr (solve/mna.hpp); input capacitances are
+// part of the network like any other capacitor.
 // Both are components of one solve, so no difference of nearly equal numbers
 // is formed at either end of the range (|T| >> 1 or |T| << 1).
 //

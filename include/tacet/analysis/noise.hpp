@@ -29,6 +29,19 @@
 //
 // Band totals come from integrate_band (adaptive Gauss-Kronrod in ln f), not
 // from the printed sweep: total_rms = sqrt(integral of S over the band).
+//
+// Weighted (`weight`, analysis/weighting.hpp): every band figure integrates
+// S(f) |W(f)|^2 instead of S(f): total_rms, each contributor's rms and the
+// input-referred total are then weighted figures (and so is the SNR). The
+// densities printed per point stay unweighted: a spot density is the
+// circuit's, the weighting belongs to the measurement over the band.
+//
+// Noise figure against a source resistor Rs (`source`): with S_Rs(f) the
+// part of S(f) from Rs's own thermal noise, the spot figure is
+// NF(f) = 10 log10(S(f) / S_Rs(f)) dB and the band figure is
+// NF = 10 log10(integral S |W|^2 / integral S_Rs |W|^2) dB (Friis's noise
+// factor, with Rs at the circuit's ambient rather than at 290 K). Where Rs's
+// noise does not reach the probe the figure is unbounded.
 
 #include <complex>
 #include <cstddef>
@@ -37,6 +50,7 @@
 #include <vector>
 
 #include "tacet/analysis/ac.hpp"
+#include "tacet/circuit/weighting.hpp"
 #include "tacet/circuit/band.hpp"
 #include "tacet/circuit/circuit.hpp"
 #include "tacet/solve/probe.hpp"
@@ -65,6 +79,8 @@ struct NoiseOptions {
   /// How many of the largest contributors get their density at every printed
   /// point (for pictures); their band shares are computed for all of them.
   std::size_t curves = 6;
+  Weighting weight = Weighting::none;  ///< applied to every band figure
+  std::string source;         ///< a resistor's name: noise figure against its thermal noise
   /// Empty when valid, else a message naming the option, its value and the rule.
   std::string validate() const;
 };
@@ -110,6 +126,14 @@ struct NoiseResult {
   std::vector<NoiseContributor> contributors;  ///< largest share first
   std::vector<ContributorDensity> contributor_density;  ///< the first `curves` contributors
   std::optional<SignalToNoise> signal;
+  Weighting weight = Weighting::none;     ///< the weighting of the band figures
+  std::string source;                     ///< the noise figure's source resistor; empty: none
+  /// Per point, 10 log10(S / S_source), dB; +inf where the source's noise does
+  /// not reach the probe (empty without a source).
+  std::vector<double> spot_noise_figure_db;
+  /// Over the band (weighted with `weight`), dB; +inf when the source's noise
+  /// does not reach the probe (unset without a source).
+  std::optional<double> noise_figure_db;
   int band_evaluations = 0;               ///< adjoint solves spent on the band integral
   std::vector<std::string> notes;         ///< for people: what a figure cannot say, and why
 };

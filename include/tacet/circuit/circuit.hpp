@@ -53,6 +53,20 @@ struct OpAmpModel {
   double slew = 0;       ///< slew rate, V/s; 0: not given
   std::optional<double> vcm_low;   ///< inputs must stay this far above the low rail, V
   std::optional<double> vcm_high;  ///< inputs must stay this far below the high rail, V
+  /// Common-mode rejection at DC, V/V (written in dB: `cmrr 100dB`); 0: none
+  /// (infinite rejection). The gain source sees v+ + ((v+ + v-)/2)/CMRR(f) - v-,
+  /// CMRR(f) = cmrr / (1 + j f/fcmrr).
+  double cmrr = 0;
+  double fcmrr = 0;      ///< Hz where the CMRR starts to fall 20 dB/decade; 0: no roll-off
+  double cin_diff = 0;   ///< capacitance between the inputs, F
+  double cin_cm = 0;     ///< capacitance from each input to gnd, F
+  /// Power-supply rejection, V/V (written in dB); 0: none given. A supply
+  /// ripple r appears as r / psrr in series with the + input.
+  double psrr = 0;
+  std::optional<double> ib_max;  ///< worst bias current magnitude at 25 C, A; `ib` stays typical
+  double vos_drift = 0;  ///< largest offset drift magnitude, V/C (from 25 C)
+  double ib_double = 0;  ///< C per doubling of ib and ios above 25 C; 0: no temperature dependence
+  double iout_max = 0;   ///< largest output current magnitude, A; 0: not given
   std::vector<ModelTolerance> tolerances;  ///< the parameters that spread, in the order written
   Distribution dist = Distribution::uniform;  ///< how every one of them spreads
   SourceLocation where;
@@ -64,6 +78,18 @@ struct OpAmpModel {
 const std::vector<std::string>& toleranced_model_keys();
 /// The field of a toleranced key ("gbw" -> &model.gbw); nullptr for any other key.
 double* model_parameter(OpAmpModel& model, std::string_view key);
+
+/// The ripple frequency when `ripple_f=` is not given: full-wave rectified 50 Hz mains.
+inline constexpr double kDefaultRippleHz = 100.0;
+
+/// The temperature the model's vos, ib, ib_max and ios are given at, C.
+inline constexpr double kModelReferenceCelsius = 25.0;
+
+/// An ambient range the DC errors are taken over (`--ambient-range 0C..70C`), C.
+struct AmbientRange {
+  double low = 0;
+  double high = 0;
+};
 
 /// How a source's largest level was written: `level=40Vrms`, `level=56.6Vpk`
 /// or `level=200W load=8ohm` (power into a load, P = V_rms^2 / R).
@@ -123,7 +149,10 @@ std::string ambient_problem(double celsius);
 struct Circuit {
   std::string title;
   double ambient_celsius = 25.0;
+  std::optional<AmbientRange> ambient_range;  ///< the offsets' temperature range; none: the ambient
   std::optional<Rails> supply;
+  double supply_ripple = 0;  ///< V peak of ripple on the rails (`ripple=` on supply); 0: none
+  double supply_ripple_hz = 100;  ///< Hz, its frequency (`ripple_f=`)
   std::vector<std::string> node_names{"gnd"};  ///< index = node id
   std::vector<Element> elements;
   std::vector<OpAmpModel> models;

@@ -9,6 +9,7 @@
 #include <vector>
 
 #include "tacet/circuit/curves.hpp"
+#include "tacet/circuit/weighting.hpp"
 #include "tacet/language/source.hpp"
 
 namespace tacet {
@@ -82,6 +83,7 @@ struct Spec {
   bool relative = false;  ///< mask: bounds re |H(ref)| (ref= given), else re 1 V/V (or 1 A/V)
   double band = 1e-4;     ///< settling: the band about final, a fraction of it
   std::string opamp;      ///< phase_margin, gain_margin: the op amp whose loop is measured
+  Weighting weight = Weighting::none;  ///< noise, snr: weight= on the band total
 };
 
 }  // namespace tacet

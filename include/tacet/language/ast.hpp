@@ -97,13 +97,17 @@ struct Include : Located {
   std::string path;  ///< as written, without quotes
 };
 
+/// `ambient 40C`, or a range `ambient 0C..70C` (then `high` is its hot end).
 struct Ambient : Located {
   Expr value;
+  boost::optional<Expr> high;
 };
 
+/// `supply +15V -15V ripple=10mV ripple_f=100Hz`: the rails and their options.
 struct Supply : Located {
   Expr high;
   Expr low;
+  std::vector<Option> options;
 };
 
 struct Param : Located {

@@ -29,6 +29,7 @@ enum class Dimension {
   angle,        ///< degrees: deg
   decibel,      ///< a level in dB, kept in dB: plain or with dB (spec limits)
   time,         ///< s (settle: --to, a settling spec's max)
+  drift,        ///< V/C (also V/K: the same step), an offset's temperature coefficient
   any,          ///< params and block arguments: every unit accepted
 };
 

@@ -24,13 +24,14 @@ const Writers<NoiseResult>& noise_writers();
 std::string noise_table(const NoiseResult& result, const ReportContext& context,
                         std::size_t top = 10);
 
-/// Columns: f_Hz, density_U_rtHz, [input_density_U_rtHz, gain_re, gain_im].
+/// Columns: f_Hz, density_U_rtHz, [input_density_U_rtHz, gain_re, gain_im], [nf_dB].
 std::string noise_csv(const NoiseResult& result);
 
 /// {"analysis":"noise","file","title","probe","unit","band":{"from","to"},
-///  "temperature_K","total_rms","input","input_referred_rms" (with --input),
-///  "signal":{"level","reference","signal_rms","snr_db"} (with --level),
-///  "points":[{"f","density","input_density"}],
+///  "temperature_K","weight" (with --weight),"total_rms","input","input_referred_rms"
+///  (with --input), "signal":{"level","reference","signal_rms","snr_db"} (with --level),
+///  "source","noise_figure" (with --source, dB),
+///  "points":[{"f","density","input_density","nf"}],
 ///  "contributors":[{"source","mechanism","rms","share"}]}; null for non-finite.
 std::string noise_json(const NoiseResult& result, const ReportContext& context);
 

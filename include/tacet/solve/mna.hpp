@@ -16,20 +16,28 @@
 //   vsource  v+ - v- = V
 //   inductor va - vb - s L i = 0
 //   vcvs     vo+ - vo- - gain (vc+ - vc-) = 0
-//   op amp   v_x / A(s) - (v+ - v-) = 0,  A(s) = aol / ((1 + s/wp)(1 + s/wp2)),
+//   op amp   v_x / A(s) - d(s) = 0,  A(s) = aol / ((1 + s/wp)(1 + s/wp2)),
 //            wp = 2 pi gbw / aol, wp2 = 2 pi fp2 (factor absent when fp2 = 0);
 //            v_x is the output pin (rout = 0) or the internal node (rout > 0).
 //            Dividing by A keeps the row well scaled for aol up to 1e9 and more.
+//            d(s) = v+ + ((v+ + v-)/2)/CMRR(s) - v-: the common-mode error is
+//            an input-referred voltage in series with the + input, with
+//            1/CMRR(s) = (1 + s/wc)/cmrr, wc = 2 pi fcmrr (no s term without
+//            fcmrr; no error at all without cmrr), so d = v+ - v- + k(s)(v+ + v-)
+//            with k(s) = common_mode_feedthrough(model, s).
+//            cin_diff stamps a capacitor between the inputs, cin_cm one from
+//            each input to gnd; rin a resistor between the inputs.
 // Stiff parts: a resistor (capacitor) between two nodes whose conductance
-// (capacitance) is more than kStiffRatio times the smallest of its kind at
-// either node would, stamped on node voltages, be summed with its neighbours
-// in one entry, where 1e6 + 1e-12 is 1e6: a 1 Tohm - 1 uohm - 1 Tohm divider
-// would be singular. Its nodes are written as a root voltage and small
-// differences instead, and the part stamps only on the differences, so no
-// entry sums values that far apart and the small voltage across it is an
-// unknown of its own, exact to the last digit. Rows stay Kirchhoff's law at
-// each node; only what a node's column means changes. Read node voltages
-// with node_voltage() or voltage_terms(), never as x[node_unknown(node)].
+// (capacitance) is more than kStiffRatio times the sum of the small ones of
+// its kind at each of its nodes would, stamped on node voltages, be summed
+// with its neighbours in one entry, where 1e6 + 1e-12 is 1e6: a 1 Tohm -
+// 1 uohm - 1 Tohm divider would be singular. Its nodes are written as a root
+// voltage and small differences instead, and the part stamps only on the
+// differences, so no entry sums values that far apart and the small voltage
+// across it is an unknown of its own, exact to the last digit. Rows stay
+// Kirchhoff's law at each node; only what a node's column means changes. Read
+// node voltages with node_voltage() or voltage_terms(), never as
+// x[node_unknown(node)].
 //
 // Every matrix entry is a polynomial c0 + c1 s + c2 s^2 of the Laplace
 // variable s = j 2 pi f, so the pattern and its coefficients are computed once
@@ -72,6 +80,10 @@ struct Parameter {
   ParameterKey key;
   double value;         ///< SI, as the circuit holds it
 };
+
+/// k(s) = (1 + s/(2 pi fcmrr)) / (2 cmrr): how much of v+ + v- the op amp's
+/// gain source sees on top of v+ - v- (0 without cmrr).
+std::complex<double> common_mode_feedthrough(const OpAmpModel& model, std::complex<double> s);
 
 /// The SolveError for a matrix found singular at f (Hz; 0 reads "at DC"):
 /// names the unknown of the singular column when the factorisation knows it.

@@ -68,6 +68,7 @@ struct check_quantity_end : annotate_location {
     annotate_location::on_success(first, last, node, context);
     const ParseState& state = x3::get<state_tag>(context);
     if (last == state.end || !is_word_byte(*last)) return;
+    if (*last == '.' && last + 1 != state.end && *(last + 1) == '.') return;  // a range, 0C..70C
     iterator_type tail = last;
     while (tail != state.end && is_word_byte(*tail)) ++tail;
     const std::string token(first, tail);
@@ -386,7 +387,6 @@ inline unknown_statement_parser<true> const unknown_block_statement{};
 
 inline auto const set_title = [](auto& ctx) { x3::_val(ctx).text = x3::_attr(ctx); };
 inline auto const set_include = [](auto& ctx) { x3::_val(ctx).path = x3::_attr(ctx); };
-inline auto const set_ambient = [](auto& ctx) { x3::_val(ctx).value = x3::_attr(ctx); };
 
 inline auto const no_value = x3::attr(boost::optional<ast::Expr>{});
 inline auto const no_polarity = x3::attr('\0');
@@ -408,8 +408,8 @@ inline auto const title_text_def = (keyword_of(x3::lit("title")) > string)[set_t
 inline auto const include_def = include_text;
 inline auto const include_text_def = (keyword_of(x3::lit("include")) > string)[set_include];
 inline auto const ambient_def = ambient_text;
-inline auto const ambient_text_def = (keyword_of(x3::lit("ambient")) > term)[set_ambient];
-inline auto const supply_def = keyword_of(x3::lit("supply")) > term > term;
+inline auto const ambient_text_def = keyword_of(x3::lit("ambient")) > term > -(x3::lit("..") > term);
+inline auto const supply_def = keyword_of(x3::lit("supply")) > term > term > *option;
 inline auto const param_def = keyword_of(x3::lit("param")) > identifier > param_equals > expression;
 
 inline auto const terminal_def = (x3::char_("+-") | no_polarity) >> node;

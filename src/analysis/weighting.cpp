@@ -1,0 +1,51 @@
+#include "tacet/analysis/weighting.hpp"
+
+#include <cmath>
+
+namespace tacet {
+namespace {
+
+// IEC 61672-1 annex E pole frequencies, Hz.
+constexpr double kA1 = 20.598997, kA2 = 107.65265, kA3 = 737.86223, kA4 = 12194.217;
+
+double a_prototype(double f) {
+  const double f2 = f * f;
+  return kA4 * kA4 * f2 * f2 /
+         ((f2 + kA1 * kA1) * std::sqrt((f2 + kA2 * kA2) * (f2 + kA3 * kA3)) * (f2 + kA4 * kA4));
+}
+
+double itu468_prototype(double f) {
+  const double f2 = f * f, f3 = f2 * f, f4 = f2 * f2, f5 = f4 * f, f6 = f4 * f2;
+  const double h1 = -4.737338981378384e-24 * f6 + 2.043828333606125e-15 * f4 -
+                    1.363894795463638e-07 * f2 + 1;
+  const double h2 = 1.306612257412824e-19 * f5 - 2.118150887518656e-11 * f3 +
+                    5.559488023498642e-04 * f;
+  return 1.246332637532143e-04 * f / std::sqrt(h1 * h1 + h2 * h2);
+}
+
+}  // namespace
+
+double a_weighting(double f) {
+  static const double at_1k = a_prototype(1000);
+  return a_prototype(f) / at_1k;
+}
+
+double itu468_weighting(double f) {
+  static const double at_1k = itu468_prototype(1000);
+  return itu468_prototype(f) / at_1k;
+}
+
+double weighting_gain(Weighting weighting, double f) {
+  switch (weighting) {
+    case Weighting::none: return 1;
+    case Weighting::a: return a_weighting(f);
+    case Weighting::itu468: return itu468_weighting(f);
+  }
+  return 1;
+}
+
+double weighting_db(Weighting weighting, double f) {
+  return 20 * std::log10(weighting_gain(weighting, f));
+}
+
+}  // namespace tacet

@@ -1,0 +1,4 @@
+bias
+@/bias_ambient_range.tacet
+--ambient-range
+70C..0C

@@ -1,0 +1,2 @@
+bias
+@/bias_range_netlist_inverted.tacet

@@ -1,0 +1,2 @@
+bias
+@/bias_ambient_range.tacet

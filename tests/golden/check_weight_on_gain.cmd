@@ -1,0 +1,2 @@
+check
+@/check_weight_on_gain.tacet

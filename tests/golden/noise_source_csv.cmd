@@ -1,0 +1,12 @@
+noise
+@/rc_lowpass.tacet
+--probe
+out
+--band
+20..20k
+--at
+20,1k,20k
+--source
+R1
+--format
+csv

@@ -1,0 +1,12 @@
+noise
+@/rc_lowpass.tacet
+--probe
+out
+--band
+20..20k
+--at
+1k
+--weight
+a
+--format
+json

@@ -1,0 +1,2 @@
+show
+@/bias_ambient_range.tacet
