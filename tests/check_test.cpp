@@ -422,6 +422,7 @@ TEST_CASE("settling and overshoot specs refuse bad keys where they are written",
         "main.tacet:6:6: error: spec 's' needs input=: the circuit has 2 sources with an ac value");
   CHECK(first_line("spec s settling (out) max=1ms bnd=1%", kRc) ==
         "main.tacet:4:31: error: a settling spec takes no option 'bnd'");
+}
 
 TEST_CASE("a weighted noise spec measures the weighted band total of tacet noise --weight",
           "[check][noise][weighting]") {

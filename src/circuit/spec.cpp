@@ -6,7 +6,7 @@ namespace tacet {
 
 namespace {
 
-constexpr std::array<std::pair<SpecKind, const char*>, 16> kKindNames{{
+constexpr std::array<std::pair<SpecKind, const char*>, 18> kKindNames{{
     {SpecKind::gain, "gain"},
     {SpecKind::flatness, "flatness"},
     {SpecKind::phase, "phase"},
