@@ -152,6 +152,8 @@ std::string circuit_fingerprint(const Circuit& c) {
   // Every number in shortest round-trip form: any change of value changes the text.
   std::string text = fmt::format("ambient {}\n", c.ambient_celsius);
   if (c.supply) text += fmt::format("supply {} {}\n", c.supply->high, c.supply->low);
+  text += fmt::format("ripple {} {}\n", c.supply_ripple, c.supply_ripple_hz);
+  if (c.ambient_range) text += fmt::format("ambient range {} {}\n", c.ambient_range->low, c.ambient_range->high);
   for (const std::string& node : c.node_names) text += node + "\n";
   for (const Element& e : c.elements) {
     text += fmt::format("{} {} [{}] {} {} {} {} tol {} {} {} {} {} {}", to_keyword(e.kind), e.name,
@@ -165,13 +167,17 @@ std::string circuit_fingerprint(const Circuit& c) {
     text += fmt::format("model {} {} {} {} {} {} {} {} {} {} {} {} {} {} {} {} {} {}", m.name, m.gbw, m.aol,
                         m.fp2, m.rout, m.rin, m.en, m.fce, m.in, m.fci, m.vos, m.ib, m.ios, m.swing,
                         m.slew, m.vcm_low.value_or(-1e300), m.vcm_high.value_or(-1e300), to_string(m.dist));
+    text += fmt::format(" {} {} {} {} {} {} {} {} {}", m.cmrr, m.fcmrr, m.cin_diff, m.cin_cm, m.psrr,
+                        m.ib_max.value_or(-1e300), m.vos_drift, m.ib_double, m.iout_max);
     for (const ModelTolerance& t : m.tolerances) text += fmt::format(" {} {}", t.key, t.tolerance);
     text += "\n";
   }
   for (const Spec& s : c.specs)
     text += fmt::format("spec {} {} {} {} {} {} {} {} {} {} {} {} {} {}\n", s.name, to_string(s.kind), s.probe,
                         s.at, s.from, s.to, s.ref, s.drop, s.min.value_or(-1e300), s.max.value_or(-1e300),
-                        to_string(s.unit), s.input, s.level, s.margin);
+                        to_string(s.unit), s.input, s.level, s.margin) +
+            fmt::format("  {} {} {} {} {}\n", s.opamp, s.band, static_cast<int>(s.weight), s.relative,
+                        s.mask.size());
   return fmt::format("{:016x}", spread_random::fnv1a(text));
 }
 
