@@ -1,18 +1,12 @@
 #include "tacet/analysis/weighting.hpp"
 
 #include <cmath>
+#include <complex>
+
+#include "tacet/circuit/curves.hpp"
 
 namespace tacet {
 namespace {
-
-// IEC 61672-1 annex E pole frequencies, Hz.
-constexpr double kA1 = 20.598997, kA2 = 107.65265, kA3 = 737.86223, kA4 = 12194.217;
-
-double a_prototype(double f) {
-  const double f2 = f * f;
-  return kA4 * kA4 * f2 * f2 /
-         ((f2 + kA1 * kA1) * std::sqrt((f2 + kA2 * kA2) * (f2 + kA3 * kA3)) * (f2 + kA4 * kA4));
-}
 
 double itu468_prototype(double f) {
   const double f2 = f * f, f3 = f2 * f, f4 = f2 * f2, f5 = f4 * f, f6 = f4 * f2;
@@ -25,9 +19,11 @@ double itu468_prototype(double f) {
 
 }  // namespace
 
+// One A curve for targets and noise weighting: the curve table's (IEC 61672-1,
+// normalised to 0 dB at 1 kHz), read as a magnitude.
 double a_weighting(double f) {
-  static const double at_1k = a_prototype(1000);
-  return a_prototype(f) / at_1k;
+  static const BuiltinCurve* const curve = find_builtin_curve("a_weighting");
+  return std::abs(curve_at(*curve, f));
 }
 
 double itu468_weighting(double f) {
