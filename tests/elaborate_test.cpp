@@ -445,7 +445,7 @@ TEST_CASE("a byte that is not UTF-8 is reported at its line and column, unquoted
 }
 
 TEST_CASE("a NUL byte is an error, not the end of every message after it", "[elaborate]") {
-  const auto result = testing::elaborate_text(std::string("res R1 (a, gnd) 1k\nres R2\0 (a, gnd) 1k\n", 41));
+  const auto result = testing::elaborate_text(std::string("res R1 (a, gnd) 1k\nres R2") + '\0' + " (a, gnd) 1k\n");
   CHECK_FALSE(result.circuit);
   CHECK(result.diagnostics.find("main.tacet:2:7: error: a NUL byte: a netlist is text") == 0);
 }

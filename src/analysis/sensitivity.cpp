@@ -96,7 +96,7 @@ SensitivityResult run_sensitivity(const Circuit& circuit, const SensitivityOptio
       throw InputError::usage(
           fmt::format("--input does not apply to the impedance probe '{}'", result.probe.text),
           "an impedance is driven by its own test current; leave --input out");
-    drive.source = resolve_input_source(options.input, circuit);
+    drive.source = resolve_source(options.input, circuit, "--input");
     result.input = options.input;
   }
   FrequencyResponse response(circuit);

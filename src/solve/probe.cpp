@@ -72,25 +72,22 @@ Probe resolve_probe(const std::string& text, const Circuit& circuit) {
   return probe;
 }
 
-std::size_t resolve_input_source(const std::string& name, const Circuit& circuit) {
+std::size_t resolve_source(const std::string& name, const Circuit& circuit, std::string_view flag) {
   std::vector<std::string> sources;
-  for (const auto& e : circuit.elements)
+  for (const Element& e : circuit.elements)
     if (traits(e.kind).drive != Drive::none) sources.push_back(e.name);
-  const std::string listed = sources.empty()
-                                 ? "the circuit has none"
-                                 : fmt::format("the sources are {}", fmt::join(sources, ", "));
-  const auto found = circuit.find_element(name);
-  if (!found) {
+  const std::string listed = sources.empty() ? "the circuit has none"
+                                             : "the sources are " + fmt::format("{}", fmt::join(sources, ", "));
+  const auto index = circuit.find_element(name);
+  if (index && traits(circuit.elements[*index].kind).drive != Drive::none) return *index;
+  if (!index) {
     const std::string near = nearest_word(name, sources);
-    throw InputError::usage(fmt::format("--input '{}' is not an element of the circuit", name),
+    throw InputError::usage(fmt::format("{} '{}' is not an element of the circuit", flag, name),
                             near.empty() ? listed : "did you mean '" + near + "'?");
   }
-  const Element& e = circuit.elements[*found];
-  if (traits(e.kind).drive == Drive::none)
-    throw InputError::usage(
-        fmt::format("--input '{}' is a {}, not a source", name, to_keyword(e.kind)),
-        "name a vsrc or isrc; " + listed);
-  return *found;
+  throw InputError::usage(
+      fmt::format("{} '{}' is a {}, not a source", flag, name, to_keyword(circuit.elements[*index].kind)),
+      "name a vsrc or isrc; " + listed);
 }
 
 const char* probe_unit(const Probe& probe) {

@@ -115,24 +115,6 @@ std::complex<double> FrequencyResponse::value_after_solve(const Probe& probe, do
   return v;
 }
 
-std::size_t resolve_source(const std::string& name, const Circuit& circuit, std::string_view flag) {
-  std::vector<std::string> sources;
-  for (const Element& e : circuit.elements)
-    if (traits(e.kind).drive != Drive::none) sources.push_back(e.name);
-  const std::string listed = sources.empty() ? "the circuit has none"
-                                             : "the sources are " + fmt::format("{}", fmt::join(sources, ", "));
-  const auto index = circuit.find_element(name);
-  if (index && traits(circuit.elements[*index].kind).drive != Drive::none) return *index;
-  if (!index) {
-    const std::string near = nearest_word(name, sources);
-    throw InputError::usage(fmt::format("{} '{}' is not an element of the circuit", flag, name),
-                            near.empty() ? listed : "did you mean '" + near + "'?");
-  }
-  throw InputError::usage(
-      fmt::format("{} '{}' is a {}, not a source", flag, name, to_keyword(circuit.elements[*index].kind)),
-      "name a vsrc or isrc; " + listed);
-}
-
 std::complex<double> FrequencyResponse::at(const Probe& probe, double f) {
   solve_at(f);
   return value(probe);

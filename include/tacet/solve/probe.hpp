@@ -18,6 +18,7 @@
 #include <complex>
 #include <cstddef>
 #include <string>
+#include <string_view>
 #include <vector>
 
 #include "tacet/circuit/circuit.hpp"
@@ -39,10 +40,10 @@ struct Probe {
 /// unknown node or element, with the nearest name as a hint.
 Probe resolve_probe(const std::string& text, const Circuit& circuit);
 
-/// The source an `--input NAME` flag names (noise, sensitivity): its element
-/// index. Throws InputError for a name that is no element (with the nearest
-/// source) or an element that is no source (with the list of sources).
-std::size_t resolve_input_source(const std::string& name, const Circuit& circuit);
+/// The element index of the independent source `name`, for `--input` and
+/// `input=`. Throws InputError naming the circuit's sources when `name` is
+/// not one; `flag` is how the caller's user wrote it ("--input").
+std::size_t resolve_source(const std::string& name, const Circuit& circuit, std::string_view flag);
 
 /// The unit a probe's values carry: "V", "A" or "ohm".
 const char* probe_unit(const Probe& probe);

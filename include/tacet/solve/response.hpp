@@ -70,9 +70,5 @@ class FrequencyResponse {
   std::size_t single_source_ = 0;  ///< the source of w_
 };
 
-/// The element index of the independent source `name`, for `--input` and
-/// `input=`. Throws InputError naming the circuit's sources when `name` is
-/// not one; `flag` is how the caller's user wrote it ("--input").
-std::size_t resolve_source(const std::string& name, const Circuit& circuit, std::string_view flag);
 
 }  // namespace tacet
