@@ -44,25 +44,31 @@ constexpr int kRefinements = 3;
       "other (a negative resistance or a controlled source undoing a resistor)");
 }
 
+// The buffers one checked solve works in, kept by the solver so that a
+// refinement step allocates nothing after the first.
+template <typename T>
+struct RefineBuffers {
+  std::vector<T> r, candidate, candidate_r;
+  std::vector<double> scale, candidate_scale;
+};
+
 // Refinement of one right-hand side: x += A \ (b - A x) while it helps.
 // `solve_in_place` solves with the current factors; returns the final omega.
 template <typename T, typename Solve>
 double refine(const CscPattern& pattern, const T* values, const T* b, T* x, bool transposed,
-              Solve&& solve_in_place, std::vector<T>& r, std::vector<double>& scale) {
-  residual(pattern, values, x, b, transposed, r, scale);
-  double omega = componentwise_error(r, scale);
+              Solve&& solve_in_place, RefineBuffers<T>& w) {
+  residual(pattern, values, x, b, transposed, w.r, w.scale);
+  double omega = componentwise_error(w.r, w.scale);
   for (int step = 0; step < kRefinements && omega > kGood; ++step) {
-    solve_in_place(r.data());
-    std::vector<T> candidate(x, x + pattern.n);
-    for (std::size_t i = 0; i < candidate.size(); ++i) candidate[i] += r[i];
-    std::vector<T> r2;
-    std::vector<double> scale2;
-    residual(pattern, values, candidate.data(), b, transposed, r2, scale2);
-    const double next = componentwise_error(r2, scale2);
+    solve_in_place(w.r.data());
+    w.candidate.assign(x, x + pattern.n);
+    for (std::size_t i = 0; i < w.candidate.size(); ++i) w.candidate[i] += w.r[i];
+    residual(pattern, values, w.candidate.data(), b, transposed, w.candidate_r, w.candidate_scale);
+    const double next = componentwise_error(w.candidate_r, w.candidate_scale);
     if (!(next < omega)) break;  // no progress: keep the better solution
-    std::copy(candidate.begin(), candidate.end(), x);
+    std::copy(w.candidate.begin(), w.candidate.end(), x);
     omega = next;
-    r.swap(r2), scale.swap(scale2);
+    w.r.swap(w.candidate_r), w.scale.swap(w.candidate_scale);
   }
   return omega;
 }
@@ -101,12 +107,12 @@ class CheckedLu final : public SparseLu {
     b_.assign(rhs, rhs + n);
     backend_solve(rhs, transposed);
     auto with_factors = [&](std::complex<double>* v) { backend_solve(v, transposed); };
-    double omega = refine(*pattern_, values_, b_.data(), rhs, transposed, with_factors, r_, scale_);
+    double omega = refine(*pattern_, values_, b_.data(), rhs, transposed, with_factors, work_);
     if (omega <= kTrusted) return;
     if (backend_->factor_new_pivots(values_) == FactorStatus::ok) {
       std::copy(b_.begin(), b_.end(), rhs);
       backend_solve(rhs, transposed);
-      omega = refine(*pattern_, values_, b_.data(), rhs, transposed, with_factors, r_, scale_);
+      omega = refine(*pattern_, values_, b_.data(), rhs, transposed, with_factors, work_);
       if (omega <= kTrusted) return;
     }
     throw_untrusted(hz_, omega, backend_->condition_estimate());
@@ -115,8 +121,8 @@ class CheckedLu final : public SparseLu {
   std::unique_ptr<SparseLu> backend_;
   const CscPattern* pattern_ = nullptr;
   const std::complex<double>* values_ = nullptr;
-  std::vector<std::complex<double>> b_, r_;
-  std::vector<double> scale_;
+  std::vector<std::complex<double>> b_;
+  RefineBuffers<std::complex<double>> work_;
   double hz_ = 0;
 };
 
@@ -146,7 +152,7 @@ class CheckedRealLu final : public RealSparseLu {
     for (int c = 0; c < count; ++c) {
       const std::size_t at = n * static_cast<std::size_t>(c);
       const double omega =
-          refine(*pattern_, values_, b_.data() + at, rhs + at, false, with_factors, r_, scale_);
+          refine(*pattern_, values_, b_.data() + at, rhs + at, false, with_factors, work_);
       if (omega > kTrusted) throw_untrusted(0.0, omega, backend_->condition_estimate());
     }
   }
@@ -155,8 +161,8 @@ class CheckedRealLu final : public RealSparseLu {
   std::unique_ptr<RealSparseLu> backend_;
   const CscPattern* pattern_ = nullptr;
   const double* values_ = nullptr;
-  std::vector<double> b_, r_;
-  std::vector<double> scale_;
+  std::vector<double> b_;
+  RefineBuffers<double> work_;
 };
 
 }  // namespace
