@@ -1,6 +1,6 @@
 #!/usr/bin/env bash
 # The sanitizer build, its whole suite and the fuzz smoke test; run after .ci/deps.sh.
-# To join .ci/test.sh once a clean run of it passes (DEVELOPERS.md).
+# The last step of .ci/test.sh (DEVELOPERS.md, "Build and test").
 set -euo pipefail
 cd "$(dirname "$0")/.."
 # The same suite again under AddressSanitizer and UndefinedBehaviorSanitizer

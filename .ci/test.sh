@@ -6,3 +6,6 @@ source .ci/deps.sh
 cmake -S . -B build -DCMAKE_BUILD_TYPE=RelWithDebInfo -DTACET_WERROR=ON
 cmake --build build -j"$(nproc)"
 ctest --test-dir build --output-on-failure -j"$(nproc)"
+# The second build under AddressSanitizer and UndefinedBehaviorSanitizer, its whole
+# suite and the fuzz smoke test of every command (about a quarter of an hour).
+bash .ci/sanitize.sh

@@ -2,7 +2,8 @@
 """Mutation fuzzer for tacet: mutants of the bundled netlists through every command.
 
 Each mutant is written into a copy of netlists/ (so includes resolve) and run through
-show, ac, noise, bias and check with a per-run timeout. A run passes when it ends in
+every command that reads a netlist (show, ac, noise, bias, check, diff, report, loop,
+poles, settle, spread, sensitivity, rank) with a per-run timeout. A run passes when it ends in
 time with an exit status tacet documents (0, 1, 2 or 3) and prints no sanitizer
 report. Anything else (a crash, exit 70, a hang, "runtime error:" from UBSan,
 "AddressSanitizer" from ASan) is a failure; the mutant is kept in --keep for replay:
@@ -33,12 +34,24 @@ TOKENS = [
 ]
 # Written as latin-1 so that "\xc2\xa0" is the two bytes C2 A0 (U+00A0 in UTF-8).
 TOKEN_BYTES = [t.encode("latin-1") for t in TOKENS]
+# Every command that reads a netlist. "{pristine}" stands for the unmutated seed
+# file, so diff compares a mutant against the revision it came from.
 COMMANDS = [
     ["show"],
     ["ac", "--probe", "out", "--per-decade", "3"],
+    ["ac", "--probe", "out", "--per-decade", "2", "--format", "svg"],
     ["noise", "--probe", "out", "--from", "10", "--to", "10k", "--per-decade", "2"],
     ["bias"],
     ["check"],
+    ["check", "--sensitivity", "--top", "2"],
+    ["diff", "{pristine}"],
+    ["report"],
+    ["loop", "--per-decade", "3"],
+    ["poles"],
+    ["settle", "--probe", "out"],
+    ["spread", "--runs", "8", "--threads", "2"],
+    ["sensitivity", "--probe", "out", "--at", "1kHz"],
+    ["rank", "--slot", "U1"],
 ]
 
 
@@ -102,6 +115,8 @@ def main():
         seeds += [os.path.join(root, f) for f in files if f.endswith(".tacet")]
     seeds.sort()
     corpus = [open(p, "rb").read() for p in seeds]
+    pristine_tree = os.path.join(work, "pristine")
+    shutil.copytree(a.netlists, pristine_tree)
     failures = 0
     runs = 0
     for i in range(a.mutants):
@@ -110,7 +125,8 @@ def main():
         mutant = mutate(corpus[k], rng, corpus)
         with open(target, "wb") as f:
             f.write(mutant)
-        command = rng.choice(COMMANDS)
+        pristine = os.path.join(pristine_tree, os.path.relpath(target, tree))
+        command = [pristine if w == "{pristine}" else w for w in rng.choice(COMMANDS)]
         runs += 1
         problem, err = run(a.tacet, command[:1] + [target] + command[1:], a.timeout)
         if problem:
