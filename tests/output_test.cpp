@@ -1,11 +1,14 @@
 #include <catch2/catch.hpp>
 
 #include <filesystem>
+#include <limits>
+#include <string>
 #include <fstream>
 #include <sstream>
 
 #include "tacet/common/errors.hpp"
 #include "tacet/common/input_files.hpp"
+#include "tacet/report/csv.hpp"
 #include "tacet/report/output.hpp"
 
 using namespace tacet;
@@ -116,4 +119,22 @@ TEST_CASE("output refuses a read-only file and a folder, and leaves no temporary
   CHECK(slurp(locked) == "keep\n");
   CHECK_THROWS_AS(write_output(folder.path.string(), "x"), InputError);
   CHECK(folder.entries() == 1);
+}
+
+// RFC 4180, section 2 (rules 6 and 7): a field that holds a comma, a quote or a
+// line break is enclosed in quotes, and a quote inside it is doubled.
+TEST_CASE("a CSV field is quoted only when RFC 4180 needs it, its quotes doubled") {
+  CHECK(csv_field("v(out)_V") == "v(out)_V");
+  CHECK(csv_field("v(a,b)_V") == "\"v(a,b)_V\"");
+  CHECK(csv_field("say \"hi\"") == "\"say \"\"hi\"\"\"");
+  CHECK(csv_field("two\nlines") == "\"two\nlines\"");
+  CHECK(csv_field("cr\rhere") == "\"cr\rhere\"");
+}
+
+TEST_CASE("a CSV number is exact to the last bit and empty when not finite") {
+  CHECK(std::stod(csv_number(0.1)) == 0.1);
+  CHECK(std::stod(csv_number(1.0 / 3.0)) == 1.0 / 3.0);
+  CHECK(csv_number(std::numeric_limits<double>::quiet_NaN()).empty());
+  CHECK(csv_number(std::numeric_limits<double>::infinity()).empty());
+  CHECK(csv_number(-std::numeric_limits<double>::infinity()).empty());
 }

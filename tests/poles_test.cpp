@@ -111,7 +111,7 @@ TEST_CASE("poles refuse a circuit too large for the dense method", "[poles]") {
 TEST_CASE("zeros need an input that is a source", "[poles]") {
   const Circuit circuit = rc_lowpass(1e3, 1e-9);
   CHECK_THROWS_WITH(run_poles(circuit, {"out", "R1"}),
-                    "error: --input 'R1' is a res, not a source\nhint: sources: Vin\n");
+                    "error: --input 'R1' is a res, not a source\nhint: name a vsrc or isrc; the sources are Vin\n");
   CHECK_THROWS_AS(run_poles(circuit, {"out", "Vinn"}), InputError);
   CHECK_THROWS_AS(run_poles(circuit, {"out", ""}), InputError);
 }

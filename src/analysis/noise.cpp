@@ -108,7 +108,7 @@ InputPort resolve_input(const std::string& name, const Circuit& circuit, const M
 }
 
 // The noise figure's source: a resistor that makes thermal noise.
-std::size_t resolve_source(const std::string& name, const Circuit& circuit) {
+std::size_t resolve_source_resistor(const std::string& name, const Circuit& circuit) {
   std::vector<std::string> resistors;
   for (const Element& e : circuit.elements)
     if (traits(e.kind).thermal_noise && !e.noiseless) resistors.push_back(e.name);
@@ -354,7 +354,7 @@ NoiseResult run_noise(const Circuit& circuit, const NoiseOptions& options,
   result.input = options.input;
   result.weight = options.weight;
   result.source = options.source;
-  if (!options.source.empty()) resolve_source(options.source, circuit);
+  if (!options.source.empty()) resolve_source_resistor(options.source, circuit);
   result.band = integration_band(options);
   result.temperature_kelvin = circuit.ambient_celsius + kZeroCelsius;
   result.frequencies = options.sweep.frequencies();

@@ -13,7 +13,6 @@
 #include "tacet/analysis/loop.hpp"
 #include "tacet/common/constants.hpp"
 #include "tacet/common/errors.hpp"
-#include "tacet/common/spelling.hpp"
 #include "tacet/solve/mna.hpp"
 #include "tacet/solve/probe.hpp"
 
@@ -83,20 +82,6 @@ std::vector<Root> finite_roots(const Pencil& p) {
   return roots;
 }
 
-std::size_t resolve_source(const Circuit& circuit, const std::string& name) {
-  std::vector<std::string> sources;
-  for (const auto& e : circuit.elements)
-    if (e.kind == ElementKind::vsource || e.kind == ElementKind::isource) sources.push_back(e.name);
-  if (const auto element = circuit.find_element(name)) {
-    const auto kind = circuit.elements[*element].kind;
-    if (kind == ElementKind::vsource || kind == ElementKind::isource) return *element;
-    throw InputError::usage(
-        fmt::format("--input '{}' is a {}, not a source", name, to_keyword(kind)),
-        choice_hint(name, sources, "sources"));
-  }
-  throw InputError::unknown("source", name, "--input", nearest_word(name, sources));
-}
-
 std::vector<Root> transfer_zeros(const MnaSystem& mna, const Probe& probe, std::size_t input) {
   const int n = static_cast<int>(linear_pencil(mna, 0).g.rows());
   Pencil p = linear_pencil(mna, 1);
@@ -154,7 +139,7 @@ PolesResult run_poles(const Circuit& circuit, const PolesOptions& options) {
     probe = resolve_probe(options.probe, circuit);
     if (probe->kind == ProbeKind::impedance)
       throw InputError::usage("zeros need a voltage or current probe, not an impedance");
-    input = resolve_source(circuit, options.input);
+    input = resolve_source(options.input, circuit, "--input");
   }
   const MnaSystem mna(circuit);
   const Pencil pencil = linear_pencil(mna, 0);

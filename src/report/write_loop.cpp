@@ -7,6 +7,7 @@
 #include <fmt/format.h>
 
 #include "tacet/common/format.hpp"
+#include "tacet/report/csv.hpp"
 #include "tacet/report/json_output.hpp"
 #include "tacet/report/text_table.hpp"
 #include "tacet/report/write_svg.hpp"
@@ -86,11 +87,10 @@ std::string loop_table(const LoopResult& r, const ReportContext& context) {
 
 std::string loop_csv(const LoopResult& r) {
   std::string out = "opamp,f_Hz,re,im,db,deg\n";
-  auto cell = [](double v) { return std::isfinite(v) ? format_exact(v) : std::string(); };
   for (const auto& trace : r.loops)
     for (std::size_t k = 0; k < r.frequencies.size(); ++k)
-      out += trace.opamp + "," + cell(r.frequencies[k]) + "," + cell(trace.t[k].real()) + "," +
-             cell(trace.t[k].imag()) + "," + cell(db_of(trace.t[k])) + "," + cell(trace.deg[k]) +
+      out += trace.opamp + "," + csv_number(r.frequencies[k]) + "," + csv_number(trace.t[k].real()) + "," +
+             csv_number(trace.t[k].imag()) + "," + csv_number(db_of(trace.t[k])) + "," + csv_number(trace.deg[k]) +
              "\n";
   return out;
 }

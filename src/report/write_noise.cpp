@@ -9,6 +9,7 @@
 #include "tacet/report/json_output.hpp"
 
 #include "tacet/common/format.hpp"
+#include "tacet/report/csv.hpp"
 #include "tacet/report/text_table.hpp"
 #include "tacet/report/write_svg.hpp"
 
@@ -195,13 +196,12 @@ std::string noise_csv(const NoiseResult& r) {
   const bool figure = !r.spot_noise_figure_db.empty();
   if (figure) out += ",nf_dB";
   out += "\n";
-  auto cell = [](double v) { return std::isfinite(v) ? format_exact(v) : std::string(); };
   for (std::size_t k = 0; k < r.frequencies.size(); ++k) {
-    out += cell(r.frequencies[k]) + "," + cell(r.density[k]);
+    out += csv_number(r.frequencies[k]) + "," + csv_number(r.density[k]);
     if (input)
-      out += "," + cell(r.input_density[k]) + "," + cell(r.gain[k].real()) + "," +
-             cell(r.gain[k].imag());
-    if (figure) out += "," + cell(r.spot_noise_figure_db[k]);
+      out += "," + csv_number(r.input_density[k]) + "," + csv_number(r.gain[k].real()) + "," +
+             csv_number(r.gain[k].imag());
+    if (figure) out += "," + csv_number(r.spot_noise_figure_db[k]);
     out += "\n";
   }
   return out;

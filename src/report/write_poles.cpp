@@ -7,6 +7,7 @@
 #include <fmt/format.h>
 
 #include "tacet/common/format.hpp"
+#include "tacet/report/csv.hpp"
 #include "tacet/report/json_output.hpp"
 #include "tacet/report/text_table.hpp"
 
@@ -72,11 +73,10 @@ std::string poles_table(const PolesResult& r, const ReportContext& context) {
 
 std::string poles_csv(const PolesResult& r) {
   std::string out = "kind,re_Hz,im_Hz,f0_Hz,q\n";
-  auto cell = [](double v) { return std::isfinite(v) ? format_exact(v) : std::string(); };
   auto rows = [&](const char* kind, const std::vector<Root>& roots) {
     for (const Root& x : roots)
-      out += fmt::format("{},{},{},{},{}\n", kind, cell(x.re_hz()), cell(x.im_hz()), cell(x.f0()),
-                         cell(x.q()));
+      out += fmt::format("{},{},{},{},{}\n", kind, csv_number(x.re_hz()), csv_number(x.im_hz()), csv_number(x.f0()),
+                         csv_number(x.q()));
   };
   rows("pole", r.poles);
   rows("zero", r.zeros);

@@ -9,6 +9,7 @@
 #include <fmt/format.h>
 
 #include "tacet/common/format.hpp"
+#include "tacet/report/csv.hpp"
 #include "tacet/report/json_output.hpp"
 #include "tacet/report/write_check.hpp"
 #include "tacet/report/text_table.hpp"
@@ -149,10 +150,9 @@ std::string sensitivity_table(const SensitivityResult& r, const ReportContext& c
 
 std::string sensitivity_csv(const SensitivityResult& r) {
   std::string out = "name,param,value,tol,mag,deg\n";
-  auto cell = [](double v) { return std::isfinite(v) ? format_exact(v) : std::string(); };
   for (const auto& e : r.elements)
-    out += e.name + "," + to_string(e.key) + "," + cell(e.value) + "," + cell(e.tolerance) + "," +
-           cell(e.mag) + "," + cell(e.deg) + "\n";
+    out += e.name + "," + to_string(e.key) + "," + csv_number(e.value) + "," + csv_number(e.tolerance) + "," +
+           csv_number(e.mag) + "," + csv_number(e.deg) + "\n";
   return out;
 }
 

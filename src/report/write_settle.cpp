@@ -7,6 +7,7 @@
 #include <fmt/format.h>
 
 #include "tacet/common/format.hpp"
+#include "tacet/report/csv.hpp"
 #include "tacet/report/json_output.hpp"
 #include "tacet/report/text_table.hpp"
 
@@ -58,12 +59,6 @@ std::string points_table(const SettleResult& r) {
   return table.render();
 }
 
-std::string quoted(const std::string& field) {
-  if (field.find_first_of(",\"\n") == std::string::npos) return field;
-  std::string out = "\"";
-  for (char c : field) out += c == '"' ? std::string("\"\"") : std::string(1, c);
-  return out + "\"";
-}
 
 }  // namespace
 
@@ -90,11 +85,11 @@ std::string settle_table(const SettleResult& r, const ReportContext& context) {
 
 std::string settle_csv(const SettleResult& r) {
   std::string out = "t_s";
-  for (const auto& t : r.traces) out += "," + quoted(fmt::format("{}_{}", t.probe, t.unit));
+  for (const auto& t : r.traces) out += "," + csv_field(fmt::format("{}_{}", t.probe, t.unit));
   out += "\n";
   for (std::size_t i = 0; i < r.times.size(); ++i) {
-    out += format_exact(r.times[i]);
-    for (const auto& t : r.traces) out += "," + format_exact(t.values[i]);
+    out += csv_number(r.times[i]);
+    for (const auto& t : r.traces) out += "," + csv_number(t.values[i]);
     out += "\n";
   }
   return out;

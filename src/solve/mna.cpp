@@ -363,6 +363,10 @@ std::optional<double> admittance_scale(const Element& e) {
   return std::nullopt;
 }
 
+// Which admittance_scale it is: 0 conductance, 1 capacitance (an index into
+// the per-node pairs both the stiffness test and the grip to gnd keep).
+std::size_t admittance_kind(const Element& e) { return e.kind == ElementKind::resistor ? 0 : 1; }
+
 // A part is stiff when, at both of its nodes, its admittance is more than
 // kStiffRatio times the sum of the small admittances of its kind there: every
 // part to gnd, and every other part at most 1/kStiffRatio of its own (parts
@@ -373,7 +377,6 @@ std::optional<double> admittance_scale(const Element& e) {
 // does not pin its nodes together.
 std::vector<bool> find_stiff_parts(const Circuit& circuit) {
   const auto& elements = circuit.elements;
-  auto kind_index = [](const Element& e) -> std::size_t { return e.kind == ElementKind::resistor ? 0 : 1; };
   // Per node and kind (0 resistor, 1 capacitor): the sum to gnd, and the
   // admittances of parts to other nodes, sorted, with their running sums.
   struct Side {
@@ -385,7 +388,7 @@ std::vector<bool> find_stiff_parts(const Circuit& circuit) {
     const auto y = admittance_scale(e);
     if (!y || e.nodes[0] == e.nodes[1]) continue;
     for (std::size_t k = 0; k < 2; ++k) {
-      Side& side = sides[static_cast<std::size_t>(e.nodes[k])][kind_index(e)];
+      Side& side = sides[static_cast<std::size_t>(e.nodes[k])][admittance_kind(e)];
       if (e.nodes[1 - k] == 0) side.to_gnd += *y;
       else side.links.push_back(*y);
     }
@@ -403,7 +406,7 @@ std::vector<bool> find_stiff_parts(const Circuit& circuit) {
     // To gnd a stiff part swamps nothing that matters: its node's voltage is small.
     if (!y || e.nodes[0] == 0 || e.nodes[1] == 0 || e.nodes[0] == e.nodes[1]) continue;
     auto dominates = [&](int node) {
-      const Side& side = sides[static_cast<std::size_t>(node)][kind_index(e)];
+      const Side& side = sides[static_cast<std::size_t>(node)][admittance_kind(e)];
       const auto small = std::lower_bound(side.links.begin(), side.links.end(), *y / kStiffRatio);
       const double soft = side.to_gnd + side.below[static_cast<std::size_t>(small - side.links.begin())];
       return soft > 0 && *y > kStiffRatio * soft;
@@ -423,7 +426,7 @@ std::vector<std::array<double, 2>> grip_to_gnd(const Circuit& circuit) {
   for (const Element& e : circuit.elements) {
     const auto y = admittance_scale(e);
     if (!y) continue;
-    const std::size_t kind = e.kind == ElementKind::resistor ? 0 : 1;
+    const std::size_t kind = admittance_kind(e);
     if (e.nodes[1] == 0) grip[static_cast<std::size_t>(e.nodes[0])][kind] += *y;
     if (e.nodes[0] == 0) grip[static_cast<std::size_t>(e.nodes[1])][kind] += *y;
   }

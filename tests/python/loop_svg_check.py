@@ -15,23 +15,12 @@ Usage: loop_svg_check.py PATH_TO_TACET
 import json
 import math
 import os
-import subprocess
 import sys
 import xml.etree.ElementTree as ET
 
-NS = "{http://www.w3.org/2000/svg}"
+from svg_read import NS, linear_reader, run, with_class, y_reader
+
 NETLIST = "netlists/examples/turbidity_frontend.tacet"
-
-
-def run(tacet, *args):
-    done = subprocess.run([tacet, *args], capture_output=True, text=True)
-    if done.returncode != 0:
-        sys.exit(f"tacet {' '.join(args)} failed ({done.returncode}): {done.stderr}")
-    return done.stdout
-
-
-def with_class(root, name):
-    return [e for e in root.iter() if name in (e.get("class") or "").split()]
 
 
 def si(text):
@@ -39,17 +28,8 @@ def si(text):
     return float(text[:-1]) * scale[text[-1]] if text[-1] in scale else float(text)
 
 
-def reader(pairs):
-    (v0, p0), (v1, p1) = pairs[0], pairs[-1]
-    return lambda p: v0 + (v1 - v0) * (p - p0) / (p1 - p0)
-
-
-def y_reader(panel):
-    return reader([(float(t.text), float(t.get("y")) - 4) for t in with_class(panel, "y-tick")])
-
-
 def x_reader(root):
-    return reader([(math.log10(si(t.text)), float(t.get("x"))) for t in with_class(root, "x-tick")])
+    return linear_reader([(math.log10(si(t.text)), float(t.get("x"))) for t in with_class(root, "x-tick")])
 
 
 def labelled_dots(panel):

@@ -13,27 +13,15 @@ its contributors, one point per frequency.
 Usage: svg_output_check.py PATH_TO_TACET
 """
 import json
-import math
 import os
 import re
-import subprocess
 import sys
 import tempfile
 import xml.etree.ElementTree as ET
 
-NS = "{http://www.w3.org/2000/svg}"
+from svg_read import NS, run, with_class, y_reader
+
 DEMO = "netlists/vibration_logger.tacet"
-
-
-def run(tacet, *args):
-    done = subprocess.run([tacet, *args], capture_output=True, text=True)
-    if done.returncode != 0:
-        sys.exit(f"tacet {' '.join(args)} failed ({done.returncode}): {done.stderr}")
-    return done.stdout
-
-
-def with_class(root, name):
-    return [e for e in root.iter() if name in (e.get("class") or "").split()]
 
 
 def path_points(d):
@@ -41,13 +29,6 @@ def path_points(d):
     if "".join(m[0] + m[1] + " " + m[2] for m in moves) != d:
         sys.exit(f"unexpected path data: {d[:80]}")
     return sum(1 for m in moves if m[0] == "M"), [(float(x), float(y)) for _, x, y in moves]
-
-
-def y_reader(panel):
-    """Page y -> value on a linear axis, from its first and last labelled ticks."""
-    ticks = with_class(panel, "y-tick")
-    (v0, y0), (v1, y1) = [(float(t.text), float(t.get("y")) - 4) for t in (ticks[0], ticks[-1])]
-    return lambda y: v0 + (v1 - v0) * (y - y0) / (y1 - y0)
 
 
 def check_ac(tacet, worst):
