@@ -245,7 +245,7 @@ TEST_CASE("a check's spec value does not depend on the specs measured before it"
   CHECK(two.specs[1].value == all.specs[4].value);
 }
 
-TEST_CASE("--threads takes 0 (one per core) to 256", "[threads]") {
+TEST_CASE("a thread count from 0 (one per core) to 256 is valid, others are refused", "[threads]") {
   CHECK(threads_problem(0).empty());
   CHECK(threads_problem(256).empty());
   CHECK(threads_problem(-1) == "--threads must be from 0 (one per core) to 256, not -1");
