@@ -27,7 +27,13 @@
 // first spec's probe; then a whole run_loop of the sample (sweep, the scan
 // grid shared by the op amps, every crossover's bisection).
 //
+// Bare section (`bare FILE PER_DECADE`, for bench/threads.py): the bare KLU
+// refactor + solve of the netlist's matrix, single thread, over the log sweep
+// 1 Hz .. 100 MHz at PER_DECADE points a decade: total milliseconds, the
+// yardstick whole-process `tacet ac --threads N` is measured against.
+//
 // Usage: tacet_bench [SIZE...]     (default 10 1000 100000; 100 log points 1 Hz..100 MHz)
+//        tacet_bench bare FILE PER_DECADE
 //        tacet_bench --loop FILE... (the netlist loop section alone)
 //        tacet_bench sensitivity [ELEMENTS...]   (default 10000 100000)
 // buffered RC chain, run_sensitivity at one frequency (every parameter by one
@@ -157,16 +163,26 @@ std::vector<double> sweep_frequencies() {
 // Factor + solve alone: a timed loop of assemble + factor + solve minus a
 // timed loop of assemble only (clock reads per point would cost more than
 // the whole solve of a small circuit).
-double bare_microseconds_per_point(const tacet::Circuit& circuit, tacet::SolverKind kind) {
+// Microseconds of wall time, or with `cpu` of the process's CPU time (the
+// fairer figure on a machine other work shares).
+double now_microseconds(bool cpu) {
+  if (!cpu) return std::chrono::duration<double, std::micro>(Clock::now().time_since_epoch()).count();
+  timespec t{};
+  clock_gettime(CLOCK_PROCESS_CPUTIME_ID, &t);
+  return 1e6 * static_cast<double>(t.tv_sec) + 1e-3 * static_cast<double>(t.tv_nsec);
+}
+
+double bare_microseconds_per_point(const tacet::Circuit& circuit, tacet::SolverKind kind,
+                                   const std::vector<double>& frequencies = sweep_frequencies(),
+                                   bool cpu = false) {
   const tacet::MnaSystem mna(circuit);
   auto lu = tacet::make_unchecked_sparse_lu(kind);  // the backend alone
   lu->analyse(mna.pattern());
   std::vector<std::complex<double>> values(static_cast<std::size_t>(mna.pattern().nonzeros()));
   std::vector<std::complex<double>> b(static_cast<std::size_t>(mna.size())), x(b.size());
   mna.excitation(b.data());
-  const auto frequencies = sweep_frequencies();
   auto timed_passes = [&](bool solve, long passes) {
-    const auto start = Clock::now();
+    const double start = now_microseconds(cpu);
     for (long pass = 0; pass < passes; ++pass)
       for (double f : frequencies) {
         mna.assemble({0, 2 * 3.14159265358979323846 * f}, values.data());
@@ -175,7 +191,7 @@ double bare_microseconds_per_point(const tacet::Circuit& circuit, tacet::SolverK
         lu->factor(values.data());
         lu->solve(x.data());
       }
-    return std::chrono::duration<double, std::micro>(Clock::now() - start).count();
+    return now_microseconds(cpu) - start;
   };
   timed_passes(true, 1);  // first full factorisation and warm caches, not timed
   long passes = 1;
@@ -185,7 +201,8 @@ double bare_microseconds_per_point(const tacet::Circuit& circuit, tacet::SolverK
     with_solve = timed_passes(true, passes);
   }
   const double assemble_only = timed_passes(false, passes);
-  return (with_solve - assemble_only) / static_cast<double>(passes * kPoints);
+  return (with_solve - assemble_only) / static_cast<double>(passes) /
+         static_cast<double>(frequencies.size());
 }
 
 // The one-time work of a sweep: MNA build with its checks, symbolic analysis
@@ -473,7 +490,30 @@ void sensitivity_section(const std::vector<int>& sizes) {
 }  // namespace
 
 
+// The bare single-thread KLU time of the netlist's sweep, for bench/threads.py.
+void bare_section(const std::string& path, int per_decade) {
+  const tacet::Circuit circuit = tacet::load_circuit(path, {});
+  tacet::Sweep sweep;
+  sweep.from = 1;
+  sweep.to = 1e8;
+  sweep.per_decade = per_decade;
+  const auto frequencies = sweep.frequencies();
+  const double us = fastest_of_repeats(
+      [&] { return bare_microseconds_per_point(circuit, tacet::SolverKind::klu, frequencies); });
+  const double cpu_us = fastest_of_repeats(
+      [&] { return bare_microseconds_per_point(circuit, tacet::SolverKind::klu, frequencies, true); });
+  const auto points = static_cast<double>(frequencies.size());
+  std::printf("bare KLU refactor+solve: %zu points, %d unknowns, %.3f us/point, %.3f ms total, "
+              "%.3f ms cpu\n",
+              frequencies.size(), tacet::MnaSystem(circuit).size(), us, us * points / 1e3,
+              cpu_us * points / 1e3);
+}
+
 int main(int argc, char** argv) {
+  if (argc == 4 && std::string(argv[1]) == "bare") {
+    bare_section(argv[2], std::atoi(argv[3]));
+    return 0;
+  }
   if (argc > 1 && std::string(argv[1]) == "--loop") {
     netlist_loop_section(std::vector<std::string>(argv + 2, argv + argc));
     return 0;

@@ -1,6 +1,9 @@
 // AC analysis: one MNA system and one symbolic analysis for the sweep, then
 // per frequency one assemble, one numeric factorisation and one solve, all in
-// buffers allocated before the first point.
+// buffers allocated before the first point. With several threads the points
+// are cut into contiguous blocks, one per worker, each worker with a response
+// of its own anchored where the first point's was (response.hpp), and every
+// point written into its own slot: the result is the one thread's, bit for bit.
 
 #include "tacet/analysis/ac.hpp"
 
@@ -8,14 +11,19 @@
 
 #include <algorithm>
 #include <cmath>
+#include <memory>
 #include <optional>
 
 #include "tacet/common/errors.hpp"
+#include "tacet/common/parallel.hpp"
 #include "tacet/common/format.hpp"
 #include "tacet/solve/response.hpp"
 
 namespace tacet {
 namespace {
+
+// Below this many points a block costs more in thread start-up than it saves.
+constexpr std::size_t kLeastPointsPerWorker = 16;
 
 bool positive_frequency(double f) { return std::isfinite(f) && f > 0; }
 
@@ -109,15 +117,29 @@ AcResult run_ac(const Circuit& circuit, const AcOptions& options, FrequencyRespo
     source = resolve_source(options.input, circuit, "--input");
     result.input_unit = traits(circuit.elements[*source].kind).drive == Drive::current ? "A" : "V";
   }
-  for (std::size_t point = 0; point < result.frequencies.size(); ++point) {
-    const double f = result.frequencies[point];
-    if (source) {
-      for (auto& trace : result.traces) trace.values[point] = response.transfer_at(trace.probe, *source, f);
-      continue;
+  auto solve_points = [&](FrequencyResponse& on, std::size_t begin, std::size_t end) {
+    for (std::size_t point = begin; point < end; ++point) {
+      const double f = result.frequencies[point];
+      if (source) {
+        for (auto& trace : result.traces) trace.values[point] = on.transfer_at(trace.probe, *source, f);
+        continue;
+      }
+      on.solve_at(f);
+      for (auto& trace : result.traces) trace.values[point] = on.value(trace.probe);
     }
-    response.solve_at(f);
-    for (auto& trace : result.traces) trace.values[point] = response.value(trace.probe);
+  };
+  const std::size_t points = result.frequencies.size();
+  const int blocks = block_count(points, resolve_threads(options.threads), kLeastPointsPerWorker);
+  if (blocks == 1) {
+    solve_points(response, 0, points);
+    return result;
   }
+  response.anchor_at(result.frequencies.front());  // where one thread takes its pivots
+  std::vector<std::unique_ptr<FrequencyResponse>> workers;
+  for (int w = 1; w < blocks; ++w) workers.push_back(response.worker());
+  for_blocks(points, blocks, [&](int block, std::size_t begin, std::size_t end) {
+    solve_points(block == 0 ? response : *workers[static_cast<std::size_t>(block - 1)], begin, end);
+  });
   return result;
 }
 

@@ -2,6 +2,8 @@
 
 #include <algorithm>
 #include <cmath>
+#include <exception>
+#include <optional>
 #include <functional>
 #include <limits>
 #include <functional>
@@ -15,6 +17,7 @@
 
 #include "tacet/common/errors.hpp"
 #include "tacet/common/format.hpp"
+#include "tacet/common/parallel.hpp"
 #include "tacet/solve/probe.hpp"
 #include "tacet/solve/response.hpp"
 #include "tacet/solve/search.hpp"
@@ -123,10 +126,18 @@ class SpecMeter {
     }
   }
 
-  // One FrequencyResponse for every AC, noise and headroom spec.
+  // One FrequencyResponse for every AC, noise and headroom spec, anchored at
+  // check_anchor(): a singular matrix there leaves it to anchor at its first
+  // frequency, as any response does.
   FrequencyResponse& response() {
     if (shared_response_) return *shared_response_;
-    if (!response_) response_ = std::make_unique<FrequencyResponse>(circuit_);
+    if (!response_) {
+      response_ = std::make_unique<FrequencyResponse>(circuit_);
+      try {
+        response_->anchor_at(check_anchor(circuit_));
+      } catch (const SolveError&) {
+      }
+    }
     return *response_;
   }
   // The response to every source's ac, or with input= the transfer from that source alone.
@@ -531,6 +542,89 @@ class SpecMeter {
 };
 
 }  // namespace
+
+double check_anchor(const Circuit& circuit) {
+  if (circuit.specs.empty()) return 1e3;
+  const Spec& first = circuit.specs.front();
+  for (double f : {first.at, first.ref, first.from})
+    if (std::isfinite(f) && f > 0) return f;
+  return 1e3;
+}
+
+namespace {
+
+bool needs_bias(const Spec& spec) { return spec.kind == SpecKind::offset || spec.kind == SpecKind::rails; }
+
+// Specs that share a cached analysis in the meter go to one worker, so that
+// it is computed once: a loop's margins, a step response, the headroom sweep.
+std::string shared_work(const Spec& s) {
+  switch (s.kind) {
+    case SpecKind::phase_margin:
+    case SpecKind::gain_margin: return fmt::format("loop\n{}\n{}\n{}", s.opamp, s.from, s.to);
+    case SpecKind::settling:
+    case SpecKind::overshoot: return fmt::format("step\n{}\n{}", s.input, s.probe);
+    case SpecKind::rails: return "rails";
+    default: return {};
+  }
+}
+
+// The specs in groups of shared work, each group in spec order, the groups in
+// the order of their first spec.
+std::vector<std::vector<std::size_t>> spec_groups(const std::vector<Spec>& specs) {
+  std::vector<std::vector<std::size_t>> groups;
+  std::map<std::string, std::size_t> group_of;
+  for (std::size_t i = 0; i < specs.size(); ++i) {
+    const std::string key = shared_work(specs[i]);
+    if (key.empty()) {
+      groups.push_back({i});
+      continue;
+    }
+    const auto [it, added] = group_of.try_emplace(key, groups.size());
+    if (added) groups.emplace_back();
+    groups[it->second].push_back(i);
+  }
+  return groups;
+}
+
+}  // namespace
+
+CheckResult run_check(const Circuit& circuit, const CheckOptions& options) {
+  const std::size_t n = circuit.specs.size();
+  const auto groups = spec_groups(circuit.specs);
+  const int threads = std::min<int>(resolve_threads(options.threads), static_cast<int>(groups.size()));
+  if (threads <= 1) return run_check(circuit);
+  // The DC analysis once, before the workers, for every spec that needs it.
+  SharedAnalyses shared;
+  BiasResult bias;
+  if (std::any_of(circuit.specs.begin(), circuit.specs.end(), needs_bias)) {
+    try {
+      bias = run_bias(circuit);
+      shared.bias = &bias;
+    } catch (const SolveError& e) {
+      shared.bias_error = e;
+    }
+  }
+  std::vector<std::unique_ptr<SpecMeter>> meters(static_cast<std::size_t>(threads));
+  std::vector<std::optional<SpecResult>> measured(n);
+  std::vector<std::exception_ptr> failures(n);
+  for_items(groups.size(), threads, [&](int worker, std::size_t group) {
+    auto& meter = meters[static_cast<std::size_t>(worker)];
+    if (!meter) meter = std::make_unique<SpecMeter>(circuit, shared);
+    for (std::size_t i : groups[group]) {
+      try {
+        measured[i] = meter->measure(circuit.specs[i]);
+      } catch (...) {
+        failures[i] = std::current_exception();
+      }
+    }
+  });
+  CheckResult result;
+  for (std::size_t i = 0; i < n; ++i) {  // what one thread would have met first
+    if (failures[i]) std::rethrow_exception(failures[i]);
+    result.specs.push_back(std::move(*measured[i]));
+  }
+  return result;
+}
 
 CheckResult run_check(const Circuit& circuit) { return run_check(circuit, SharedAnalyses{}); }
 

@@ -1,5 +1,10 @@
 // Noise analysis: one MNA system, one symbolic analysis, then per frequency
 // one factorisation and one transposed (adjoint) solve for every source at once.
+// With several threads each worker has a response of its own anchored where
+// the analysis' response is (response.hpp); the band integral's batches of
+// samples and the printed points are shared out in contiguous blocks and
+// every sample written into its own slot, summed afterwards in the order one
+// thread sums them: the figures are the one thread's, bit for bit.
 
 #include "tacet/analysis/noise.hpp"
 
@@ -10,10 +15,12 @@
 #include <algorithm>
 #include <cmath>
 #include <limits>
+#include <memory>
 
 #include "tacet/common/spelling.hpp"
 #include "tacet/common/errors.hpp"
 #include "tacet/common/format.hpp"
+#include "tacet/common/parallel.hpp"
 #include "tacet/analysis/weighting.hpp"
 #include "tacet/solve/integrate.hpp"
 #include "tacet/solve/mna.hpp"
@@ -92,6 +99,39 @@ class AdjointSolver {
  private:
   FrequencyResponse& response_;
   const Probe& probe_;
+};
+
+// One adjoint solver per worker: worker 0 on the analysis' response, the
+// others on responses of their own (made here, on the calling thread, after
+// the analysis' response is anchored).
+class AdjointTeam {
+ public:
+  AdjointTeam(FrequencyResponse& response, const Probe& probe, int threads) {
+    solvers_.emplace_back(response, probe);
+    for (int w = 1; w < threads; ++w) {
+      own_.push_back(response.worker());
+      solvers_.emplace_back(*own_.back(), probe);
+    }
+    // Below about this much work (unknowns x samples) a block costs more in
+    // thread start-up than it saves.
+    constexpr std::size_t kLeastBlockWork = 4000;
+    const auto unknowns = static_cast<std::size_t>(std::max(1, response.mna().size()));
+    least_ = std::max<std::size_t>(1, kLeastBlockWork / unknowns);
+  }
+  int size() const { return static_cast<int>(solvers_.size()); }
+  AdjointSolver& main() { return solvers_.front(); }
+  /// solve(solver, index, worker) for every index in [0, count), in blocks.
+  template <class Solve>
+  void for_each(std::size_t count, Solve&& solve) {
+    for_blocks(count, block_count(count, size(), least_), [&](int block, std::size_t begin, std::size_t end) {
+      for (std::size_t k = begin; k < end; ++k) solve(solvers_[static_cast<std::size_t>(block)], k, block);
+    });
+  }
+
+ private:
+  std::vector<std::unique_ptr<FrequencyResponse>> own_;
+  std::vector<AdjointSolver> solvers_;
+  std::size_t least_ = 1;
 };
 
 // Where a unit of the input source enters: G = y[plus] - y[minus].
@@ -191,15 +231,22 @@ double input_referred_power(double output_power, std::complex<double> gain) {
 }
 
 // Sweep points: the density, the densities of the `largest` sources, and with
-// an input the gain and the input-referred density.
-void fill_points(NoiseResult& result, AdjointSolver& adjoint, const Circuit& circuit,
+// an input the gain and the input-referred density; each point into its slot.
+void fill_points(NoiseResult& result, AdjointTeam& team, const Circuit& circuit,
                  const std::vector<NoiseSource>& sources, const std::vector<std::size_t>& largest,
                  const InputPort* input, std::optional<std::size_t> source, bool figure) {
+  const std::size_t n = result.frequencies.size();
   for (std::size_t k : largest)
     result.contributor_density.push_back(
-        {circuit.elements[sources[k].element].name, sources[k].mechanism, {}});
-  std::vector<double> part(sources.size());
-  for (double f : result.frequencies) {
+        {circuit.elements[sources[k].element].name, sources[k].mechanism, std::vector<double>(n)});
+  result.density.resize(n);
+  if (figure) result.spot_noise_figure_db.resize(n);
+  if (input) result.gain.resize(n), result.input_density.resize(n);
+  std::vector<std::vector<double>> parts(static_cast<std::size_t>(team.size()),
+                                         std::vector<double>(sources.size()));
+  team.for_each(n, [&](AdjointSolver& adjoint, std::size_t point, int worker) {
+    const double f = result.frequencies[point];
+    std::vector<double>& part = parts[static_cast<std::size_t>(worker)];
     const auto& y = adjoint.solve(f);
     double power = 0;
     for (std::size_t i = 0; i < sources.size(); ++i) {
@@ -208,14 +255,14 @@ void fill_points(NoiseResult& result, AdjointSolver& adjoint, const Circuit& cir
     }
     require_finite_power(power, f, result.probe);
     for (std::size_t j = 0; j < largest.size(); ++j)
-      result.contributor_density[j].density.push_back(std::sqrt(part[largest[j]]));
-    result.density.push_back(std::sqrt(power));
-    if (figure) result.spot_noise_figure_db.push_back(noise_figure(power, source ? part[*source] : 0.0));
-    if (!input) continue;
+      result.contributor_density[j].density[point] = std::sqrt(part[largest[j]]);
+    result.density[point] = std::sqrt(power);
+    if (figure) result.spot_noise_figure_db[point] = noise_figure(power, source ? part[*source] : 0.0);
+    if (!input) return;
     const auto g = transfer(y, input->plus, input->minus);
-    result.gain.push_back(g);
-    result.input_density.push_back(power == 0 ? 0.0 : std::sqrt(power) / std::abs(g));
-  }
+    result.gain[point] = g;
+    result.input_density[point] = power == 0 ? 0.0 : std::sqrt(power) / std::abs(g);
+  });
 }
 
 // The statement for an input that does not reach the probe somewhere in the band.
@@ -228,7 +275,7 @@ std::string unreached_note(const NoiseResult& result, double f) {
 
 // The band integral; components: total power, [input-referred power], each
 // source. Returns the sources' indices, largest share first (the contributors' order).
-std::vector<std::size_t> integrate_contributors(NoiseResult& result, AdjointSolver& adjoint,
+std::vector<std::size_t> integrate_contributors(NoiseResult& result, AdjointTeam& team,
                                                 const Circuit& circuit,
                                                 const std::vector<NoiseSource>& sources,
                                                 const InputPort* input, Weighting weight) {
@@ -237,19 +284,23 @@ std::vector<std::size_t> integrate_contributors(NoiseResult& result, AdjointSolv
     return {};
   }
   const std::size_t first = input ? 2 : 1;
-  const auto integral = integrate_band(
-      result.band.from, result.band.to, first + sources.size(), first,
-      [&](double f, double* out) {
-        const auto& y = adjoint.solve(f);
-        const double w = weighting_gain(weight, f);
-        out[0] = 0;
-        for (std::size_t i = 0; i < sources.size(); ++i) {
-          const auto& source = sources[i];
-          out[first + i] = std::norm(transfer(y, source)) * source.power(f) * w * w;
-          out[0] += out[first + i];
-        }
-        require_finite_power(out[0], f, result.probe);
-        if (input) out[1] = input_referred_power(out[0], transfer(y, input->plus, input->minus));
+  const std::size_t m = first + sources.size();
+  auto sample = [&](AdjointSolver& adjoint, double f, double* out) {
+    const auto& y = adjoint.solve(f);
+    const double w = weighting_gain(weight, f);
+    out[0] = 0;
+    for (std::size_t i = 0; i < sources.size(); ++i) {
+      const auto& source = sources[i];
+      out[first + i] = std::norm(transfer(y, source)) * source.power(f) * w * w;
+      out[0] += out[first + i];
+    }
+    require_finite_power(out[0], f, result.probe);
+    if (input) out[1] = input_referred_power(out[0], transfer(y, input->plus, input->minus));
+  };
+  const auto integral = integrate_band_batched(
+      result.band.from, result.band.to, m, first,
+      [&](const double* f, std::size_t count, double* out) {
+        team.for_each(count, [&](AdjointSolver& adjoint, std::size_t k, int) { sample(adjoint, f[k], out + k * m); });
       });
   result.band_evaluations = integral.evaluations;
   if (!integral.converged)
@@ -369,10 +420,12 @@ NoiseResult run_noise(const Circuit& circuit, const NoiseOptions& options,
   const auto sources = noise_sources(circuit, mna, result.probe, result.temperature_kelvin);
   const auto lowest = std::min_element(result.frequencies.begin(), result.frequencies.end());
   require_finite_sources(circuit, sources, std::min(result.band.from, *lowest));
-  AdjointSolver adjoint(response, result.probe);
+  // Every worker takes its pivots where one thread takes them (response.hpp).
+  response.anchor_at(result.band.from);
+  AdjointTeam team(response, result.probe, resolve_threads(options.threads));
   const InputPort* port = input ? &*input : nullptr;
   std::vector<std::size_t> largest =
-      integrate_contributors(result, adjoint, circuit, sources, port, options.weight);
+      integrate_contributors(result, team, circuit, sources, port, options.weight);
   const bool figure = !options.source.empty();
   std::optional<std::size_t> source;
   if (figure) {
@@ -380,8 +433,8 @@ NoiseResult run_noise(const Circuit& circuit, const NoiseOptions& options,
     result.noise_figure_db = band_noise_figure(result, options.source);
   }
   largest.resize(std::min(largest.size(), options.curves));
-  fill_points(result, adjoint, circuit, sources, largest, port, source, figure);
-  if (options.level) result.signal = signal_to_noise(result, options, adjoint, *input);
+  fill_points(result, team, circuit, sources, largest, port, source, figure);
+  if (options.level) result.signal = signal_to_noise(result, options, team.main(), *input);
   return result;
 }
 

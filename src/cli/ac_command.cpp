@@ -17,6 +17,7 @@ struct AcCommandOptions {
   std::vector<std::string> probes;
   std::string input;
   SweepFlags sweep;
+  int threads = 0;
 };
 
 void run(const AcCommandOptions& o) {
@@ -24,6 +25,7 @@ void run(const AcCommandOptions& o) {
   options.sweep = parse_sweep(o.sweep);
   options.probes = o.probes;
   options.input = o.input;
+  options.threads = checked_threads(o.threads);
   analyse_and_write(o.common, ac_writers(), [&](const Circuit& circuit) {
     if (o.probes.empty())
       throw InputError::usage("tacet ac needs at least one --probe",
@@ -43,6 +45,7 @@ void setup_ac(CLI::App& app) {
   ac->add_option("--input", options->input,
                  "A source: the transfer from it alone, every other source's ac zeroed");
   add_sweep_options(*ac, options->sweep);
+  add_threads_option(*ac, options->threads);
   ac->callback([options] { run(*options); });
 }
 

@@ -21,14 +21,17 @@ struct CheckCommandOptions {
   CommonOptions common;
   bool sensitivity = false;
   std::optional<int> top;  ///< given: parts per spec; needs --sensitivity
+  int threads = 0;
 };
 
-CheckResult check_specs(const CommonOptions& options, const Circuit& circuit) {
+CheckResult check_specs(const CommonOptions& options, const Circuit& circuit, int threads) {
   if (circuit.specs.empty())
     throw InputError::usage(
         options.file + " has no spec lines to check",
         "write for example: spec gain_1k gain (out) at=1kHz min=19.9dB max=20.1dB");
-  return run_check(circuit);
+  CheckOptions check;
+  check.threads = threads;
+  return run_check(circuit, check);
 }
 
 void finish(const CheckResult& result) {
@@ -38,12 +41,13 @@ void finish(const CheckResult& result) {
 }
 
 void run(const CheckCommandOptions& o) {
+  const int threads = checked_threads(o.threads);
   if (o.top && !o.sensitivity)
     throw InputError::usage("--top is the number of parts --sensitivity shows per spec",
                             "tacet check FILE --sensitivity --top 3");
   if (!o.sensitivity) {
     finish(analyse_and_write(o.common, check_writers(), [&](const Circuit& circuit) {
-      return check_specs(o.common, circuit);
+      return check_specs(o.common, circuit, threads);
     }));
     return;
   }
@@ -52,7 +56,7 @@ void run(const CheckCommandOptions& o) {
   const CheckSensitivityReport report =
       analyse_and_write(o.common, check_sensitivity_writers(), [&](const Circuit& circuit) {
         CheckSensitivityReport r;
-        r.check = check_specs(o.common, circuit);
+        r.check = check_specs(o.common, circuit, threads);
         r.sensitivities = run_spec_sensitivities(circuit, r.check);
         r.top = static_cast<std::size_t>(top);
         return r;
@@ -71,6 +75,7 @@ void setup_check(CLI::App& app) {
   check->add_flag("--sensitivity", options->sensitivity,
                   "Also show, per spec, the parts that move its value most (per +1 %, and their tol=)");
   check->add_option("--top", options->top, "With --sensitivity: parts shown per spec (default 5)");
+  add_threads_option(*check, options->threads);
   check->callback([options] { run(*options); });
 }
 

@@ -10,6 +10,7 @@
 #include "tacet/elaborate/elaborate.hpp"
 #include "tacet/common/errors.hpp"
 #include "tacet/common/format.hpp"
+#include "tacet/common/parallel.hpp"
 
 namespace tacet::cli {
 
@@ -116,6 +117,15 @@ OutputFormat output_format(const CommonOptions& options) {
                      options.formats.end())
     throw InputError::no_format(options.command, options.format, format_names(options.formats));
   return *format;
+}
+
+void add_threads_option(CLI::App& command, int& threads) {
+  command.add_option("--threads", threads, "Worker threads (0: one per core)")->capture_default_str();
+}
+
+int checked_threads(int threads) {
+  if (auto problem = threads_problem(threads); !problem.empty()) throw InputError::usage(problem);
+  return threads;
 }
 
 void add_sweep_options(CLI::App& command, SweepFlags& flags) {

@@ -81,6 +81,12 @@ struct SweepFlags {
 /// --from --to --per-decade --points --at, with their exclusions.
 void add_sweep_options(CLI::App& command, SweepFlags& flags);
 
+/// --threads N (0, the default: one per core), worded as tacet spread's.
+void add_threads_option(CLI::App& command, int& threads);
+
+/// `threads` when it is a valid --threads (0 .. kMostThreads); else InputError (exit 2).
+int checked_threads(int threads);
+
 /// The sweep the flags describe; throws InputError naming the flag at fault.
 Sweep parse_sweep(const SweepFlags& flags);
 

@@ -25,6 +25,7 @@ struct NoiseCommandOptions {
   std::string ref;    // Hz
   std::string weight;  // a | itu468
   std::string source;  // a resistor: noise figure
+  int threads = 0;
 };
 
 Weighting parse_weight_flag(const std::string& text) {
@@ -43,6 +44,7 @@ NoiseOptions options_from(const NoiseCommandOptions& o) {
   if (!o.ref.empty()) options.reference = parse_quantity("--ref", o.ref, Dimension::frequency);
   if (!o.weight.empty()) options.weight = parse_weight_flag(o.weight);
   options.source = o.source;
+  options.threads = checked_threads(o.threads);
   return options;
 }
 
@@ -74,6 +76,7 @@ void setup_noise(CLI::App& app) {
   noise->add_option("--source", options->source,
                     "The source resistor: spot and band noise figure against its thermal noise");
   add_sweep_options(*noise, options->sweep);
+  add_threads_option(*noise, options->threads);
   noise->callback([options] { run(*options); });
 }
 

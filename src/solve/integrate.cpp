@@ -46,17 +46,26 @@ struct Panel {
 
 class Integrator {
  public:
-  Integrator(std::size_t m, std::size_t checked, const BandIntegrand& integrand,
+  Integrator(std::size_t m, std::size_t checked, const BandBatchIntegrand& integrand,
              const BandIntegrationOptions& options)
-      : m_(m), checked_(checked), integrand_(integrand), options_(options), sample_(m),
-        gauss_(checked), end_(checked), non_finite_at_(checked, 0.0) {}
+      : m_(m), checked_(checked), integrand_(integrand), options_(options),
+        batch_(kMostBatch * m), gauss_(checked), end_(checked), non_finite_at_(checked, 0.0) {
+    planned_.reserve(kMostBatch);
+    batch_f_.reserve(kMostBatch);
+  }
 
   /// First cut: `count` equal panels over [ua, ub].
   void cut(double ua, double ub, int count) {
     const double width = (ub - ua) / count;
-    end_sample(ua, end_.data());
     for (int p = 0; p < count && !stopped_; ++p) {
       const double a = ua + p * width, b = p + 1 == count ? ub : ua + (p + 1) * width;
+      // This panel's samples in the order they are taken: (the band's start,) its end, its nodes.
+      if (p == 0) plan(ua);
+      plan(b);
+      plan_nodes(a, b);
+      fetch();
+      if (p == 0) end_sample(ua, end_.data());
+      if (stopped_) break;
       const Panel panel{a, b, 0, new_slot()};
       std::copy(end_.begin(), end_.end(), end_at_a(panel));
       end_sample(b, end_at_b(panel));
@@ -100,7 +109,9 @@ class Integrator {
   // finite is noted, and with none left finite the integral stops.
   void sample(double u) {
     const double f = std::exp(u);
-    integrand_(f, sample_.data());
+    if (next_ >= batch_f_.size() || batch_f_[next_] != f)  // an unplanned sample: plan it alone
+      plan(u), fetch();
+    sample_ = &batch_[next_++ * m_];
     ++evaluations_;
     bool live = false;
     for (std::size_t j = 0; j < checked_; ++j) {
@@ -108,6 +119,28 @@ class Integrator {
       live = live || non_finite_at_[j] == 0;
     }
     stopped_ = !live;
+  }
+
+  // Samples are planned in the order they will be taken, then computed
+  // together (on several threads if the integrand likes) before the first is
+  // taken: the values, and so every sum, are those of one sample at a time.
+  void plan(double u) { planned_.push_back(u); }
+  void plan_nodes(double a, double b) {
+    for (int k = 0; k < 15; ++k) plan(node_u(a, b, k));
+  }
+  void fetch() {
+    batch_f_.clear();
+    for (double u : planned_) batch_f_.push_back(std::exp(u));
+    planned_.clear();
+    if (batch_.size() < batch_f_.size() * m_) batch_.resize(batch_f_.size() * m_);
+    integrand_(batch_f_.data(), batch_f_.size(), batch_.data());
+    next_ = 0;
+  }
+  // Kronrod node k of the panel [a, b]: 0..7, then the mirrored 6..0.
+  static double node_u(double a, double b, int k) {
+    const int node = k < 8 ? k : 14 - k;
+    const double middle = 0.5 * (a + b), half = 0.5 * (b - a);
+    return middle + half * (k < 8 ? 1 : -1) * kKronrodNodes[node];
   }
 
   // The checked components of the u-space integrand g(e^u) e^u at a panel end.
@@ -132,10 +165,10 @@ class Integrator {
     double* kronrod = &kronrod_[panel.slot * m_];
     std::fill(kronrod, kronrod + m_, 0.0);
     std::fill(gauss_.begin(), gauss_.end(), 0.0);
-    const double middle = 0.5 * (panel.a + panel.b), half = 0.5 * (panel.b - panel.a);
+    const double half = 0.5 * (panel.b - panel.a);
     for (int k = 0; k < 15 && !stopped_; ++k) {
       const int node = k < 8 ? k : 14 - k;  // 0..7, then the mirrored 6..0
-      const double u = middle + half * (k < 8 ? 1 : -1) * kKronrodNodes[node];
+      const double u = node_u(panel.a, panel.b, k);
       sample(u);
       const double jacobian = half * std::exp(u);
       const double wk = jacobian * kKronrodWeights[node];
@@ -161,6 +194,10 @@ class Integrator {
     const double middle = 0.5 * (parent.a + parent.b);
     const Panel left{parent.a, middle, parent.depth + 1, parent.slot};
     const Panel right{middle, parent.b, parent.depth + 1, new_slot()};
+    plan(middle);
+    plan_nodes(left.a, left.b);
+    plan_nodes(right.a, right.b);
+    fetch();
     std::copy(end_at_b(left), end_at_b(left) + checked_, end_at_b(right));
     end_sample(middle, end_at_b(left));
     std::copy(end_at_b(left), end_at_b(left) + checked_, end_at_a(right));
@@ -201,9 +238,14 @@ class Integrator {
   }
 
   std::size_t m_, checked_;
-  const BandIntegrand& integrand_;
+  static constexpr std::size_t kMostBatch = 31;  // a bisection: the middle, 15 + 15 nodes
+  const BandBatchIntegrand& integrand_;
   const BandIntegrationOptions& options_;
-  std::vector<double> sample_, gauss_, end_;
+  std::vector<double> planned_, batch_f_;  // u to sample next; f of the batch computed
+  std::vector<double> batch_;              // m values per sample of the batch
+  std::size_t next_ = 0;                   // the batch's next sample
+  const double* sample_ = nullptr;         // the sample taken last
+  std::vector<double> gauss_, end_;
   // Per slot: m Kronrod values, `checked` errors, 2 x `checked` end values.
   std::vector<double> kronrod_, error_, ends_;
   std::size_t slots_ = 0;
@@ -242,6 +284,15 @@ void gauss_legendre(int n, std::vector<double>& nodes, std::vector<double>& weig
 BandIntegral integrate_band(double f1, double f2, std::size_t m, std::size_t checked,
                             const BandIntegrand& integrand,
                             const BandIntegrationOptions& options) {
+  const BandBatchIntegrand batch = [&](const double* f, std::size_t count, double* out) {
+    for (std::size_t k = 0; k < count; ++k) integrand(f[k], out + k * m);
+  };
+  return integrate_band_batched(f1, f2, m, checked, batch, options);
+}
+
+BandIntegral integrate_band_batched(double f1, double f2, std::size_t m, std::size_t checked,
+                                    const BandBatchIntegrand& integrand,
+                                    const BandIntegrationOptions& options) {
   const double ua = std::log(f1), ub = std::log(f2);
   const double decades = (ub - ua) / std::log(10.0);
   const int panels = std::max(1, static_cast<int>(std::ceil(decades * options.panels_per_decade)));

@@ -10,7 +10,9 @@
 //                          on the same factors (Skeel 1980: one step in
 //                          working precision already restores componentwise
 //                          stability when the factors are reasonable);
-//   still omega > kTrusted fresh pivots for these values, solve, refine again;
+//   still omega > kTrusted fresh pivots for these values (for this point only:
+//                          the next point starts from the backend's anchor
+//                          again), solve, refine again;
 //   still omega > kTrusted SolveError (exit 3) naming the error reached and the
 //                          condition estimate, never a silently wrong number.
 
@@ -95,6 +97,13 @@ class CheckedLu final : public SparseLu {
   int full_factorizations() const override { return backend_->full_factorizations(); }
   double condition_estimate() override { return backend_->condition_estimate(); }
   void at_point(double hz) override { hz_ = hz; }
+  std::unique_ptr<SparseLu> share_analysis() const override {
+    auto backend = backend_->share_analysis();
+    if (!backend) return nullptr;
+    auto twin = std::make_unique<CheckedLu>(std::move(backend));
+    twin->pattern_ = pattern_;
+    return twin;
+  }
 
  private:
   void backend_solve(std::complex<double>* rhs, bool transposed) {

@@ -1,17 +1,27 @@
 // KLU backend (SuiteSparse): the ordering is chosen once by klu_analyze, the
-// pivot sequence by a first klu_z_factor; later points reuse that pivot
-// sequence with klu_z_refactor, which does not allocate.
+// pivot sequence by a first klu_z_factor (the anchor); later points reuse that
+// pivot sequence with klu_z_refactor, which does not allocate.
 //
 // A reused pivot sequence can turn bad as values move by many decades over a
 // sweep (1 Hz .. 100 MHz). After each refactor the cheap reciprocal pivot
 // ratio klu_z_rcond (min |U_kk| / max |U_kk|) is compared with its value at the
-// last full factorisation; if it dropped by more than kRcondDropLimit (1e-3,
-// i.e. three decades of lost pivot quality), or the refactor met a zero pivot,
-// a fresh klu_z_factor picks new pivots.
+// anchor; if it dropped by more than kRcondDropLimit (1e-3, i.e. three decades
+// of lost pivot quality), or the refactor met a zero pivot, a fresh
+// klu_z_factor picks new pivots for this point. Those serve this point only:
+// the next point refactors on the anchor's pivots again, so what a point gets
+// never depends on the points before it (sparse_solver.hpp).
+//
+// The symbolic analysis is shared by the solvers share_analysis() makes, one
+// per worker thread: klu_z_factor, klu_z_refactor and the solves only read it
+// (klu_z_factor revises an estimate in it only after a COLAMD ordering, which
+// KLU's default AMD ordering never uses; the anchor is factored before any
+// worker starts in any case). Each solver has its own klu_common and numeric
+// objects.
 
 #include <klu.h>
 
 #include <limits>
+#include <memory>
 #include <stdexcept>
 
 #include "tacet/solve/sparse_solver.hpp"
@@ -26,6 +36,21 @@ double* as_doubles(const std::complex<double>* z) {
   return const_cast<double*>(reinterpret_cast<const double*>(z));
 }
 
+// The pattern as KLU wants it (mutable int arrays) and its symbolic analysis.
+struct KluAnalysis {
+  std::vector<int> col_ptr, row_index;
+  klu_symbolic* symbolic = nullptr;
+  KluAnalysis() = default;
+  KluAnalysis(const KluAnalysis&) = delete;
+  KluAnalysis& operator=(const KluAnalysis&) = delete;
+  ~KluAnalysis() {
+    if (symbolic == nullptr) return;
+    klu_common common;
+    klu_defaults(&common);
+    klu_free_symbolic(&symbolic, &common);
+  }
+};
+
 class KluLu final : public SparseLu {
  public:
   KluLu() { klu_defaults(&common_); }
@@ -36,30 +61,47 @@ class KluLu final : public SparseLu {
   void analyse(const CscPattern& pattern) override {
     release();
     pattern_ = &pattern;
-    col_ptr_ = pattern.col_ptr;
-    row_index_ = pattern.row_index;
-    if (pattern.n == 0) return;  // nothing to factor: every call below is a no-op
-    symbolic_ = klu_analyze(pattern.n, col_ptr_.data(), row_index_.data(), &common_);
-    if (symbolic_ == nullptr) throw std::runtime_error("klu_analyze failed");
+    auto analysis = std::make_shared<KluAnalysis>();
+    analysis->col_ptr = pattern.col_ptr;
+    analysis->row_index = pattern.row_index;
+    if (pattern.n > 0) {  // else nothing to factor: every call below is a no-op
+      analysis->symbolic =
+          klu_analyze(pattern.n, analysis->col_ptr.data(), analysis->row_index.data(), &common_);
+      if (analysis->symbolic == nullptr) throw std::runtime_error("klu_analyze failed");
+    }
+    analysis_ = std::move(analysis);
+  }
+
+  std::unique_ptr<SparseLu> share_analysis() const override {
+    auto twin = std::make_unique<KluLu>();
+    twin->pattern_ = pattern_;
+    twin->analysis_ = analysis_;
+    return twin;
   }
 
   FactorStatus factor(const std::complex<double>* values) override {
     values_ = values;
     if (pattern_->n == 0) return FactorStatus::ok;
-    if (numeric_ != nullptr && refactor(values)) return FactorStatus::ok;
+    if (anchor_ == nullptr) return factor_anchor(values);
+    if (refactor(values)) {
+      current_ = anchor_;
+      return FactorStatus::ok;
+    }
     return factor_fresh(values);
   }
 
   FactorStatus factor_new_pivots(const std::complex<double>* values) override {
     values_ = values;
     if (pattern_->n == 0) return FactorStatus::ok;
+    if (anchor_ == nullptr) return factor_anchor(values);
     return factor_fresh(values);
   }
 
   double condition_estimate() override {
-    if (pattern_->n == 0 || numeric_ == nullptr || values_ == nullptr)
+    if (pattern_->n == 0 || current_ == nullptr || values_ == nullptr)
       return std::numeric_limits<double>::quiet_NaN();
-    if (!klu_z_condest(col_ptr_.data(), as_doubles(values_), symbolic_, numeric_, &common_))
+    if (!klu_z_condest(analysis_->col_ptr.data(), as_doubles(values_), analysis_->symbolic, current_,
+                       &common_))
       return std::numeric_limits<double>::quiet_NaN();
     return common_.condest;
   }
@@ -68,53 +110,70 @@ class KluLu final : public SparseLu {
 
   void solve(std::complex<double>* rhs) override {
     if (pattern_->n == 0) return;
-    klu_z_solve(symbolic_, numeric_, pattern_->n, 1, as_doubles(rhs), &common_);
+    klu_z_solve(analysis_->symbolic, current_, pattern_->n, 1, as_doubles(rhs), &common_);
   }
 
   void solve_transposed(std::complex<double>* rhs) override {
     if (pattern_->n == 0) return;
-    klu_z_tsolve(symbolic_, numeric_, pattern_->n, 1, as_doubles(rhs), 0, &common_);
+    klu_z_tsolve(analysis_->symbolic, current_, pattern_->n, 1, as_doubles(rhs), 0, &common_);
   }
 
   int full_factorizations() const override { return full_factorizations_; }
 
  private:
   bool refactor(const std::complex<double>* values) {
-    if (!klu_z_refactor(col_ptr_.data(), row_index_.data(), as_doubles(values), symbolic_, numeric_,
-                        &common_))
+    if (!klu_z_refactor(analysis_->col_ptr.data(), analysis_->row_index.data(), as_doubles(values),
+                        analysis_->symbolic, anchor_, &common_))
       return false;
-    klu_z_rcond(symbolic_, numeric_, &common_);
-    return common_.rcond >= kRcondDropLimit * rcond_at_factor_ && common_.rcond > 0;
+    klu_z_rcond(analysis_->symbolic, anchor_, &common_);
+    return common_.rcond >= kRcondDropLimit * rcond_at_anchor_ && common_.rcond > 0;
   }
 
-  FactorStatus factor_fresh(const std::complex<double>* values) {
-    if (numeric_ != nullptr) klu_z_free_numeric(&numeric_, &common_);
+  /// A full factorisation into `numeric` (freed first); nullptr when singular.
+  FactorStatus factor_into(klu_numeric*& numeric, const std::complex<double>* values) {
+    if (numeric != nullptr) klu_z_free_numeric(&numeric, &common_);
+    current_ = nullptr;
     ++full_factorizations_;
-    numeric_ =
-        klu_z_factor(col_ptr_.data(), row_index_.data(), as_doubles(values), symbolic_, &common_);
-    if (numeric_ == nullptr || common_.status == KLU_SINGULAR) {
+    numeric = klu_z_factor(analysis_->col_ptr.data(), analysis_->row_index.data(), as_doubles(values),
+                           analysis_->symbolic, &common_);
+    if (numeric == nullptr || common_.status == KLU_SINGULAR) {
       singular_column_ = common_.singular_col < pattern_->n ? common_.singular_col : -1;
-      if (numeric_ != nullptr) klu_z_free_numeric(&numeric_, &common_);
+      if (numeric != nullptr) klu_z_free_numeric(&numeric, &common_);
       return FactorStatus::singular;
     }
-    klu_z_rcond(symbolic_, numeric_, &common_);
-    rcond_at_factor_ = common_.rcond;
+    current_ = numeric;
     singular_column_ = -1;
     return FactorStatus::ok;
   }
 
+  // The first full factorisation: its pivots serve every later point.
+  FactorStatus factor_anchor(const std::complex<double>* values) {
+    const FactorStatus status = factor_into(anchor_, values);
+    if (status == FactorStatus::ok) {
+      klu_z_rcond(analysis_->symbolic, anchor_, &common_);
+      rcond_at_anchor_ = common_.rcond;
+    }
+    return status;
+  }
+
+  // Fresh pivots for this point alone; the anchor keeps its pivot sequence.
+  FactorStatus factor_fresh(const std::complex<double>* values) { return factor_into(fresh_, values); }
+
   void release() {
-    if (numeric_ != nullptr) klu_z_free_numeric(&numeric_, &common_);
-    if (symbolic_ != nullptr) klu_free_symbolic(&symbolic_, &common_);
+    if (anchor_ != nullptr) klu_z_free_numeric(&anchor_, &common_);
+    if (fresh_ != nullptr) klu_z_free_numeric(&fresh_, &common_);
+    current_ = nullptr;
+    analysis_.reset();
   }
 
   klu_common common_{};
-  klu_symbolic* symbolic_ = nullptr;
-  klu_numeric* numeric_ = nullptr;
+  std::shared_ptr<KluAnalysis> analysis_;
+  klu_numeric* anchor_ = nullptr;   // pivots of the first full factorisation
+  klu_numeric* fresh_ = nullptr;    // fresh pivots of the last point that needed them
+  klu_numeric* current_ = nullptr;  // the factors of the point factored last
   const CscPattern* pattern_ = nullptr;
   const std::complex<double>* values_ = nullptr;  // of the last factorisation
-  std::vector<int> col_ptr_, row_index_;  // KLU wants mutable int arrays
-  double rcond_at_factor_ = 0;
+  double rcond_at_anchor_ = 0;
   int singular_column_ = -1;
   int full_factorizations_ = 0;
 };

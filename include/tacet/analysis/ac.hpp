@@ -44,6 +44,9 @@ struct AcOptions {
   /// source's ac zeroed); empty: every source's ac, superposed.
   std::string input;
   SolverKind solver = SolverKind::klu;  ///< sparse LU backend (Eigen: for comparison)
+  /// Worker threads for the points; 0: one per core. The result is the same
+  /// bit for bit for any number.
+  int threads = 1;
 };
 
 struct AcTrace {

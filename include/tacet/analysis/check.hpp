@@ -51,6 +51,22 @@ struct SharedAnalyses {
 };
 CheckResult run_check(const Circuit& circuit, const SharedAnalyses& shared);
 
+struct CheckOptions {
+  /// Worker threads for the specs; 0: one per core. The specs are shared out
+  /// in groups (those that share a loop trace, a step response or the
+  /// headroom sweep go together), each worker with a frequency response of
+  /// its own anchored at check_anchor(); the DC analysis runs once before
+  /// them. The result is the same bit for bit for any number.
+  int threads = 1;
+};
+CheckResult run_check(const Circuit& circuit, const CheckOptions& options);
+
+/// Hz where a check's own frequency response takes the pivots every later
+/// frequency reuses (response.hpp), so that no spec's value depends on which
+/// spec was measured before it: the first spec's at=, else its ref=, else its
+/// from= (the frequency it would factor first), else 1 kHz.
+double check_anchor(const Circuit& circuit);
+
 /// A phase compared with its limits modulo 360 degrees: of the angles that
 /// differ from `degrees` by whole turns, the one nearest the window's centre
 /// (or its one limit). -180.6 and 179.4 deg are the same angle.

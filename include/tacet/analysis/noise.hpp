@@ -81,6 +81,9 @@ struct NoiseOptions {
   std::size_t curves = 6;
   Weighting weight = Weighting::none;  ///< applied to every band figure
   std::string source;         ///< a resistor's name: noise figure against its thermal noise
+  /// Worker threads for the band integral's samples and the printed points;
+  /// 0: one per core. The result is the same bit for bit for any number.
+  int threads = 1;
   /// Empty when valid, else a message naming the option, its value and the rule.
   std::string validate() const;
 };

@@ -69,6 +69,19 @@ BandIntegral integrate_band(double f1, double f2, std::size_t m, std::size_t che
                             const BandIntegrand& integrand,
                             const BandIntegrationOptions& options = {});
 
+/// Writes the m integrand values at each of `count` frequencies: out[k m ..
+/// (k + 1) m) at f[k]. The samples are independent, so a caller may compute
+/// them on several threads; the integrator asks for a panel's samples (or a
+/// bisection's 31) at once and sums them one at a time in a fixed order, so
+/// the integral does not depend on how the batch was shared out. A batch
+/// that throws stands for the first of its samples that fails.
+using BandBatchIntegrand = std::function<void(const double* f, std::size_t count, double* out)>;
+
+/// integrate_band with the samples asked for in batches.
+BandIntegral integrate_band_batched(double f1, double f2, std::size_t m, std::size_t checked,
+                                    const BandBatchIntegrand& integrand,
+                                    const BandIntegrationOptions& options = {});
+
 /// Nodes and weights of the n-point Gauss-Legendre rule (kept for tests and
 /// callers that want a plain rule) on [-1, 1], computed by
 /// Newton's method on the Legendre polynomial P_n (to machine precision).

@@ -11,6 +11,13 @@
 //
 // solve_transposed solves A^T x = b (the plain transpose, not the conjugate
 // one): the adjoint noise analysis needs exactly that.
+//
+// A point's factors do not depend on the points factored before it: a backend
+// that reuses a pivot sequence (KLU's refactor) reuses the one of its first
+// full factorisation (the anchor), and fresh pivots taken at one point (the
+// pivots turned bad there, or the solution check asked for them) serve that
+// point only. So a sweep cut into blocks on several threads, each solver
+// anchored at the same values, gives every point bit for bit.
 
 #include <complex>
 #include <limits>
@@ -55,6 +62,11 @@ class SparseLu {
   /// The frequency (Hz; 0 at DC) of the matrix about to be factored, named
   /// when a solution cannot be trusted.
   virtual void at_point(double /*hz*/) {}
+  /// A solver of its own on this one's symbolic analysis (shared, read-only:
+  /// it must have been analysed, and factored once so that the analysis is
+  /// complete), with no factorisation yet: one per worker thread. nullptr
+  /// when the backend cannot share it (the caller analyses anew).
+  virtual std::unique_ptr<SparseLu> share_analysis() const { return nullptr; }
 };
 
 /// LU of a real sparse matrix: the DC system (s = 0 leaves every entry real),

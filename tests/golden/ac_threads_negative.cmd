@@ -1,0 +1,8 @@
+ac
+@/rc_lowpass.tacet
+--probe
+out
+--threads
+-1
+--output
+@/never-written.txt

@@ -1,0 +1,12 @@
+ac
+@/rc_lowpass.tacet
+--probe
+out
+--from
+1
+--to
+1M
+--per-decade
+40
+--threads
+3

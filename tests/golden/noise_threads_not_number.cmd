@@ -1,0 +1,6 @@
+noise
+@/rc_lowpass.tacet
+--probe
+out
+--threads
+two
