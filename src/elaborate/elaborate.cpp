@@ -31,6 +31,8 @@ std::optional<Circuit> Elaborator::run(const std::string& path) {
   if (options_.ambient_celsius) circuit_.ambient_celsius = *options_.ambient_celsius;
   InstanceContext top;
   top.scope = &globals_;
+  // Most netlists are flat: one element per top-level statement.
+  circuit_.elements.reserve(top_instances_.size());
   for (const auto& [instance, file] : top_instances_) instantiate(*instance, file, top);
   check_matched_sets();
   for (const auto& [spec, file] : specs_) elaborate_spec(*spec, file);
@@ -140,7 +142,7 @@ void Elaborator::collect(const ast::Netlist& netlist, int file) {
   for (const auto& statement : netlist.statements) boost::apply_visitor(Visitor{*this, file}, statement);
 }
 
-bool Elaborator::check_unique(std::map<std::string, SourceLocation>& seen, const std::string& what,
+bool Elaborator::check_unique(DefinedNames& seen, const std::string& what,
                               const ast::Identifier& name, int file, const std::string& full_name) {
   auto [it, inserted] = seen.emplace(full_name, SourceLocation{file, name.offset});
   if (inserted) return true;
@@ -263,11 +265,27 @@ std::optional<double> Elaborator::overridden(const std::string& name, const Scop
   return evaluate(o->value, o->file, scope, dimension, diagnostics_);
 }
 
+namespace {
+
+/// The keys of `names` in sorted order: the hints consider candidates in the
+/// order a sorted map would give them, whatever the table's own order.
+std::vector<std::string> sorted_names(const DefinedNames& names) {
+  std::vector<std::string> out;
+  out.reserve(names.size());
+  for (const auto& [n, w] : names) out.push_back(n);
+  std::sort(out.begin(), out.end());
+  return out;
+}
+
+}  // namespace
+
 void Elaborator::report_unused_overrides() {
+  if (std::all_of(overrides_.begin(), overrides_.end(), [](const ParsedOverride& o) { return o.used; }))
+    return;  // the candidates for a hint are gathered only when there is one to give
   std::vector<std::string> names;
   for (const auto& [n, w] : globals_.params) names.push_back(n);
-  for (const auto& [n, w] : element_names_) names.push_back(n);
-  for (const auto& [n, w] : model_names_) names.push_back(n);
+  for (std::string& n : sorted_names(element_names_)) names.push_back(std::move(n));
+  for (std::string& n : sorted_names(model_names_)) names.push_back(std::move(n));
   for (const auto& o : overrides_) {
     if (o.used) continue;
     std::string near = nearest_word(o.text.name, names);
@@ -412,7 +430,8 @@ std::optional<OpAmpModel> Elaborator::resolve_model(const ast::Model& model, int
   out.where = {file, model.name.offset};
   bool ok = true;
   const KeyWording wording{"unknown op-amp parameter '{}'", "op-amp parameters",
-                           fmt::format("'{{}}' is given twice in model '{}'", out.name)};
+                           "'{0}' is given twice in model '{1}'", "option '{}' needs a value",
+                           out.name};
   // KEY_tol on a key that takes none is said as such, not as an unknown key.
   std::vector<WrittenKey> written;
   for (const WrittenKey& key : written_keys(model.entries)) {

@@ -51,6 +51,12 @@ int Elaborator::resolve_node(const std::string& name, const InstanceContext& con
                              SourceLocation where) {
   if (name == "gnd") return 0;
   if (auto it = context.ports.find(name); it != context.ports.end()) return it->second;
+  if (context.prefix.empty()) {  // the top level: the name as written, without a copy
+    if (name == "0" && !circuit_.find_node(name))
+      diagnostics_.warning(where, "node '0' is an ordinary node here, not the reference",
+                           "the reference node is called gnd");
+    return circuit_.node(name, where);
+  }
   if (name == "0" && !circuit_.find_node(context.prefix + name))
     diagnostics_.warning(where, "node '0' is an ordinary node here, not the reference",
                          "the reference node is called gnd");
@@ -317,8 +323,8 @@ void Elaborator::build_element(const ast::Instance& instance, int file,
   const Scope& scope = *context.scope;
   bool ok = read_element_value(e, instance, file, scope);
 
-  const KeyWording wording{fmt::format("'{}' takes no option '{{}}'", instance.keyword.text),
-                           "options", "option '{}' is given twice"};
+  const KeyWording wording{"'{1}' takes no option '{0}'", "options", "option '{}' is given twice",
+                           "option '{}' needs a value", instance.keyword.text};
   double load = 0;
   const KeysRead keys = read_keys(written_keys(instance.options), t.options, wording, file, e.name,
                                   [&](const KeyValue& option) {
@@ -397,9 +403,9 @@ bool Elaborator::bind_arguments(const ast::Instance& use, int file, const From<a
                                 const std::string& full, const Scope& outer, Scope& scope) {
   std::vector<KeyRule> parameters;
   for (const auto& p : block.node->parameters) parameters.push_back({p.key.text, Dimension::any});
-  const KeyWording wording{
-      fmt::format("block '{}' has no parameter '{{}}'", block.node->name.text), "parameters",
-      "argument '{}' is given twice", "argument '{}' needs a value"};
+  const KeyWording wording{"block '{1}' has no parameter '{0}'", "parameters",
+                           "argument '{}' is given twice", "argument '{}' needs a value",
+                           block.node->name.text};
   bool ok = true;
   // Arguments are evaluated where the block is used; --set F1.r= wins.
   const KeysRead keys = read_keys(written_keys(use.options), parameters, wording, file, "",

@@ -518,8 +518,9 @@ void Elaborator::elaborate_spec(const ast::Spec& ast_spec, int file) {
 
   if (!weight_fits(*kind, ast_spec, file)) return;
   SpecKeys given;
-  const KeyWording wording{fmt::format("a {} spec takes no option '{{}}'", ast_spec.kind.text),
-                           "options", "option '{}' is given twice"};
+  const KeyWording wording{"a {1} spec takes no option '{0}'", "options",
+                           "option '{}' is given twice", "option '{}' needs a value",
+                           ast_spec.kind.text};
   const KeysRead keys = read_keys(written_keys(ast_spec.options), options_for(*kind), wording, file,
                                   "", [&](const KeyValue& option) {
                                     given.emplace(option.rule->name, option);

@@ -8,6 +8,10 @@
 #include <optional>
 #include <set>
 #include <string>
+#include <string_view>
+#include <type_traits>
+#include <unordered_map>
+#include <utility>
 #include <vector>
 
 #include "tacet/language/ast.hpp"
@@ -42,13 +46,40 @@ struct WrittenKey {
 std::vector<WrittenKey> written_keys(const std::vector<ast::Option>& options);
 std::vector<WrittenKey> written_keys(const std::vector<ast::ModelEntry>& entries);
 
-/// How one statement's key errors read; `{}` stands for the key.
+/// How one statement's key errors read; `{0}` (or a lone `{}`) stands for the
+/// key, `{1}` for `subject` (the statement's keyword or name). Views of
+/// literals, so a statement pays for its wording only when a message is made.
 struct KeyWording {
-  std::string unknown;   ///< "'res' takes no option '{}'"
-  std::string choices;   ///< what a hint that lists the keys calls them: "options"
-  std::string twice;     ///< "option '{}' is given twice"
-  std::string needs_value = "option '{}' needs a value";
+  std::string_view unknown;   ///< "'{1}' takes no option '{0}'"
+  std::string_view choices;   ///< what a hint that lists the keys calls them: "options"
+  std::string_view twice;     ///< "option '{}' is given twice"
+  std::string_view needs_value = "option '{}' needs a value";
+  std::string_view subject = {};
 };
+
+/// A callable passed down without being copied or allocated (std::function
+/// allocates for a lambda that captures more than two pointers); valid only
+/// while the callable it views lives, which a call's arguments do.
+template <typename Signature>
+class FunctionRef;
+template <typename R, typename... Args>
+class FunctionRef<R(Args...)> {
+ public:
+  template <typename F, typename = std::enable_if_t<!std::is_same_v<std::decay_t<F>, FunctionRef>>>
+  FunctionRef(F&& f)  // NOLINT: implicit, like std::function
+      : object_(const_cast<void*>(static_cast<const void*>(&f))),
+        call_([](void* object, Args... args) -> R {
+          return (*static_cast<std::remove_reference_t<F>*>(object))(std::forward<Args>(args)...);
+        }) {}
+  R operator()(Args... args) const { return call_(object_, std::forward<Args>(args)...); }
+
+ private:
+  void* object_;
+  R (*call_)(void*, Args...);
+};
+
+/// Names already defined, by kind: looked up once per element, so hashed.
+using DefinedNames = std::unordered_map<std::string, SourceLocation>;
 
 /// An accepted key, as the statement will read it: the value of `--set
 /// OWNER.key=` when there is one (then `file` is the override's own), else
@@ -105,7 +136,7 @@ class Elaborator {
   bool set_model_key(OpAmpModel& model, const KeyValue& entry);
   void report_unused_overrides();
   ParsedOverride* find_override(const std::string& name);
-  bool check_unique(std::map<std::string, SourceLocation>& seen, const std::string& what,
+  bool check_unique(DefinedNames& seen, const std::string& what,
                     const ast::Identifier& name, int file, const std::string& full_name);
 
   // keys.cpp: the one reader of key tables. Checks each written key against
@@ -114,9 +145,9 @@ class Elaborator {
   // written that `--set OWNER.key=` gives (no overrides when `owner` is empty).
   KeysRead read_keys(const std::vector<WrittenKey>& written, KeyTable table,
                      const KeyWording& wording, int file, const std::string& owner,
-                     const std::function<void(const KeyValue&)>& use);
+                     FunctionRef<void(const KeyValue&)> use);
   bool check_key(const WrittenKey& key, const KeyRule* rule, const KeyWording& wording, int file,
-                 const std::vector<std::string>& names);
+                 KeyTable table);
 
   // elaborate_spec.cpp: the budget
   void elaborate_spec(const ast::Spec& spec, int file);
@@ -152,6 +183,8 @@ class Elaborator {
   std::vector<int> connect(const ast::Instance& instance, const InstanceContext& context,
                            ElementKind kind, int file);
   int resolve_node(const std::string& name, const InstanceContext& context, SourceLocation where);
+  /// `--set` names none of the statements: the common case, which needs no lookup.
+  bool no_overrides() const { return overrides_.empty(); }
   std::optional<double> value_of(const ast::Expr& expr, int file, const Scope& scope,
                                  Dimension dimension);
   std::optional<double> overridden(const std::string& name, const Scope& scope,
@@ -186,9 +219,9 @@ class Elaborator {
   std::map<std::string, From<ast::Block>> blocks_;
   std::vector<From<ast::Model>> model_order_;
   std::vector<From<ast::Spec>> specs_;
-  std::map<std::string, SourceLocation> spec_names_;
+  DefinedNames spec_names_;
   std::map<std::string, int> model_index_;  // name -> Circuit::models index, -1 if bad
-  std::map<std::string, SourceLocation> model_names_, block_names_, element_names_;
+  DefinedNames model_names_, block_names_, element_names_;
   std::vector<ParsedOverride> overrides_;
 };
 

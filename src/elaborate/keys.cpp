@@ -1,11 +1,37 @@
 // The one reader of key tables: element options, model parameters and spec
 // options are all checked here against their statement's table.
 
+#include <algorithm>
+
+#include <boost/container/small_vector.hpp>
 #include <fmt/format.h>
 
 #include "elaborate/elaborator.hpp"
 
 namespace tacet::detail {
+
+namespace {
+
+/// The keys a statement has given, by name. A statement writes a handful of
+/// keys, so a short list searched from the start beats a tree that allocates
+/// a node for each; it holds each name once, so it never outgrows the table.
+class GivenKeys {
+ public:
+  bool contains(std::string_view name) const {
+    return std::find(names_.begin(), names_.end(), name) != names_.end();
+  }
+  /// False when `name` was given before.
+  bool insert(std::string_view name) {
+    if (contains(name)) return false;
+    names_.push_back(name);
+    return true;
+  }
+
+ private:
+  boost::container::small_vector<std::string_view, 16> names_;
+};
+
+}  // namespace
 
 std::vector<WrittenKey> written_keys(const std::vector<ast::Option>& options) {
   std::vector<WrittenKey> out;
@@ -22,10 +48,12 @@ std::vector<WrittenKey> written_keys(const std::vector<ast::ModelEntry>& entries
 }
 
 bool Elaborator::check_key(const WrittenKey& key, const KeyRule* rule, const KeyWording& wording,
-                           int file, const std::vector<std::string>& names) {
+                           int file, KeyTable table) {
   const std::string& name = key.key->text;
   if (!rule) {
-    error(file, *key.key, fmt::format(fmt::runtime(wording.unknown), name),
+    std::vector<std::string> names;
+    for (const KeyRule& r : table) names.emplace_back(r.name);
+    error(file, *key.key, fmt::format(fmt::runtime(wording.unknown), name, wording.subject),
           choice_hint(name, names, wording.choices));
     return false;
   }
@@ -33,31 +61,29 @@ bool Elaborator::check_key(const WrittenKey& key, const KeyRule* rule, const Key
   if (flag == !key.value) return true;
   error(file, *key.whole,
         flag ? fmt::format("'{}' is a flag and takes no value", name)
-             : fmt::format(fmt::runtime(wording.needs_value), name),
+             : fmt::format(fmt::runtime(wording.needs_value), name, wording.subject),
         flag ? fmt::format("write just '{}'", name) : fmt::format("write {}=...", name));
   return false;
 }
 
 KeysRead Elaborator::read_keys(const std::vector<WrittenKey>& written, KeyTable table,
                                const KeyWording& wording, int file, const std::string& owner,
-                               const std::function<void(const KeyValue&)>& use) {
+                               FunctionRef<void(const KeyValue&)> use) {
   KeysRead read;
-  std::vector<std::string> names;
-  for (const KeyRule& rule : table) names.emplace_back(rule.name);
-  std::set<std::string_view> given;
+  GivenKeys given;
   // `--set OWNER.key=` wins over the written value; a flag takes no override.
   auto override_of = [&](const KeyRule& rule) -> ParsedOverride* {
-    if (owner.empty() || rule.form == KeyForm::flag) return nullptr;
+    if (owner.empty() || no_overrides() || rule.form == KeyForm::flag) return nullptr;
     ParsedOverride* o = find_override(owner + "." + std::string(rule.name));
     if (o) o->used = true;
     return o;
   };
   for (const WrittenKey& key : written) {
     const KeyRule* rule = find_key(table, key.key->text);
-    if (!check_key(key, rule, wording, file, names)) {
+    if (!check_key(key, rule, wording, file, table)) {
       read.ok = false;
-    } else if (!given.insert(rule->name).second && rule->need != Need::repeated) {
-      error(file, *key.key, fmt::format(fmt::runtime(wording.twice), key.key->text));
+    } else if (!given.insert(rule->name) && rule->need != Need::repeated) {
+      error(file, *key.key, fmt::format(fmt::runtime(wording.twice), key.key->text, wording.subject));
       read.ok = false;
     } else if (ParsedOverride* o = override_of(*rule)) {
       use({rule, key.key, &o->value, o->file, key.whole});
@@ -66,7 +92,7 @@ KeysRead Elaborator::read_keys(const std::vector<WrittenKey>& written, KeyTable 
     }
   }
   for (const KeyRule& rule : table) {  // --set OWNER.key for a key not written
-    if (given.count(rule.name)) continue;
+    if (given.contains(rule.name)) continue;
     if (ParsedOverride* o = override_of(rule)) {
       given.insert(rule.name);
       use({&rule, nullptr, &o->value, o->file, nullptr});

@@ -220,6 +220,17 @@ std::size_t utf8_sequence(std::string_view text, std::size_t at) {
 std::optional<EncodingProblem> check_encoding(std::string_view text) {
   for (std::size_t at = 0; at < text.size();) {
     const auto c = static_cast<unsigned char>(text[at]);
+    // Printable ASCII and line ends, nearly every byte of a netlist, need no
+    // decoding: a tight scan passes over them to the next byte that may.
+    if ((c >= 0x20 && c < 0x7F) || c == '\n' || c == '\t' || c == '\r') {
+      const auto plain = [](char b) {
+        return static_cast<unsigned char>(b) - 0x20u < 0x5Fu || b == '\n';
+      };
+      at = static_cast<std::size_t>(
+          std::find_if_not(text.begin() + static_cast<std::ptrdiff_t>(at) + 1, text.end(), plain) -
+          text.begin());
+      continue;
+    }
     const auto offset = static_cast<std::uint32_t>(at);
     if (c == 0) return EncodingProblem{offset, 1, "a NUL byte: a netlist is text"};
     if ((c < 0x20 && c != '\t' && c != '\n' && c != '\r') || c == 0x7F)

@@ -95,7 +95,35 @@ const char* describe(Dimension dimension) {
   return "a value";
 }
 
+namespace {
+
+std::optional<Unit> decode_suffix_by_tables(std::string_view suffix);
+
+/// A suffix of one character ("k", "p", "V") is most of what netlists write:
+/// each is decoded once, by the tables, and looked up after that.
+const std::optional<Unit>& decode_one_character(char c) {
+  static const auto decoded = [] {
+    std::array<std::optional<Unit>, 128> out{};
+    for (std::size_t i = 1; i < out.size(); ++i) {
+      const char one = static_cast<char>(i);
+      out[i] = decode_suffix_by_tables(std::string_view(&one, 1));
+    }
+    return out;
+  }();
+  return decoded[static_cast<unsigned char>(c)];
+}
+
+}  // namespace
+
 std::optional<Unit> decode_suffix(std::string_view suffix) {
+  if (suffix.size() == 1 && static_cast<unsigned char>(suffix[0]) < 128 && suffix[0] != '\0')
+    return decode_one_character(suffix[0]);
+  return decode_suffix_by_tables(suffix);
+}
+
+namespace {
+
+std::optional<Unit> decode_suffix_by_tables(std::string_view suffix) {
   if (suffix.empty()) return Unit{};
   if (suffix == "%") return Unit{Dimension::ratio, 0.01, Transform::scale, "%"};
   if (auto unit = decode_unit(suffix)) return unit;
@@ -110,6 +138,8 @@ std::optional<Unit> decode_suffix(std::string_view suffix) {
   }
   return std::nullopt;
 }
+
+}  // namespace
 
 bool unit_fits(Dimension unit, Dimension expected) {
   if (unit == Dimension::none || expected == Dimension::any || unit == expected) return true;

@@ -86,6 +86,8 @@ class TextParser {
 
   std::optional<ast::Netlist> run() {
     ast::Netlist netlist;
+    // At most one statement a line: one allocation, no moves of grown storage.
+    netlist.statements.reserve(static_cast<std::size_t>(std::count(state_.begin, state_.end, '\n')) + 1);
     iterator_type at = after_byte_order_mark(state_.begin, state_.end);
     while (skip_blank_lines(at)) {
       if (errors_ == max_errors) {
@@ -95,6 +97,20 @@ class TextParser {
       // Kept here: block bodies move state_.statement_start to their own statements.
       const iterator_type statement_start = at;
       state_.statement_start = at;
+      if (const InstanceStart start = instance_start(at); start != InstanceStart::none) {
+        netlist.statements.emplace_back(ast::Instance{});
+        auto& instance = boost::get<ast::Instance>(netlist.statements.back());
+        const Outcome outcome = start == InstanceStart::element
+                                    ? parse_in_place(at, instance, parser::element_line)
+                                    : parse_in_place(at, instance, parser::use_line);
+        if (outcome == Outcome::parsed) continue;
+        netlist.statements.pop_back();
+        if (outcome == Outcome::failed) {
+          at = next_statement_line(statement_start);
+          continue;
+        }
+        at = statement_start;  // declined: the general path decides
+      }
       ast::Statement statement;
       if (parse_statement(at, statement)) {
         netlist.statements.push_back(std::move(statement));
@@ -126,6 +142,42 @@ class TextParser {
   }
 
  private:
+  enum class InstanceStart { none, element, use };
+  enum class Outcome { parsed, failed, declined };
+
+  /// Whether the statement at `at` starts with an element keyword or `use`, as
+  /// the keyword rules decide it: the whole word, up to a byte that cannot
+  /// continue a name.
+  InstanceStart instance_start(iterator_type at) const {
+    iterator_type stop = at;
+    while (stop != state_.end && is_name_byte(*stop)) ++stop;
+    const std::string_view word(at, static_cast<std::size_t>(stop - at));
+    if (word == "use") return InstanceStart::use;
+    return element_kind_of(word) ? InstanceStart::element : InstanceStart::none;
+  }
+
+  static bool is_name_byte(char c) {
+    return (c >= 'a' && c <= 'z') || (c >= 'A' && c <= 'Z') || (c >= '0' && c <= '9') || c == '_';
+  }
+
+  /// An element or `use` statement parsed straight into the netlist's own
+  /// Instance: the general path would parse it into a Statement aside (after
+  /// the other alternatives fail on its keyword) and move it in. Once the
+  /// keyword matches the statement is committed either way, so the errors are
+  /// the general path's; "declined" (no error, no match) hands it back.
+  template <class Line>
+  Outcome parse_in_place(iterator_type& at, ast::Instance& instance, Line const& line) {
+    auto const grammar = x3::with<parser::state_tag>(state_)[x3::skip(parser::skipper)[line]];
+    try {
+      return x3::parse(at, state_.end, grammar, instance) ? Outcome::parsed : Outcome::declined;
+    } catch (const parser::expectation_failure& failure) {
+      report_expectation(failure);
+    } catch (const parser::syntax_error& error) {
+      report(error.where, error.length, Severity::error, error.message, error.hint);
+    }
+    return Outcome::failed;
+  }
+
   /// Moves past empty and comment-only lines; false at the end of the text.
   bool skip_blank_lines(iterator_type& at) const {
     x3::parse(at, state_.end, *(parser::skipper | x3::eol));

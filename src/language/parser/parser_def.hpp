@@ -25,6 +25,27 @@
 #include "tacet/language/element_kinds.hpp"
 #include "tacet/language/parser.hpp"
 
+namespace boost::spirit::x3::traits {
+
+// A statement's connections and options are a handful each: room for four
+// at the first, instead of growing through one, two and four.
+template <typename Element>
+struct reserving_push_back {
+  template <typename T>
+  static bool call(std::vector<Element>& c, T&& value) {
+    if (c.capacity() == 0) c.reserve(4);
+    c.push_back(static_cast<T&&>(value));
+    return true;
+  }
+};
+template <>
+struct push_back_container<std::vector<tacet::ast::Terminal>>
+    : reserving_push_back<tacet::ast::Terminal> {};
+template <>
+struct push_back_container<std::vector<tacet::ast::Option>> : reserving_push_back<tacet::ast::Option> {};
+
+}  // namespace boost::spirit::x3::traits
+
 namespace tacet::parser {
 
 // ---- skippers -------------------------------------------------------------
@@ -147,6 +168,8 @@ x3::rule<quantity_id, ast::Quantity> const quantity = "quantity";
 x3::rule<term_id, ast::Expr> const term = "term";
 x3::rule<signed_term_id, ast::Unary> const signed_term = "term";
 x3::rule<expression_id, ast::Expr> const expression = "expression";
+/// `expression` without the shortcut for a lone operand (expression_parser).
+x3::rule<struct expression_long_id, ast::Expr> const expression_long = "expression";
 x3::rule<sum_id, ast::Chain> const sum = "sum";
 x3::rule<sum_operation_id, ast::Operation> const sum_operation = "sum";
 x3::rule<product_id, ast::Chain> const product = "product";
@@ -222,7 +245,8 @@ auto keyword_identifier(Words words) {
 }
 
 inline auto const identifier_def = x3::raw[x3::lexeme[(letter | '_') >> *name_char]][set_identifier];
-inline auto const node_def = x3::lexeme[+name_char];
+// raw: the name is copied once, not appended a character at a time.
+inline auto const node_def = x3::raw[x3::lexeme[+name_char]];
 inline auto const digits_def = +digit;
 inline auto const numeral_def = x3::raw[x3::lexeme[
     (digits >> -('.' >> -digits) | '.' >> digits) >>
@@ -262,9 +286,27 @@ inline auto const collapse_chain = [](auto& ctx) {
 inline auto const group_close = token(')', "group_close");
 inline auto const call_close = token(')', "call_close");
 
+/// `expression`. A lone number or name, the whole of nearly every value (`10k`, `chain_amp`),
+/// parsed without the chains that `sum`, `product` and `power` build around it
+/// and collapse again. It fails without moving when an operator or a call's
+/// '(' follows, or at the nesting bound, and `sum` then parses the same text
+/// the long way: the tree, the locations and the errors are the same.
+struct expression_parser : x3::parser<expression_parser> {
+  using attribute_type = ast::Expr;
+  static bool const has_attribute = true;
+
+  template <class Iterator, class Context, class RContext, class Attribute>
+  bool parse(Iterator& first, Iterator const& last, Context const& context, RContext& rcontext,
+             Attribute& attribute) const;
+  template <class Iterator, class Context, class RContext, class Attribute>
+  bool parse_simple(Iterator& first, Iterator const& last, Context const& context,
+                    RContext& rcontext, Attribute& attribute) const;
+};
+
 inline auto const term_def = signed_term | primary;
 inline auto const signed_term_def = x3::char_("+-") >> primary;
-inline auto const expression_def = sum[collapse_chain];
+inline auto const expression_def = expression_parser{};
+inline auto const expression_long_def = sum[collapse_chain];
 inline auto const sum_def = product_value >> *sum_operation;
 inline auto const sum_operation_def = x3::char_("+-") > product_value;
 inline auto const product_value_def = product[collapse_chain];
@@ -467,8 +509,47 @@ inline auto const spec_def = keyword_of(x3::lit("spec")) > identifier > spec_kin
 inline auto const statement_def = title | include | ambient | supply | param | element | use |
                                   model | block | spec | unknown_statement;
 
+template <class Iterator, class Context, class RContext, class Attribute>
+bool expression_parser::parse(Iterator& first, Iterator const& last, Context const& context,
+                              RContext& rcontext, Attribute& attribute) const {
+  if (parse_simple(first, last, context, rcontext, attribute)) return true;
+  return expression_long.parse(first, last, context, rcontext, attribute);
+}
+
+template <class Iterator, class Context, class RContext, class Attribute>
+bool expression_parser::parse_simple(Iterator& first, Iterator const& last, Context const& context,
+                                     RContext& rcontext, Attribute& attribute) const {
+  if (x3::get<state_tag>(context).nesting >= kDeepestExpression) return false;  // sum reports it
+  Iterator at = first;
+  x3::skip_over(at, last, context);
+  if (at == last) return false;
+  const auto c = static_cast<unsigned char>(*at);
+  const bool starts_number = (c >= '0' && c <= '9') || c == '.';
+  const bool starts_name = (c >= 'a' && c <= 'z') || (c >= 'A' && c <= 'Z') || c == '_';
+  if (!starts_number && !starts_name) return false;
+  auto followed_by_operator = [&](Iterator end) {
+    x3::skip_over(end, last, context);
+    if (end == last) return false;
+    switch (*end) {
+      case '+': case '-': case '*': case '/': case '^': case '(': return true;
+      default: return false;
+    }
+  };
+  if (starts_number) {
+    ast::Quantity q;
+    if (!quantity.parse(at, last, context, rcontext, q) || followed_by_operator(at)) return false;
+    attribute = std::move(q);
+  } else {
+    ast::Identifier id;
+    if (!identifier.parse(at, last, context, rcontext, id) || followed_by_operator(at)) return false;
+    attribute = std::move(id);
+  }
+  first = at;
+  return true;
+}
+
 BOOST_SPIRIT_DEFINE(identifier, string, node, numeral, digits, suffix, word, quantity, term,
-                    signed_term, expression, sum, sum_operation, product, product_value,
+                    signed_term, expression, expression_long, sum, sum_operation, product, product_value,
                     product_operation, unary, negation, power, power_value, power_operation,
                     primary, call, value, terminal, port, connections, option, title, title_text,
                     include, include_text, ambient, ambient_text, supply, param, element, valued,
@@ -477,6 +558,11 @@ BOOST_SPIRIT_DEFINE(identifier, string, node, numeral, digits, suffix, word, qua
 
 /// One statement and the end of its line: what parse_netlist runs per statement.
 inline auto const statement_line = statement > end_of_statement;
+/// The same for a statement known to start with an element keyword, or `use`:
+/// `statement` would reach `element` (or `use`) after its other alternatives
+/// fail on the keyword, and then build the instance aside and move it in.
+inline auto const element_line = element > end_of_statement;
+inline auto const use_line = use > end_of_statement;
 /// A value given on its own (a --set value): an expression and nothing after it.
 inline auto const lone_expression =
     expression > (x3::rule<token_id>{"end_of_statement"} = x3::eoi);
