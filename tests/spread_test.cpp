@@ -3,6 +3,7 @@
 #include <cmath>
 #include <string>
 
+#include "tacet/analysis/check.hpp"
 #include "tacet/analysis/spread.hpp"
 #include "tacet/analysis/spread_random.hpp"
 #include "tacet/common/errors.hpp"
@@ -306,4 +307,35 @@ TEST_CASE("op-amp model tolerances spread per instance", "[spread]") {
   const double at_7M = -20 * std::log10(1 + 1.0 / 49);  // two stages, |.|^2 = 1/(1 + (1/7)^2)
   CHECK(r.specs[0].sd > 0);
   CHECK(r.specs[0].min >= at_7M - 0.01);
+}
+
+TEST_CASE("a draw's DC specs on the restamped DC system equal check on a circuit built at its values",
+          "[spread]") {
+  // The evaluator restamps one DC system per worker; a circuit elaborated
+  // anew at the draw's values (each part nominal x (1 + d)) must measure the
+  // same offset and rails, to rounding.
+  const std::string text =
+      "model drifty opamp { gbw 1MHz aol 100dB vos 1mV ib 10nA ios 1nA swing 1V }\n"
+      "supply +5V -5V\n"
+      "vsrc Vin (in, gnd) ac=1\n"
+      "res Rs (in, p) 10k tol=5%\n"
+      "res Rg (fb, gnd) 1k tol=1%\n"
+      "res Rf (out, fb) 99k tol=1%\n"
+      "opamp U1 (+p, -fb, out) drifty\n"
+      "spec dc offset (out) max=200mV\n"
+      "spec swing rails margin=0.5V\n";
+  const Circuit c = circuit_of(text);
+  const SpreadSamples samples = sample_spread(c, options(5));
+  for (std::uint64_t draw = 0; draw < 5; ++draw) {
+    std::vector<double> d;
+    draw_deviations(samples.plan, samples.seed, draw, d);
+    Circuit at = c;
+    for (std::size_t k = 0; k < samples.plan.parameters.size(); ++k)
+      at.elements[*at.find_element(samples.plan.parameters[k].name)].value *= 1 + d[k];
+    const CheckResult direct = run_check(at);
+    for (std::size_t s = 0; s < 2; ++s) {
+      REQUIRE(direct.specs[s].value);
+      CHECK(samples.values[s][draw] == Approx(*direct.specs[s].value).epsilon(1e-12));
+    }
+  }
 }

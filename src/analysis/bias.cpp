@@ -23,27 +23,6 @@ using Vector = std::vector<double>;
 constexpr std::size_t kLargestShown = 3;
 constexpr int kBlock = 16;  // DC error right-hand sides solved together
 
-/// The real MNA matrix at s = 0, factored once; every solve reuses the factors.
-class DcSolver {
- public:
-  DcSolver(const Circuit& circuit, SolverKind kind)
-      : mna_(circuit, AnalysisKind::dc), lu_(make_real_sparse_lu(kind)) {
-    lu_->analyse(mna_.pattern());
-    values_.resize(static_cast<std::size_t>(mna_.pattern().nonzeros()));
-    mna_.assemble_dc(values_.data());
-    if (lu_->factor(values_.data()) == FactorStatus::singular) throw_singular(mna_, lu_->singular_column(), 0.0);
-  }
-  const MnaSystem& mna() const { return mna_; }
-  std::size_t size() const { return static_cast<std::size_t>(mna_.size()); }
-  /// `count` right-hand sides of size() values each, solved in place.
-  void solve(Vector& block, int count) const { lu_->solve(block.data(), count); }
-
- private:
-  MnaSystem mna_;
-  std::unique_ptr<RealSparseLu> lu_;
-  Vector values_;  // the factored matrix: the solution check reads it
-};
-
 // A current `amps` leaving `node` (into an op-amp pin or a source): KCL row -= amps.
 void draw_current(const MnaSystem& mna, double* rhs, int node, double amps) {
   const int u = mna.node_unknown(node);
@@ -80,7 +59,7 @@ DcLimits dc_limits(const Circuit& circuit, const OpAmpModel& m) {
 
 namespace {
 
-Vector nominal_rhs(const Circuit& circuit, const DcSolver& dc) {
+Vector nominal_rhs(const Circuit& circuit, const DcSystem& dc) {
   const MnaSystem& mna = dc.mna();
   Vector rhs(dc.size(), 0.0);
   for (std::size_t i = 0; i < circuit.elements.size(); ++i) {
@@ -324,8 +303,37 @@ std::optional<Rails> rails_for(const Circuit& circuit, const Element& opamp) {
   return opamp.rails ? opamp.rails : circuit.supply;
 }
 
+DcSystem::DcSystem(const Circuit& circuit, SolverKind kind)
+    : mna_(std::make_unique<MnaSystem>(circuit, AnalysisKind::dc)), lu_(make_real_sparse_lu(kind)) {
+  lu_->analyse(mna_->pattern());
+  values_.resize(static_cast<std::size_t>(mna_->pattern().nonzeros()));
+  factor();
+}
+
+DcSystem::~DcSystem() = default;
+
+void DcSystem::factor() {
+  mna_->assemble_dc(values_.data());
+  if (lu_->factor(values_.data()) == FactorStatus::singular) throw_singular(*mna_, lu_->singular_column(), 0.0);
+}
+
+void DcSystem::restamp() {
+  mna_->restamp();
+  factor();
+}
+
+const Circuit& DcSystem::circuit() const { return mna_->circuit(); }
+
+std::size_t DcSystem::size() const { return static_cast<std::size_t>(mna_->size()); }
+
+void DcSystem::solve(Vector& block, int count) const { lu_->solve(block.data(), count); }
+
 BiasResult run_bias(const Circuit& circuit, const BiasOptions& options) {
-  const DcSolver dc(circuit, options.solver);
+  return run_bias(DcSystem(circuit, options.solver));
+}
+
+BiasResult run_bias(const DcSystem& dc) {
+  const Circuit& circuit = dc.circuit();
   const MnaSystem& mna = dc.mna();
   BiasResult result;
   result.range = error_range(circuit);

@@ -76,7 +76,7 @@ class SpecMeter {
  public:
   SpecMeter(const Circuit& circuit, const SharedAnalyses& shared)
       : circuit_(circuit), bias_error_(shared.bias_error), shared_response_(shared.response),
-        shared_bias_(shared.bias) {}
+        shared_bias_(shared.bias), shared_dc_(shared.dc) {}
 
   SpecResult measure(const Spec& spec) {
     SpecResult r{spec, std::nullopt, 0, false, 0, {}, {}, {}};
@@ -441,7 +441,8 @@ class SpecMeter {
     if (bias_error_) throw *bias_error_;
     if (shared_bias_) return *shared_bias_;
     try {
-      if (!bias_) bias_ = std::make_unique<BiasResult>(run_bias(circuit_));
+      if (!bias_)
+        bias_ = std::make_unique<BiasResult>(shared_dc_ ? run_bias(*shared_dc_) : run_bias(circuit_));
     } catch (const SolveError& e) {
       bias_error_ = e;
       throw;
@@ -537,6 +538,7 @@ class SpecMeter {
   std::optional<std::pair<double, double>> loop_range_;  ///< Hz: default_loop_sweep's ends
   std::map<std::tuple<std::size_t, double, double>, LoopTrace> loops_;  ///< (op amp, from, to)
   const BiasResult* shared_bias_;
+  const DcSystem* shared_dc_;
   Probe probe_;  ///< the probe of the spec being measured
   std::optional<std::size_t> input_;  ///< input=: the one source driving it; empty: every source
 };

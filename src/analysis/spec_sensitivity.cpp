@@ -29,6 +29,17 @@ const char* to_string(SpecMethod method) {
   return "?";
 }
 
+bool spec_has_adjoint(SpecKind kind) {
+  switch (kind) {
+    case SpecKind::gain:
+    case SpecKind::phase:
+    case SpecKind::flatness:
+    case SpecKind::upper_corner:
+    case SpecKind::lower_corner: return true;
+    default: return false;
+  }
+}
+
 namespace {
 
 constexpr double kDbPerNeper = 20 / std::numbers::ln10;
@@ -81,13 +92,17 @@ class SpecDifferentiator {
     }
     if (!r.spec.probe.empty()) probe_ = resolve_probe(r.spec.probe, circuit_);
     try {
+      if (!spec_has_adjoint(r.spec.kind)) {
+        restamped(r, s);
+        return s;
+      }
       switch (r.spec.kind) {
         case SpecKind::gain: gain(r, s); break;
         case SpecKind::phase: phase(r, s); break;
         case SpecKind::flatness: flatness(r, s); break;
         case SpecKind::upper_corner:
         case SpecKind::lower_corner: corner(r, s); break;
-        default: restamped(r, s); break;
+        default: break;
       }
     } catch (const SolveError& e) {
       s.derivatives.clear();

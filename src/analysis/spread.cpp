@@ -17,9 +17,9 @@
 #include <fmt/format.h>
 
 #include "tacet/analysis/check.hpp"
+#include "tacet/analysis/spread_draw.hpp"
 #include "tacet/analysis/spread_random.hpp"
 #include "tacet/common/errors.hpp"
-#include "tacet/solve/response.hpp"
 
 namespace tacet {
 
@@ -100,6 +100,11 @@ void draw_deviations(const SpreadPlan& plan, std::uint64_t seed, std::uint64_t i
                      std::vector<double>& out) {
   thread_local std::vector<double> own, common;
   draw_components(plan, seed, index, own, common);
+  deviations_of(plan, own, common, out);
+}
+
+void deviations_of(const SpreadPlan& plan, const std::vector<double>& own, const std::vector<double>& common,
+                   std::vector<double>& out) {
   out.resize(plan.parameters.size());
   for (std::size_t k = 0; k < plan.parameters.size(); ++k) {
     const SpreadParameter& p = plan.parameters[k];
@@ -109,67 +114,6 @@ void draw_deviations(const SpreadPlan& plan, std::uint64_t seed, std::uint64_t i
 }
 
 namespace {
-
-/// One thread's circuit: a copy in which each op amp with toleranced model
-/// parameters has a model of its own, the fields every parameter sets, and
-/// the frequency response built once on it.
-class DrawEvaluator {
- public:
-  DrawEvaluator(const Circuit& circuit, const SpreadPlan& plan) : work_(circuit), plan_(plan) {
-    std::map<std::string, std::size_t> own_model;  // op-amp instance -> its model copy
-    std::unordered_map<std::string_view, std::size_t> index;
-    for (std::size_t e = 0; e < work_.elements.size(); ++e) index.emplace(work_.elements[e].name, e);
-    for (const SpreadParameter& p : plan.parameters) {
-      Element& element = work_.elements[index.at(p.name)];
-      if (p.param == "value") {
-        targets_.push_back(&element.value);
-        continue;
-      }
-      auto [it, added] = own_model.try_emplace(p.name, work_.models.size());
-      if (added) {
-        work_.models.push_back(work_.model_of(element));
-        element.model = static_cast<int>(it->second);
-      }
-      targets_.push_back(nullptr);  // filled below: models may still grow
-      model_targets_.push_back({targets_.size() - 1, it->second, p.param});
-    }
-    for (const auto& t : model_targets_)
-      targets_[t.target] = model_parameter(work_.models[t.model], t.key);
-    for (double* target : targets_) nominal_.push_back(*target);
-    try {
-      response_ = std::make_unique<FrequencyResponse>(work_);
-    } catch (const SolveError&) {
-      // No AC solution for any draw: check reports every AC spec unsolved.
-    }
-  }
-
-  /// Measures every spec at draw `index`; values[s], pass[s] per spec.
-  void evaluate(std::uint64_t seed, std::uint64_t index, double* values, std::uint8_t* pass) {
-    draw_deviations(plan_, seed, index, deviations_);
-    for (std::size_t k = 0; k < targets_.size(); ++k) *targets_[k] = nominal_[k] * (1 + deviations_[k]);
-    if (response_) response_->restamp();
-    SharedAnalyses shared;
-    shared.response = response_.get();
-    const CheckResult check = run_check(work_, shared);
-    for (std::size_t s = 0; s < check.specs.size(); ++s) {
-      const SpecResult& r = check.specs[s];
-      values[s] = r.value ? *r.value : std::numeric_limits<double>::quiet_NaN();
-      pass[s] = r.pass ? 1 : 0;
-    }
-  }
-
- private:
-  struct ModelTarget {
-    std::size_t target, model;
-    std::string key;
-  };
-  Circuit work_;
-  const SpreadPlan& plan_;
-  std::vector<double*> targets_;
-  std::vector<ModelTarget> model_targets_;
-  std::vector<double> nominal_, deviations_;
-  std::unique_ptr<FrequencyResponse> response_;
-};
 
 /// The specs at the nominal values. A spec that cannot be measured there
 /// (a floating node, a source loop) cannot be in any draw: exit 3 before any.
@@ -200,7 +144,7 @@ void run_draws(const Circuit& circuit, const SpreadOptions& options, SpreadSampl
   std::mutex failure_lock;
   auto work = [&] {
     try {
-      DrawEvaluator evaluator(circuit, samples.plan);
+      SpreadEvaluator evaluator(circuit, samples.plan);
       for (;;) {
         const std::int64_t begin = next.fetch_add(kClaim);
         if (begin >= count || stop) return;

@@ -18,6 +18,7 @@
 #include "commands.hpp"
 #include "common.hpp"
 #include "tacet/analysis/spread.hpp"
+#include "tacet/analysis/spread_corners.hpp"
 #include "tacet/common/errors.hpp"
 #include "tacet/common/input_files.hpp"
 #include "tacet/report/write_spread.hpp"
@@ -33,6 +34,7 @@ struct SpreadFlags {
   int threads = 0;
   std::string shard;  ///< "I/N"; empty: the whole run
   std::string min_yield;  ///< "99%"; empty: none
+  bool corners = false;
 };
 
 /// --min-yield as a fraction in [0, 1]; nullopt when not given.
@@ -107,6 +109,8 @@ void setup_spread(CLI::App& app) {
                   "Run shard I of N (I/N) and write its samples as JSON for tacet merge");
   cmd->add_option("--min-yield", flags->min_yield,
                   "Exit 1 after the report when the overall yield is below this (99%)");
+  cmd->add_flag("--corners", flags->corners,
+                "Also each spec's worst corner from the signs of its sensitivities, confirmed by a full solve");
   cmd->callback([flags, format_option] {
     SpreadOptions options;
     options.runs = flags->runs;
@@ -120,6 +124,10 @@ void setup_spread(CLI::App& app) {
     if (sharded && format_option->count() > 0 && format != OutputFormat::json)
       throw InputError::usage("--shard writes the shard's samples as JSON, not --format " + flags->common.format,
                               "leave --format out; tacet merge writes the report in any format");
+    if (sharded && flags->corners)
+      throw InputError::usage("--corners is not a share of the draws: a shard holds only samples for tacet merge",
+                              "run the corners once on the whole netlist, without --shard: "
+                              "tacet spread FILE --corners (docs/analyses/spread.md)");
     ReportContext context;
     const Circuit circuit = load(flags->common, context);
     if (circuit.specs.empty())
@@ -132,7 +140,11 @@ void setup_spread(CLI::App& app) {
       write_output(flags->common.output, spread_shard_json(samples, context));
       return;
     }
-    const SpreadResult result = run_spread(circuit, options);
+    // The corners first: nothing toleranced is an input error before any draw.
+    std::vector<SpecCorner> corners;
+    if (flags->corners) corners = run_spread_corners(circuit);
+    SpreadResult result = run_spread(circuit, options);
+    if (flags->corners) attach_corners(result, std::move(corners));
     write_output(flags->common.output, spread_writers().write(format, result, context));
     require_yield(result, min_yield);
   });

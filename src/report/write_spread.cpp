@@ -84,6 +84,67 @@ std::string failing_text(const SpreadResult& result) {
   return out;
 }
 
+/// R1, U1.gbw, R1 ratio, set RA: what a corner pushed, as the drivers are named.
+std::string component_name(const std::string& name, const std::string& param) {
+  return param == "value" ? name : param == "set" ? "set " + name : param == "ratio" ? name + " ratio"
+                                                                                   : name + "." + param;
+}
+
+std::string corner_driver_text(const CornerDriver& d) {
+  return fmt::format("{} {:+g} %", component_name(d.name, d.param), 100 * d.deviation);
+}
+
+std::string linear_verdict(const SpecCorner& c) {
+  if (!c.value) return "-";
+  if (c.agrees) return "agrees";
+  return (*c.value - c.nominal) * (c.predicted - c.nominal) <= 0 ? "differs: moved the other way"
+                                                                  : "differs: not near-linear";
+}
+
+constexpr std::size_t kCornerDriversInTable = 3;
+
+/// The corners, for people: one row per spec, then what each pushed.
+std::string corners_text(const SpreadResult& result) {
+  using Align = Table::Align;
+  Table table({"spec", "toward", "nominal", "linear", "corner", "margin", "result", "linear vs full solve"},
+              {Align::left, Align::left, Align::right, Align::right, Align::right, Align::right, Align::left,
+               Align::left});
+  std::string pushed, notes;
+  bool differs = false;
+  for (const auto& s : result.specs) {
+    if (!s.corner) continue;
+    const SpecCorner& c = *s.corner;
+    const SpecUnit u = s.spec.unit;
+    if (!c.computed) {
+      table.add({c.spec, "-", "-", "-", "-", "-", "-", "-"});
+      notes += fmt::format("  {}: no corner: {}\n", c.spec, c.note);
+      continue;
+    }
+    table.add({c.spec, to_string(c.toward), format_spec_value(c.nominal, u), format_spec_value(c.predicted, u),
+               c.value ? format_spec_value(*c.value, u) : "-", c.value ? format_spec_value(c.margin, u) : "-",
+               c.pass ? "PASS" : "FAIL", linear_verdict(c)});
+    differs = differs || (c.value && !c.agrees);
+    if (!c.value) notes += fmt::format("  {}: not measured at the corner: {}\n", c.spec, c.note);
+    pushed += fmt::format("  {}:", c.spec);
+    for (std::size_t k = 0; k < c.drivers.size() && k < kCornerDriversInTable; ++k)
+      pushed += (k ? ", " : " ") + corner_driver_text(c.drivers[k]);
+    if (c.drivers.size() > kCornerDriversInTable)
+      pushed += fmt::format(" and {} more", c.drivers.size() - kCornerDriversInTable);
+    if (c.drivers.empty()) pushed += " nothing (no toleranced value moves it)";
+    if (c.held > 0) pushed += fmt::format("; {} held at nominal (no first-order effect)", c.held);
+    pushed += "\n";
+  }
+  std::string out =
+      "\nworst corners (each toleranced value at the end that moves the spec toward its limit, by the signs "
+      "of its sensitivities; measured by a full solve there):\n\n";
+  out += table.render();
+  out += "\npushed (largest first-order effect first):\n" + pushed + notes;
+  if (differs)
+    out += "  where the full solve differs from the linear prediction, the response is not near-linear over\n"
+           "  the tolerances: the worst case may lie inside the tolerance box; read the Monte Carlo above\n";
+  return out;
+}
+
 }  // namespace
 
 std::string spread_table(const SpreadResult& result, const ReportContext& context) {
@@ -106,7 +167,9 @@ std::string spread_table(const SpreadResult& result, const ReportContext& contex
                      result.runs, percent(result.yield), interval(result.yield_low, result.yield_high));
   if (result.parameters == 0)
     out += "no value has a tolerance: give parts tol= and models KEY_tol (docs/language.md)\n";
-  return out + failing_text(result);
+  out += failing_text(result);
+  if (result.corners) out += corners_text(result);
+  return out;
 }
 
 std::string spread_csv(const SpreadResult& result) {
@@ -123,6 +186,33 @@ std::string spread_csv(const SpreadResult& result) {
   }
   return out;
 }
+
+namespace {
+
+json_output::Json corner_json(const SpecCorner& c) {
+  using json = json_output::Json;
+  using json_output::number;
+  if (!c.computed) return {{"value", nullptr}, {"note", c.note}};
+  json drivers = json::array();
+  for (std::size_t k = 0; k < c.drivers.size() && k < kCornerDriversShown; ++k) {
+    const CornerDriver& d = c.drivers[k];
+    drivers.push_back({{"name", d.name}, {"param", d.param}, {"sign", d.sign},
+                       {"deviation", number(d.deviation)}, {"shift", number(d.shift)}});
+  }
+  json out = {{"toward", to_string(c.toward)},
+              {"value", number(c.value)},
+              {"margin", c.value ? number(c.margin) : json(nullptr)},
+              {"pass", c.pass},
+              {"predicted", number(c.predicted)},
+              {"agrees", c.agrees},
+              {"moved", c.moved},
+              {"held", c.held},
+              {"drivers", drivers}};
+  if (!c.note.empty()) out["note"] = c.note;
+  return out;
+}
+
+}  // namespace
 
 std::string spread_json(const SpreadResult& result, const ReportContext& context) {
   using json = json_output::Json;
@@ -150,6 +240,7 @@ std::string spread_json(const SpreadResult& result, const ReportContext& context
                      {"failed", result.runs - s.passed},
                      {"quantiles", quantiles},
                      {"drivers", drivers}});
+    if (s.corner) specs.back()["corner"] = corner_json(*s.corner);
   }
   json document = json_output::header("spread", context);
   document["runs"] = result.runs;
@@ -160,6 +251,11 @@ std::string spread_json(const SpreadResult& result, const ReportContext& context
   document["netlist_hash"] = result.netlist_hash;
   document["parameters"] = result.parameters;
   document["specs"] = specs;
+  if (result.corners) {
+    std::size_t failed = 0;
+    for (const auto& s : result.specs) failed += s.corner && s.corner->computed && !s.corner->pass ? 1 : 0;
+    document["corners_failed"] = failed;
+  }
   return json_output::text(document);
 }
 

@@ -32,6 +32,7 @@
 
 #include <cstddef>
 #include <limits>
+#include <memory>
 #include <optional>
 #include <string>
 #include <vector>
@@ -112,5 +113,39 @@ std::optional<Rails> rails_for(const Circuit& circuit, const Element& opamp);
 /// Throws SolveError naming the nodes when some node has no DC path to gnd, or
 /// when the DC matrix is singular.
 BiasResult run_bias(const Circuit& circuit, const BiasOptions& options = {});
+
+class MnaSystem;
+
+/// The real DC system Y(0) of a circuit, its pattern and symbolic analysis
+/// built once and factored; restamp() takes new values on the same
+/// structure (spread: one per draw) without a new pattern or analysis.
+class DcSystem {
+ public:
+  /// Throws SolveError like run_bias. The circuit must outlive the system.
+  explicit DcSystem(const Circuit& circuit, SolverKind kind = SolverKind::klu);
+  ~DcSystem();
+  DcSystem(const DcSystem&) = delete;
+  DcSystem& operator=(const DcSystem&) = delete;
+
+  /// The circuit's values have changed, not its structure (the elements,
+  /// nodes, which op amps have rout, rin, fp2): restamp and refactor. Throws
+  /// SolveError when the matrix is singular at the new values.
+  void restamp();
+
+  const Circuit& circuit() const;
+  const MnaSystem& mna() const { return *mna_; }
+  std::size_t size() const;
+  /// `count` right-hand sides of size() values each, solved in place.
+  void solve(std::vector<double>& block, int count) const;
+
+ private:
+  void factor();
+  std::unique_ptr<MnaSystem> mna_;
+  std::unique_ptr<RealSparseLu> lu_;
+  std::vector<double> values_;  // the factored matrix: the solution check reads it
+};
+
+/// run_bias on a system already built (and restamped to the circuit's values).
+BiasResult run_bias(const DcSystem& dc);
 
 }  // namespace tacet

@@ -41,6 +41,7 @@ CheckResult run_check(const Circuit& circuit);
 
 class FrequencyResponse;
 struct BiasResult;
+class DcSystem;
 
 /// Analyses of the same circuit a caller has already set up (diff does, for
 /// its own comparisons), so that every analysis runs once per circuit.
@@ -48,6 +49,9 @@ struct SharedAnalyses {
   FrequencyResponse* response = nullptr;  ///< the circuit's; nullptr: check makes its own
   const BiasResult* bias = nullptr;       ///< the DC analysis; nullptr: check runs it if needed
   std::optional<SolveError> bias_error;   ///< why the DC analysis could not run; empty: it could
+  /// The circuit's DC system, restamped to its values (spread); nullptr:
+  /// check builds one when a spec needs the DC analysis.
+  const DcSystem* dc = nullptr;
 };
 CheckResult run_check(const Circuit& circuit, const SharedAnalyses& shared);
 

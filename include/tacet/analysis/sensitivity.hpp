@@ -178,4 +178,9 @@ struct SpecSensitivities {
 };
 SpecSensitivities run_spec_sensitivities(const Circuit& circuit, const CheckResult& check);
 
+/// Whether run_spec_sensitivities differentiates a kind by the adjoint (gain,
+/// phase, flatness, corners: derivatives of the matrix entries alone, so a
+/// number Y(s) does not depend on has derivative 0) rather than by re-measuring.
+bool spec_has_adjoint(SpecKind kind);
+
 }  // namespace tacet

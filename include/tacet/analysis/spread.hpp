@@ -32,6 +32,7 @@
 #include <string>
 #include <vector>
 
+#include "tacet/analysis/spread_corners.hpp"
 #include "tacet/circuit/circuit.hpp"
 #include "tacet/circuit/spec.hpp"
 
@@ -82,6 +83,12 @@ SpreadPlan plan_spread(const Circuit& circuit);
 /// k, common[j] of matched set j; resized once and reused.
 void draw_components(const SpreadPlan& plan, std::uint64_t seed, std::uint64_t index,
                      std::vector<double>& own, std::vector<double>& common);
+
+/// Relative deviation of every parameter from its normalised components
+/// (own[k] per parameter, common[j] per matched set, each in [-1, 1]):
+/// tol u alone, (1 + tol c)(1 + ratio u) - 1 in a set; `out` resized and reused.
+void deviations_of(const SpreadPlan& plan, const std::vector<double>& own, const std::vector<double>& common,
+                   std::vector<double>& out);
 
 /// Relative deviation of every parameter in draw `index` (out[k] for
 /// parameters[k]); `out` is resized once and reused.
@@ -146,6 +153,7 @@ struct SpreadSpecStats {
   double yield = 0, yield_low = 0, yield_high = 0;  ///< passed / runs, its 95 % Wilson interval
   std::vector<SpreadDriver> drivers;  ///< the largest |correlation| first, at most 3; failing specs only
   std::vector<double> values;         ///< the measured values in draw order, for histograms
+  std::optional<SpecCorner> corner;   ///< the worst corner (--corners); empty: not asked for
 };
 
 struct SpreadResult {
@@ -156,7 +164,11 @@ struct SpreadResult {
   double yield = 0, yield_low = 0, yield_high = 0;
   std::size_t parameters = 0;  ///< how many values spread
   std::vector<SpreadSpecStats> specs;  ///< in the order written
+  bool corners = false;  ///< every spec carries its corner (--corners)
 };
+
+/// Adds the corners of run_spread_corners (in the order of the specs) to a result.
+void attach_corners(SpreadResult& result, std::vector<SpecCorner> corners);
 
 /// The statistics of a whole run's samples (first == 0, count == runs).
 SpreadResult summarise_spread(const SpreadSamples& samples);
@@ -182,7 +194,5 @@ double quantile_of_sorted(const std::vector<double>& sorted, double p);
 /// one netlist (with the same --set) agree; any change of value differs.
 std::string circuit_fingerprint(const Circuit& circuit);
 
-/// Hook for worst-case corners (`--corners`): they need each spec's
-/// sensitivity to every parameter (tacet sensitivity); not built yet.
 
 }  // namespace tacet

@@ -1,0 +1,9 @@
+spread
+@/spread_divider.tacet
+--runs
+50
+--seed
+4
+--corners
+--format
+json

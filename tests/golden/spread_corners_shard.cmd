@@ -1,0 +1,9 @@
+spread
+@/spread_divider.tacet
+--runs
+50
+--corners
+--shard
+1/2
+--output
+@/never-written.txt

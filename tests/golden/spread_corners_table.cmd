@@ -1,0 +1,7 @@
+spread
+@/spread_divider.tacet
+--runs
+300
+--seed
+4
+--corners

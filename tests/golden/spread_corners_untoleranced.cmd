@@ -1,0 +1,5 @@
+spread
+@/spread_corners_untoleranced.tacet
+--corners
+--output
+@/never-written.txt
