@@ -39,10 +39,10 @@ TOKEN_BYTES = [t.encode("latin-1") for t in TOKENS]
 COMMANDS = [
     ["show"],
     ["ac", "--probe", "out", "--per-decade", "3"],
-    ["ac", "--probe", "out", "--per-decade", "2", "--format", "svg"],
+    ["ac", "--probe", "out", "--per-decade", "2", "--format", "svg", "--threads", "2"],
     ["noise", "--probe", "out", "--from", "10", "--to", "10k", "--per-decade", "2"],
     ["bias"],
-    ["check"],
+    ["check", "--threads", "2"],
     ["check", "--sensitivity", "--top", "2"],
     ["diff", "{pristine}"],
     ["report"],
@@ -50,6 +50,7 @@ COMMANDS = [
     ["poles"],
     ["settle", "--probe", "out"],
     ["spread", "--runs", "8", "--threads", "2"],
+    ["spread", "--runs", "4", "--corners"],
     ["sensitivity", "--probe", "out", "--at", "1kHz"],
     ["rank", "--slot", "U1"],
 ]
