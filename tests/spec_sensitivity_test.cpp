@@ -8,6 +8,7 @@
 
 #include "is_close.hpp"
 #include "reference_circuits.hpp"
+#include "text_circuit.hpp"
 #include "tacet/analysis/check.hpp"
 #include "tacet/analysis/noise.hpp"
 #include "tacet/analysis/sensitivity.hpp"
@@ -239,4 +240,29 @@ TEST_CASE("a circuit check cannot solve has specs without sensitivities, not an 
   CHECK(s.specs[0].method == SpecMethod::none);
   CHECK(s.specs[0].derivatives.empty());
   CHECK_FALSE(s.specs[0].note.empty());
+}
+
+TEST_CASE("a gain spec with input= moves as the transfer from that source alone", "[sensitivity]") {
+  // Two sources summed at one node through R1 and R2, R3 to gnd: from V1 alone
+  // H1 = G1 / (G1 + G2 + G3) (superposition, Ohm's law), so
+  // (R1/H1) dH1/dR1 = -(G2 + G3) / (G1 + G2 + G3) and (R2/H1) dH1/dR2 = G2 / (G1 + G2 + G3).
+  // With both sources driving, R2 would move the gain the other way: the
+  // derivative must be of the transfer the spec measures.
+  const std::string text =
+      "vsrc V1 (a, gnd) ac=1\n"
+      "vsrc V2 (b, gnd) ac=3\n"
+      "res R1 (a, out) 1k\n"
+      "res R2 (b, out) 2k\n"
+      "res R3 (out, gnd) 4k\n";
+  const auto elaborated = tacet::testing::elaborate_text(text);
+  REQUIRE(elaborated.circuit);
+  Spec gain = spec_of(SpecKind::gain, SpecUnit::ratio);
+  gain.at = 1e3;
+  gain.min = 0.1;
+  gain.input = "V1";
+  const double g1 = 1e-3, g2 = 0.5e-3, g3 = 0.25e-3, gt = g1 + g2 + g3;
+  const double h1 = g1 / gt;
+  // A ratio spec moves by |H| x (relative sensitivity) per unit log, / 100 per percent.
+  CHECK_THAT(per_percent(*elaborated.circuit, gain, "R1"), IsClose(h1 * -(g2 + g3) / gt / 100, 1e-9));
+  CHECK_THAT(per_percent(*elaborated.circuit, gain, "R2"), IsClose(h1 * g2 / gt / 100, 1e-9));
 }

@@ -91,6 +91,10 @@ class SpecDifferentiator {
       return s;
     }
     if (!r.spec.probe.empty()) probe_ = resolve_probe(r.spec.probe, circuit_);
+    // The transfer the spec measures: from its input= source alone, as check does.
+    drive_.source.reset();
+    if (!r.spec.input.empty() && r.spec.kind != SpecKind::snr)
+      drive_.source = resolve_source(r.spec.input, circuit_, "input=");
     try {
       if (!spec_has_adjoint(r.spec.kind)) {
         restamped(r, s);
@@ -115,10 +119,16 @@ class SpecDifferentiator {
  private:
   // d ln H/dx for every parameter at f: Re is d ln|H|/dx, Im is d arg H/dx (rad).
   const std::vector<std::complex<double>>& log_derivatives(double f, std::complex<double>& h) {
-    h = transfer_.at(probe_, TransferDrive{}, f, scratch_);
+    h = transfer_.at(probe_, drive_, f, scratch_);
     if (h == 0.0) throw SolveError::unsolvable_at(f, "the probe's value is zero there");
     for (auto& d : scratch_) d /= h;
     return scratch_;
+  }
+
+  std::complex<double> measured_at(double f) {
+    if (drive_.source && probe_.kind != ProbeKind::impedance)
+      return response_.transfer_at(probe_, *drive_.source, f);
+    return response_.at(probe_, f);
   }
 
   void fill(SpecSensitivity& s, SpecMethod method, const std::vector<double>& derivatives) {
@@ -174,8 +184,8 @@ class SpecDifferentiator {
     std::complex<double> h_f, h_ref;
     std::vector<double> out = relative_db(fc, r.spec.ref, h_f, h_ref);
     constexpr double kStep = 1e-6;  // relative: truncation ~1e-12, rounding ~1e-10
-    const double slope = (to_db(response_.at(probe_, fc * (1 + kStep))) -
-                          to_db(response_.at(probe_, fc * (1 - kStep)))) /
+    const double slope = (to_db(measured_at(fc * (1 + kStep))) -
+                          to_db(measured_at(fc * (1 - kStep)))) /
                          (2 * kStep * fc);
     if (slope == 0 || !std::isfinite(slope))
       throw SolveError::unsolvable_at(fc, "the response is flat at the corner");
@@ -219,6 +229,7 @@ class SpecDifferentiator {
   TransferDerivatives transfer_;
   SpecSensitivities& out_;
   Probe probe_;
+  TransferDrive drive_;
   std::vector<std::complex<double>> scratch_;
 };
 
