@@ -50,6 +50,7 @@ SpreadEvaluator::SpreadEvaluator(const Circuit& circuit, const SpreadPlan& plan)
   } catch (const SolveError&) {
     // No AC solution for any draw: check reports every AC spec unsolved.
   }
+  anchor_at_nominal();
   if (needs_dc(specs_)) {
     try {
       dc_ = std::make_unique<DcSystem>(work_);
@@ -60,6 +61,19 @@ SpreadEvaluator::SpreadEvaluator(const Circuit& circuit, const SpreadPlan& plan)
 }
 
 SpreadEvaluator::~SpreadEvaluator() = default;
+
+// Every later factorisation refactors on the anchor's pivots (response.hpp).
+// Taken at the nominal values, where check takes them, the anchor is the same
+// in every worker, so a draw's values do not depend on which worker ran it or
+// on the draws that worker ran before it.
+void SpreadEvaluator::anchor_at_nominal() {
+  if (!response_) return;
+  try {
+    response_->anchor_at(check_anchor(work_));
+  } catch (const SolveError&) {
+    // Singular there at nominal: the first draw's first frequency anchors, as in check.
+  }
+}
 
 void SpreadEvaluator::set_values(const std::vector<double>& deviations) {
   for (std::size_t k = 0; k < targets_.size(); ++k) *targets_[k] = nominal_[k] * (1 + deviations[k]);

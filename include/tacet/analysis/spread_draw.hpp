@@ -39,6 +39,7 @@ class SpreadEvaluator {
 
  private:
   void set_values(const std::vector<double>& deviations);
+  void anchor_at_nominal();
   CheckResult check();
 
   struct ModelTarget {
