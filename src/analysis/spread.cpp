@@ -137,7 +137,7 @@ void run_draws(const Circuit& circuit, const SpreadOptions& options, SpreadSampl
   int threads = options.threads > 0 ? options.threads
                                     : static_cast<int>(std::max(1u, std::thread::hardware_concurrency()));
   threads = static_cast<int>(std::min<std::int64_t>(threads, count));
-  constexpr std::int64_t kClaim = 8;
+  const std::int64_t claim = spread_claim_size(count, threads);
   std::atomic<std::int64_t> next{0}, done{0};
   std::atomic<bool> stop{false};
   std::exception_ptr failure;
@@ -146,9 +146,9 @@ void run_draws(const Circuit& circuit, const SpreadOptions& options, SpreadSampl
     try {
       SpreadEvaluator evaluator(circuit, samples.plan);
       for (;;) {
-        const std::int64_t begin = next.fetch_add(kClaim);
+        const std::int64_t begin = next.fetch_add(claim);
         if (begin >= count || stop) return;
-        const std::int64_t end = std::min(count, begin + kClaim);
+        const std::int64_t end = std::min(count, begin + claim);
         for (std::int64_t i = begin; i < end; ++i) {
           const auto slot = static_cast<std::size_t>(i) * n_specs;
           evaluator.evaluate(samples.seed, static_cast<std::uint64_t>(samples.first + i),
@@ -183,6 +183,11 @@ void run_draws(const Circuit& circuit, const SpreadOptions& options, SpreadSampl
 }
 
 }  // namespace
+
+std::int64_t spread_claim_size(std::int64_t count, int threads) {
+  constexpr std::int64_t kLargestClaim = 8, kClaimsPerWorker = 8;
+  return std::clamp<std::int64_t>(count / (kClaimsPerWorker * std::max(1, threads)), 1, kLargestClaim);
+}
 
 SpreadSamples sample_spread(const Circuit& circuit, const SpreadOptions& options) {
   if (auto problem = options.validate(); !problem.empty()) throw InputError::usage(problem);

@@ -124,6 +124,11 @@ struct SpreadSamples {
 /// Throws InputError for bad options.
 SpreadSamples sample_spread(const Circuit& circuit, const SpreadOptions& options);
 
+/// How many consecutive draws a worker claims at a time: up to 8, fewer when
+/// the run is short, so that each of `threads` workers gets at least eight
+/// claims and none idles long while another finishes its last claim.
+std::int64_t spread_claim_size(std::int64_t count, int threads);
+
 /// Shards 1/N..N/N of one run, in any order, as one whole run. Throws
 /// InputError (exit 2) for shards of different netlists, seeds or runs, a
 /// shard given twice or one missing; `names` (the files) say which.
