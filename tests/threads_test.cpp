@@ -16,11 +16,13 @@
 #include <fmt/format.h>
 
 #include "tacet/analysis/ac.hpp"
+#include "tacet/analysis/bias.hpp"
 #include "tacet/analysis/check.hpp"
 #include "tacet/analysis/noise.hpp"
 #include "tacet/common/errors.hpp"
 #include "tacet/common/parallel.hpp"
 #include "tacet/report/write_ac.hpp"
+#include "tacet/report/write_bias.hpp"
 #include "tacet/report/write_check.hpp"
 #include "tacet/report/write_noise.hpp"
 #include "tacet/solve/response.hpp"
@@ -276,4 +278,75 @@ TEST_CASE("blocks cut the indices in order, and the lowest block's failure is th
                                 if (item % 4 == 3) throw std::runtime_error(fmt::format("item {}", item));
                               }),
                     "item 3");
+}
+
+namespace {
+
+// `stages` non-inverting stages in cascade, each with vos, ib, ios and an
+// ib_max over an ambient range: four DC errors and three right-hand sides per
+// op amp, so the errors fill many blocks of solves. `hot` names a stage whose
+// vos overflows a double at the last output.
+std::string dc_chain(int stages, int hot = -1) {
+  std::string text = R"(title "dc chain"
+supply +15V -15V
+ambient 0C..70C
+model amp opamp {
+  gbw 10MHz  aol 110dB  vos 200uV  vos_drift 2uV/C  ib 20nA  ib_max 40nA  ios 2nA
+  ib_double 10C  swing 1.5V
+}
+model wild opamp { gbw 10MHz  aol 110dB  vos 1e308V }
+vsrc Vin (n0, gnd) dc=1mV ac=1
+)";
+  for (int k = 0; k < stages; ++k)
+    text += fmt::format(R"(res RS{0} (n{0}, p{0}) {2}k
+opamp U{0} (+p{0}, -f{0}, n{1}) {3}
+res RF{0} (n{1}, f{0}) 10k
+res RG{0} (f{0}, gnd) {4}k
+)",
+                        k, k + 1, 1 + k % 5, k == hot ? "wild" : "amp", 10 + k % 3);
+  return text;
+}
+
+BiasReport bias_report(const Circuit& circuit, int threads) {
+  BiasOptions o;
+  o.threads = threads;
+  return BiasReport{run_bias(circuit, o), HeadroomResult{}};
+}
+
+}  // namespace
+
+TEST_CASE("bias writes the same bytes with 1, 2, 3 and 7 threads", "[threads][bias]") {
+  // 60 op amps: 180 right-hand sides, 12 blocks of solves, so every count
+  // above cuts the errors across workers and waves.
+  const Circuit circuit = circuit_of(dc_chain(60));
+  const ReportContext context{"chain.tacet", "dc chain"};
+  const BiasReport one = bias_report(circuit, 1);
+  REQUIRE(one.bias.opamps.size() == 60);
+  REQUIRE(one.bias.opamps.back().largest.size() == 3);
+  for (int threads : {2, 3, 7}) {
+    INFO(threads << " threads");
+    const BiasReport many = bias_report(circuit, threads);
+    for (std::size_t k = 0; k < one.bias.nodes.size(); ++k) {
+      CHECK(many.bias.nodes[k].worst == one.bias.nodes[k].worst);
+      CHECK(many.bias.nodes[k].rss == one.bias.nodes[k].rss);
+    }
+    CHECK(bias_json(many, context) == bias_json(one, context));
+    CHECK(bias_table(many, context) == bias_table(one, context));
+    CHECK(bias_csv(many) == bias_csv(one));
+  }
+}
+
+TEST_CASE("bias on threads names the same overflowing error as on one", "[threads][bias][errors]") {
+  const Circuit circuit = circuit_of(dc_chain(40, 23));
+  std::string single;
+  try {
+    bias_report(circuit, 1);
+  } catch (const SolveError& e) {
+    single = e.what();
+  }
+  REQUIRE_THAT(single, Catch::Matchers::Contains("vos of 'U23'"));
+  for (int threads : {2, 3}) {
+    INFO(threads << " threads");
+    CHECK_THROWS_WITH(bias_report(circuit, threads), single);
+  }
 }

@@ -7,6 +7,8 @@
 
 #include <algorithm>
 #include <cmath>
+#include <cstdint>
+#include <exception>
 #include <complex>
 #include <memory>
 #include <numeric>
@@ -14,6 +16,7 @@
 
 #include "tacet/common/errors.hpp"
 #include "tacet/common/format.hpp"
+#include "tacet/common/parallel.hpp"
 #include "tacet/solve/mna.hpp"
 
 namespace tacet {
@@ -219,41 +222,193 @@ struct Bands {
   std::vector<int> outputs;  // per result.opamps entry; -1: gnd
 };
 
-// Folds one error's solution x into every node's band and every op amp's
-// largest contributors.
-void add_error(const Circuit& circuit, const MnaSystem& mna, const PinNeighbours& pins,
-               const DcError& error, const double* x, BiasResult& result, Bands& bands) {
-  if (error.kind != DcErrorKind::ib) {
-    double total = 0;
-    for (std::size_t k = 0; k < bands.worst.size(); ++k) {
+// One DC error and its solution: the unknowns' shift per unit of the error.
+struct ErrorColumn {
+  DcError error;
+  const double* x;
+};
+
+// What folding a run of errors into one range of nodes and op amps met first:
+// the index (into the run) of the error whose share at a node, or at an op
+// amp's output, overflows a double; none: every share was finite.
+struct FoldStop {
+  std::size_t node_error = SIZE_MAX, amp_error = SIZE_MAX;
+};
+
+// Folds the errors, in order, into the bands of nodes [node_begin, node_end)
+// and the largest contributors of op amps [amp_begin, amp_end). Each node and
+// op amp sums its errors in the same order whatever the ranges, so cutting the
+// nodes and op amps across threads changes no bit. Stops at the first error
+// whose share overflows in this range (the caller names it).
+FoldStop fold_errors(const Circuit& circuit, const MnaSystem& mna, const PinNeighbours& pins,
+                     const std::vector<ErrorColumn>& errors, std::size_t node_begin, std::size_t node_end,
+                     std::size_t amp_begin, std::size_t amp_end, BiasResult& result, Bands& bands) {
+  FoldStop stop;
+  for (std::size_t e = 0; e < errors.size() && stop.node_error == SIZE_MAX; ++e) {
+    const auto& [error, x] = errors[e];
+    if (error.kind == DcErrorKind::ib) continue;  // a nominal shift, not a band
+    for (std::size_t k = node_begin; k < node_end; ++k) {
       const double term = std::abs(mna.voltage_at_unknown(x, static_cast<int>(k))) * error.limit;
-      total += term;
+      if (!std::isfinite(term)) {
+        stop.node_error = e;
+        break;
+      }
       bands.worst[k] += term;
       bands.squares[k] += term * term;
     }
-    if (!std::isfinite(total))  // rare: find the node to name
-      for (std::size_t k = 0; k < bands.worst.size(); ++k)
-        if (!std::isfinite(std::abs(mna.voltage_at_unknown(x, static_cast<int>(k))) * error.limit))
-          overflowing(circuit, error, result.nodes[k].name);
   }
-  std::optional<std::string> through;
+  for (std::size_t e = 0; e < errors.size() && e < stop.node_error && stop.amp_error == SIZE_MAX; ++e) {
+    const auto& [error, x] = errors[e];
+    std::optional<std::string> through;
+    for (std::size_t a = amp_begin; a < amp_end; ++a) {
+      const double sensitivity = mna.voltage_at_unknown(x, bands.outputs[a]);
+      if (sensitivity == 0) continue;
+      auto& amp = result.opamps[a];
+      const double volts = error.kind == DcErrorKind::ib ? sensitivity * error.limit
+                                                         : std::abs(sensitivity) * error.limit;
+      if (!std::isfinite(volts)) {
+        stop.amp_error = e;
+        break;
+      }
+      if (amp.largest.size() == kLargestShown && !(std::abs(volts) > std::abs(amp.largest.back().volts)))
+        continue;  // would not be kept
+      if (!through)
+        through = error.kind == DcErrorKind::vos
+                      ? std::string()
+                      : busiest_resistor(circuit, mna, pins, x, circuit.elements[error.element]);
+      keep_if_large(amp.largest, {circuit.elements[error.element].name, error.kind,
+                                  std::abs(sensitivity), volts, *through});
+    }
+  }
+  return stop;
+}
+
+// The error a single pass in order would have stopped at, named: the lowest
+// error index over the ranges, a node's share before an op amp's of the same
+// error (the nodes of an error are folded before its op amps).
+[[noreturn]] void name_overflow(const Circuit& circuit, const MnaSystem& mna, const std::vector<ErrorColumn>& errors,
+                                const std::vector<FoldStop>& stops, const BiasResult& result, const Bands& bands) {
+  FoldStop first;
+  for (const FoldStop& s : stops) {
+    first.node_error = std::min(first.node_error, s.node_error);
+    first.amp_error = std::min(first.amp_error, s.amp_error);
+  }
+  if (first.node_error <= first.amp_error) {
+    const auto& [error, x] = errors[first.node_error];
+    for (std::size_t k = 0; k < bands.worst.size(); ++k)
+      if (!std::isfinite(std::abs(mna.voltage_at_unknown(x, static_cast<int>(k))) * error.limit))
+        overflowing(circuit, error, result.nodes[k].name);
+  }
+  const auto& [error, x] = errors[std::min(first.amp_error, first.node_error)];
   for (std::size_t a = 0; a < result.opamps.size(); ++a) {
-    const int u = bands.outputs[a];
-    const double sensitivity = mna.voltage_at_unknown(x, u);
-    if (sensitivity == 0) continue;
-    auto& amp = result.opamps[a];
-    const double volts = error.kind == DcErrorKind::ib ? sensitivity * error.limit
-                                                       : std::abs(sensitivity) * error.limit;
-    if (!std::isfinite(volts)) overflowing(circuit, error, amp.out);
-    if (!amp.largest.empty() && amp.largest.size() == kLargestShown &&
-        !(std::abs(volts) > std::abs(amp.largest.back().volts)))
-      continue;  // would not be kept
-    if (!through)
-      through = error.kind == DcErrorKind::vos
-                    ? std::string()
-                    : busiest_resistor(circuit, mna, pins, x, circuit.elements[error.element]);
-    keep_if_large(amp.largest, {circuit.elements[error.element].name, error.kind,
-                                std::abs(sensitivity), volts, *through});
+    const double sensitivity = mna.voltage_at_unknown(x, bands.outputs[a]);
+    if (sensitivity != 0 && !std::isfinite(sensitivity * error.limit)) overflowing(circuit, error, result.opamps[a].out);
+  }
+  overflowing(circuit, error, result.opamps.front().out);  // not reached: some share overflowed
+}
+
+// The DC errors' right-hand sides in blocks of up to kBlock columns, whole op
+// amps at a time; the blocks are the same for any number of threads.
+struct ErrorBlock {
+  std::size_t first, last;  // op amps [first, last) of opamp_errors
+  std::size_t columns;
+};
+
+std::vector<ErrorBlock> error_blocks(const std::vector<OpAmpErrors>& amps) {
+  std::vector<ErrorBlock> blocks;
+  for (std::size_t first = 0, last = 0; first < amps.size(); first = last) {
+    std::size_t columns = 0;
+    while (last < amps.size() && columns + amps[last].columns() <= kBlock) columns += amps[last++].columns();
+    blocks.push_back({first, last, columns});
+  }
+  return blocks;
+}
+
+// Solves one block's right-hand sides into `block` and turns each pin pair
+// (a unit drawn from +, one from -) into its ios and ib columns, in place:
+// P <- (P - M)/2, M <- P + M. Appends the block's errors, in order, to `errors`.
+void solve_block(const Circuit& circuit, const DcSystem& dc, const std::vector<OpAmpErrors>& amps,
+                 const ErrorBlock& span, Vector& block, std::vector<ErrorColumn>& errors) {
+  const MnaSystem& mna = dc.mna();
+  const std::size_t n = dc.size();
+  auto column = [&](std::size_t c) { return &block[c * n]; };
+  std::fill(block.begin(), block.begin() + static_cast<std::ptrdiff_t>(span.columns * n), 0.0);
+  for (std::size_t k = span.first, c = 0; k < span.last; c += amps[k++].columns())
+    unit_rhs(circuit, mna, amps[k], column(c));
+  dc.solve(block, static_cast<int>(span.columns));
+  if (!std::all_of(block.begin(), block.begin() + static_cast<std::ptrdiff_t>(span.columns * n),
+                   [](double v) { return std::isfinite(v); }))
+    for (std::size_t c = 0; c < span.columns; ++c) require_finite(Vector(column(c), column(c) + n), mna);
+  for (std::size_t k = span.first, c = 0; k < span.last; ++k) {
+    const OpAmpErrors& amp = amps[k];
+    if (amp.vos != 0) errors.push_back({{amp.element, DcErrorKind::vos, amp.vos}, column(c++)});
+    if (!amp.pins()) continue;
+    double* plus = column(c);
+    double* minus = column(c + 1);
+    c += 2;
+    for (std::size_t u = 0; u < n; ++u) {
+      const double p = plus[u], m = minus[u];
+      plus[u] = 0.5 * (p - m);
+      minus[u] = p + m;
+    }
+    if (amp.ios != 0) errors.push_back({{amp.element, DcErrorKind::ios, amp.ios}, plus});
+    if (amp.ib != 0) errors.push_back({{amp.element, DcErrorKind::ib, amp.ib}, minus});
+    if (amp.ib_excess != 0) errors.push_back({{amp.element, DcErrorKind::ib_max, amp.ib_excess}, minus});
+  }
+}
+
+// Every DC error folded into the bands and the op amps' largest contributors.
+// On `threads` workers: waves of one block per worker are solved at once (a
+// worker has a DcSystem of its own, as KLU's solve keeps its workspace in the
+// factors), then the wave's errors are folded with the nodes and op amps cut
+// into ranges, each range taking the errors in order. A failure is the one a
+// single thread meets first: a block's solve fails only after the blocks
+// before it have been folded.
+void fold_dc_errors(const DcSystem& dc, const PinNeighbours& pins, int threads, BiasResult& result, Bands& bands) {
+  const Circuit& circuit = dc.circuit();
+  const MnaSystem& mna = dc.mna();
+  const std::vector<OpAmpErrors> amps = opamp_errors(circuit);
+  const std::vector<ErrorBlock> blocks = error_blocks(amps);
+  const std::size_t n = dc.size();
+  const int workers = std::max(1, std::min<int>(resolve_threads(threads), static_cast<int>(blocks.size())));
+  std::vector<std::unique_ptr<DcSystem>> own(static_cast<std::size_t>(workers));  // [0] stays empty: dc itself
+  std::vector<Vector> buffers(static_cast<std::size_t>(workers), Vector(n * kBlock));
+  std::vector<std::vector<ErrorColumn>> wave_errors(static_cast<std::size_t>(workers));
+  std::vector<std::exception_ptr> failed(static_cast<std::size_t>(workers));
+  std::vector<ErrorColumn> errors;
+  std::vector<FoldStop> stops(static_cast<std::size_t>(workers));
+  for (std::size_t first = 0; first < blocks.size(); first += static_cast<std::size_t>(workers)) {
+    const std::size_t count = std::min(blocks.size() - first, static_cast<std::size_t>(workers));
+    for_blocks(count, static_cast<int>(count), [&](int w, std::size_t, std::size_t) {
+      const auto slot = static_cast<std::size_t>(w);
+      wave_errors[slot].clear();
+      failed[slot] = nullptr;
+      try {
+        if (slot > 0 && !own[slot]) own[slot] = std::make_unique<DcSystem>(circuit, dc.kind());
+        solve_block(circuit, slot > 0 ? *own[slot] : dc, amps, blocks[first + slot], buffers[slot], wave_errors[slot]);
+      } catch (...) {
+        failed[slot] = std::current_exception();
+      }
+    });
+    errors.clear();
+    std::size_t solved = 0;
+    while (solved < count && !failed[solved]) {
+      errors.insert(errors.end(), wave_errors[solved].begin(), wave_errors[solved].end());
+      ++solved;
+    }
+    const int parts = errors.empty() ? 0 : workers;
+    if (parts > 0)
+      for_blocks(static_cast<std::size_t>(parts), parts, [&](int part, std::size_t, std::size_t) {
+      const auto cut = [&](std::size_t size, int p) { return size * static_cast<std::size_t>(p) / static_cast<std::size_t>(parts); };
+      stops[static_cast<std::size_t>(part)] =
+          fold_errors(circuit, mna, pins, errors, cut(bands.worst.size(), part), cut(bands.worst.size(), part + 1),
+                      cut(result.opamps.size(), part), cut(result.opamps.size(), part + 1), result, bands);
+    });
+    for (int part = 0; part < parts; ++part)
+      if (stops[static_cast<std::size_t>(part)].node_error != SIZE_MAX ||
+          stops[static_cast<std::size_t>(part)].amp_error != SIZE_MAX)
+        name_overflow(circuit, mna, errors, {stops.begin(), stops.begin() + parts}, result, bands);
+    if (solved < count) std::rethrow_exception(failed[solved]);
   }
 }
 
@@ -304,7 +459,7 @@ std::optional<Rails> rails_for(const Circuit& circuit, const Element& opamp) {
 }
 
 DcSystem::DcSystem(const Circuit& circuit, SolverKind kind)
-    : mna_(std::make_unique<MnaSystem>(circuit, AnalysisKind::dc)), lu_(make_real_sparse_lu(kind)) {
+    : mna_(std::make_unique<MnaSystem>(circuit, AnalysisKind::dc)), lu_(make_real_sparse_lu(kind)), kind_(kind) {
   lu_->analyse(mna_->pattern());
   values_.resize(static_cast<std::size_t>(mna_->pattern().nonzeros()));
   factor();
@@ -329,10 +484,10 @@ std::size_t DcSystem::size() const { return static_cast<std::size_t>(mna_->size(
 void DcSystem::solve(Vector& block, int count) const { lu_->solve(block.data(), count); }
 
 BiasResult run_bias(const Circuit& circuit, const BiasOptions& options) {
-  return run_bias(DcSystem(circuit, options.solver));
+  return run_bias(DcSystem(circuit, options.solver), options.threads);
 }
 
-BiasResult run_bias(const DcSystem& dc) {
+BiasResult run_bias(const DcSystem& dc, int threads) {
   const Circuit& circuit = dc.circuit();
   const MnaSystem& mna = dc.mna();
   BiasResult result;
@@ -353,45 +508,11 @@ BiasResult run_bias(const DcSystem& dc) {
     result.opamps.push_back(amp);
   }
 
-  // The DC errors in blocks of right-hand sides on the one factorisation,
-  // whole op amps at a time.
   const PinNeighbours pins(circuit);
-  const std::vector<OpAmpErrors> amps = opamp_errors(circuit);
   Bands bands{std::vector<double>(result.nodes.size(), 0.0), std::vector<double>(result.nodes.size(), 0.0), {}};
   for (const auto& amp : result.opamps)
     bands.outputs.push_back(mna.node_unknown(circuit.elements[amp.element].nodes[2]));
-  const std::size_t n = dc.size();
-  Vector block(n * kBlock), combined(n);
-  auto column = [&](std::size_t c) { return &block[c * n]; };
-  for (std::size_t first = 0, last = 0; first < amps.size(); first = last) {
-    std::size_t columns = 0;
-    while (last < amps.size() && columns + amps[last].columns() <= kBlock) columns += amps[last++].columns();
-    std::fill(block.begin(), block.begin() + static_cast<std::ptrdiff_t>(columns * n), 0.0);
-    for (std::size_t k = first, c = 0; k < last; c += amps[k++].columns()) unit_rhs(circuit, mna, amps[k], column(c));
-    dc.solve(block, static_cast<int>(columns));
-    if (!std::all_of(block.begin(), block.begin() + static_cast<std::ptrdiff_t>(columns * n),
-                     [](double v) { return std::isfinite(v); }))
-      for (std::size_t c = 0; c < columns; ++c) require_finite(Vector(column(c), column(c) + n), mna);
-    for (std::size_t k = first, c = 0; k < last; ++k) {
-      const OpAmpErrors& amp = amps[k];
-      if (amp.vos != 0) add_error(circuit, mna, pins, {amp.element, DcErrorKind::vos, amp.vos}, column(c++), result, bands);
-      if (!amp.pins()) continue;
-      const double* plus = column(c);
-      const double* minus = column(c + 1);
-      c += 2;
-      if (amp.ios != 0) {
-        for (std::size_t u = 0; u < n; ++u) combined[u] = 0.5 * (plus[u] - minus[u]);
-        add_error(circuit, mna, pins, {amp.element, DcErrorKind::ios, amp.ios}, combined.data(), result, bands);
-      }
-      if (amp.ib != 0 || amp.ib_excess != 0)
-        for (std::size_t u = 0; u < n; ++u) combined[u] = plus[u] + minus[u];
-      if (amp.ib != 0)
-        add_error(circuit, mna, pins, {amp.element, DcErrorKind::ib, amp.ib}, combined.data(), result, bands);
-      if (amp.ib_excess != 0)
-        add_error(circuit, mna, pins, {amp.element, DcErrorKind::ib_max, amp.ib_excess},
-                  combined.data(), result, bands);
-    }
-  }
+  fold_dc_errors(dc, pins, threads, result, bands);
   for (std::size_t k = 0; k < result.nodes.size(); ++k) {
     result.nodes[k].worst = bands.worst[k];
     result.nodes[k].rss = std::sqrt(bands.squares[k]);

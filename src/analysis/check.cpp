@@ -593,19 +593,23 @@ std::vector<std::vector<std::size_t>> spec_groups(const std::vector<Spec>& specs
 CheckResult run_check(const Circuit& circuit, const CheckOptions& options) {
   const std::size_t n = circuit.specs.size();
   const auto groups = spec_groups(circuit.specs);
-  const int threads = std::min<int>(resolve_threads(options.threads), static_cast<int>(groups.size()));
-  if (threads <= 1) return run_check(circuit);
-  // The DC analysis once, before the workers, for every spec that needs it.
+  const int workers = resolve_threads(options.threads);
+  const int threads = std::min<int>(workers, static_cast<int>(groups.size()));
+  if (workers <= 1) return run_check(circuit);
+  // The DC analysis once, on every worker, before the specs, for every spec that needs it.
   SharedAnalyses shared;
   BiasResult bias;
   if (std::any_of(circuit.specs.begin(), circuit.specs.end(), needs_bias)) {
     try {
-      bias = run_bias(circuit);
+      BiasOptions dc_options;
+      dc_options.threads = workers;
+      bias = run_bias(circuit, dc_options);
       shared.bias = &bias;
     } catch (const SolveError& e) {
       shared.bias_error = e;
     }
   }
+  if (threads <= 1) return run_check(circuit, shared);
   std::vector<std::unique_ptr<SpecMeter>> meters(static_cast<std::size_t>(threads));
   std::vector<std::optional<SpecResult>> measured(n);
   std::vector<std::exception_ptr> failures(n);

@@ -20,6 +20,7 @@ struct BiasCommandOptions {
   CommonOptions common;
   std::string band;  ///< "20..20k"; empty: the sources' band_low= / band_high=
   int per_decade = 50;
+  int threads = 0;
 };
 
 HeadroomOptions headroom_options(const BiasCommandOptions& o) {
@@ -37,9 +38,11 @@ HeadroomOptions headroom_options(const BiasCommandOptions& o) {
 
 void run(const BiasCommandOptions& o) {
   const HeadroomOptions headroom_opts = headroom_options(o);
+  BiasOptions bias_options;
+  bias_options.threads = checked_threads(o.threads);
   const BiasReport report =
       analyse_and_write(o.common, bias_writers(), [&](const Circuit& circuit) {
-        BiasResult bias = run_bias(circuit);
+        BiasResult bias = run_bias(circuit, bias_options);
         HeadroomResult headroom = run_headroom(circuit, bias, headroom_opts);
         return BiasReport{std::move(bias), std::move(headroom)};
       });
@@ -61,6 +64,7 @@ void setup_bias(CLI::App& app) {
                    "Headroom band FROM..TO (20..20k); default: band_low=/band_high= on the source");
   bias->add_option("--per-decade", options->per_decade, "Headroom grid: points per decade")
       ->capture_default_str();
+  add_threads_option(*bias, options->threads);
   bias->callback([options] { run(*options); });
 }
 

@@ -44,6 +44,9 @@ namespace tacet {
 
 struct BiasOptions {
   SolverKind solver = SolverKind::klu;  ///< sparse LU backend
+  /// Workers for the DC errors' solves and sums (0: one per core); the
+  /// result is the same to the bit for any number.
+  int threads = 1;
 };
 
 /// Which DC error of an op amp a contribution comes from.
@@ -135,6 +138,7 @@ class DcSystem {
   const Circuit& circuit() const;
   const MnaSystem& mna() const { return *mna_; }
   std::size_t size() const;
+  SolverKind kind() const { return kind_; }
   /// `count` right-hand sides of size() values each, solved in place.
   void solve(std::vector<double>& block, int count) const;
 
@@ -143,9 +147,11 @@ class DcSystem {
   std::unique_ptr<MnaSystem> mna_;
   std::unique_ptr<RealSparseLu> lu_;
   std::vector<double> values_;  // the factored matrix: the solution check reads it
+  SolverKind kind_;
 };
 
-/// run_bias on a system already built (and restamped to the circuit's values).
-BiasResult run_bias(const DcSystem& dc);
+/// run_bias on a system already built (and restamped to the circuit's values),
+/// on `threads` workers (0: one per core).
+BiasResult run_bias(const DcSystem& dc, int threads = 1);
 
 }  // namespace tacet

@@ -1,0 +1,6 @@
+bias
+@/bias_speaker_input.tacet
+--format
+json
+--threads
+3

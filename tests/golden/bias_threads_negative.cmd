@@ -1,0 +1,4 @@
+bias
+@/bias_ambient_range.tacet
+--threads
+-1
