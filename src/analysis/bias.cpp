@@ -7,9 +7,9 @@
 
 #include <algorithm>
 #include <cmath>
+#include <complex>
 #include <cstdint>
 #include <exception>
-#include <complex>
 #include <memory>
 #include <numeric>
 #include <optional>
@@ -397,13 +397,15 @@ void fold_dc_errors(const DcSystem& dc, const PinNeighbours& pins, int threads, 
       ++solved;
     }
     const int parts = errors.empty() ? 0 : workers;
+    const auto cut = [&](std::size_t size, int p) {
+      return size * static_cast<std::size_t>(p) / static_cast<std::size_t>(parts);
+    };
     if (parts > 0)
       for_blocks(static_cast<std::size_t>(parts), parts, [&](int part, std::size_t, std::size_t) {
-      const auto cut = [&](std::size_t size, int p) { return size * static_cast<std::size_t>(p) / static_cast<std::size_t>(parts); };
-      stops[static_cast<std::size_t>(part)] =
-          fold_errors(circuit, mna, pins, errors, cut(bands.worst.size(), part), cut(bands.worst.size(), part + 1),
-                      cut(result.opamps.size(), part), cut(result.opamps.size(), part + 1), result, bands);
-    });
+        stops[static_cast<std::size_t>(part)] =
+            fold_errors(circuit, mna, pins, errors, cut(bands.worst.size(), part), cut(bands.worst.size(), part + 1),
+                        cut(result.opamps.size(), part), cut(result.opamps.size(), part + 1), result, bands);
+      });
     for (int part = 0; part < parts; ++part)
       if (stops[static_cast<std::size_t>(part)].node_error != SIZE_MAX ||
           stops[static_cast<std::size_t>(part)].amp_error != SIZE_MAX)

@@ -20,6 +20,7 @@
 #include "tacet/analysis/spread_draw.hpp"
 #include "tacet/analysis/spread_random.hpp"
 #include "tacet/common/errors.hpp"
+#include "tacet/common/parallel.hpp"
 
 namespace tacet {
 
@@ -134,9 +135,7 @@ void run_draws(const Circuit& circuit, const SpreadOptions& options, SpreadSampl
   const std::size_t n_specs = samples.specs.size();
   std::vector<double> values(static_cast<std::size_t>(count) * n_specs);
   std::vector<std::uint8_t> pass(values.size());
-  int threads = options.threads > 0 ? options.threads
-                                    : static_cast<int>(std::max(1u, std::thread::hardware_concurrency()));
-  threads = static_cast<int>(std::min<std::int64_t>(threads, count));
+  const int threads = static_cast<int>(std::min<std::int64_t>(resolve_threads(options.threads), count));
   const std::int64_t claim = spread_claim_size(count, threads);
   std::atomic<std::int64_t> next{0}, done{0};
   std::atomic<bool> stop{false};
