@@ -265,3 +265,67 @@ TEST_CASE("each op amp keeps its three largest contributors, largest first, from
   CHECK_THAT(last[2].volts, IsClose(3e-3 * std::pow(1 / (1 + 1 / kAol), 3), 1e-9));
   CHECK_THAT(worst_at(b.circuit, r, "n5"), IsClose(15e-3, 1e-5));
 }
+
+namespace {
+
+void require_same_bias(const BiasResult& a, const BiasResult& b) {
+  REQUIRE(a.nodes.size() == b.nodes.size());
+  for (std::size_t k = 0; k < a.nodes.size(); ++k) {
+    CHECK(a.nodes[k].name == b.nodes[k].name);
+    CHECK(a.nodes[k].nominal == b.nodes[k].nominal);
+    CHECK(a.nodes[k].worst == b.nodes[k].worst);
+    CHECK(a.nodes[k].rss == b.nodes[k].rss);
+  }
+  REQUIRE(a.opamps.size() == b.opamps.size());
+  for (std::size_t k = 0; k < a.opamps.size(); ++k) {
+    const OpAmpBias &x = a.opamps[k], &y = b.opamps[k];
+    CHECK(x.name == y.name);
+    CHECK(x.out == y.out);
+    CHECK(x.nominal == y.nominal);
+    CHECK(x.low == y.low);
+    CHECK(x.high == y.high);
+    CHECK(x.ok == y.ok);
+    REQUIRE(x.largest.size() == y.largest.size());
+    for (std::size_t c = 0; c < x.largest.size(); ++c) {
+      CHECK(x.largest[c].opamp == y.largest[c].opamp);
+      CHECK(x.largest[c].kind == y.largest[c].kind);
+      CHECK(x.largest[c].gain == y.largest[c].gain);
+      CHECK(x.largest[c].volts == y.largest[c].volts);
+      CHECK(x.largest[c].through == y.largest[c].through);
+    }
+  }
+  CHECK(a.warnings == b.warnings);
+}
+
+}  // namespace
+
+// The reused tables must hold exactly what a fresh run computes, when the
+// values move the largest contributors around between runs (here the source
+// resistors grow until the bias currents outweigh the offsets).
+TEST_CASE("a bias run into the tables of an earlier run on restamped values equals a fresh run",
+          "[bias][threads]") {
+  for (const int threads : {1, 2}) {
+    CAPTURE(threads);
+    CircuitBuilder b;
+    b.vsrc("Vin", "in", "gnd", 0);
+    std::string from = "in";
+    for (int k = 0; k < 8; ++k) {  // 24 error columns: two blocks, so two workers on two threads
+      const std::string name = "U" + std::to_string(k), out = "o" + std::to_string(k);
+      noninverting_stage(b, name, from, out, 1e3, 10e3, 10e3, dc_model(1e-3, 50e-9, 5e-9));
+      from = out;
+    }
+    b.circuit.supply = Rails{15, -15};
+    Circuit& circuit = b.circuit;
+    DcSystem dc(circuit);
+    BiasResult reused;
+    for (const double rs : {1e3, 300e3, 30e6}) {
+      CAPTURE(rs);
+      for (auto& e : circuit.elements)
+        if (e.name.rfind("RsU", 0) == 0) e.value = rs;
+      dc.restamp();
+      run_bias(dc, threads, reused);
+      require_same_bias(reused, run_bias(circuit));
+    }
+    CHECK(reused.opamps.back().largest.front().kind != DcErrorKind::vos);  // the order did change
+  }
+}

@@ -62,9 +62,9 @@ DcLimits dc_limits(const Circuit& circuit, const OpAmpModel& m) {
 
 namespace {
 
-Vector nominal_rhs(const Circuit& circuit, const DcSystem& dc) {
+void nominal_rhs(const Circuit& circuit, const DcSystem& dc, Vector& rhs) {
   const MnaSystem& mna = dc.mna();
-  Vector rhs(dc.size(), 0.0);
+  rhs.assign(dc.size(), 0.0);
   for (std::size_t i = 0; i < circuit.elements.size(); ++i) {
     const auto& e = circuit.elements[i];
     switch (traits(e.kind).drive) {
@@ -84,7 +84,6 @@ Vector nominal_rhs(const Circuit& circuit, const DcSystem& dc) {
       draw_current(mna, rhs.data(), e.nodes[1], ib);
     }
   }
-  return rhs;
 }
 
 struct DcError {
@@ -103,8 +102,8 @@ struct OpAmpErrors {
   std::size_t columns() const { return (vos != 0 ? 1 : 0) + (pins() ? 2 : 0); }
 };
 
-std::vector<OpAmpErrors> opamp_errors(const Circuit& circuit) {
-  std::vector<OpAmpErrors> errors;
+void opamp_errors(const Circuit& circuit, std::vector<OpAmpErrors>& errors) {
+  errors.clear();
   for (std::size_t i = 0; i < circuit.elements.size(); ++i) {
     const auto& e = circuit.elements[i];
     if (e.kind != ElementKind::opamp) continue;
@@ -112,7 +111,6 @@ std::vector<OpAmpErrors> opamp_errors(const Circuit& circuit) {
     const OpAmpErrors amp{i, limits.vos, limits.ios, limits.ib, limits.ib_excess};
     if (amp.columns() > 0) errors.push_back(amp);
   }
-  return errors;
 }
 
 // The op amp's right-hand sides into consecutive columns (zeroed) from `rhs`:
@@ -170,8 +168,8 @@ class PinNeighbours {
 // op amp's input pins, the one with the largest voltage across it in that
 // error's solution `x`. A pin that is an op-amp output (a follower's - input)
 // is left out: that op amp supplies the current, not the resistors on it.
-std::string busiest_resistor(const Circuit& circuit, const MnaSystem& mna, const PinNeighbours& pins,
-                             const double* x, const Element& opamp) {
+const std::string* busiest_resistor(const Circuit& circuit, const MnaSystem& mna, const PinNeighbours& pins,
+                                    const double* x, const Element& opamp) {
   const std::string* name = nullptr;
   double largest = 0;
   for (const int pin : {opamp.nodes[0], opamp.nodes[1]}) {
@@ -182,26 +180,42 @@ std::string busiest_resistor(const Circuit& circuit, const MnaSystem& mna, const
       if (across > largest) largest = across, name = &e.name;
     });
   }
-  return name ? *name : std::string();
+  return name;
 }
 
-void require_finite(const Vector& x, const MnaSystem& mna) {
-  for (std::size_t u = 0; u < x.size(); ++u)
+void require_finite(const double* x, std::size_t n, const MnaSystem& mna) {
+  for (std::size_t u = 0; u < n; ++u)
     if (!std::isfinite(x[u]))
       throw SolveError::unsolvable_at(
           0, fmt::format("{} is not finite", mna.unknown_name(static_cast<int>(u))));
 }
 
 // Keeps the kLargestShown largest |volts| as contributions arrive, earlier
-// first among equals; a zero contribution is no contributor.
-void keep_if_large(std::vector<OffsetContribution>& kept, OffsetContribution c) {
-  if (c.volts == 0) return;
-  const auto at = std::find_if(kept.begin(), kept.end(), [&](const OffsetContribution& k) {
-    return std::abs(c.volts) > std::abs(k.volts);
+// first among equals, in kept[0, count); a zero contribution is no
+// contributor. Entries are assigned in place and slots beyond `count` are
+// spare, so a run on a result filled before reuses its strings' storage.
+void keep_if_large(std::vector<OffsetContribution>& kept, std::size_t& count, const std::string& opamp,
+                   DcErrorKind kind, double gain, double volts, const std::string& through) {
+  if (volts == 0) return;
+  const auto first = kept.begin();
+  const auto at = std::find_if(first, first + static_cast<std::ptrdiff_t>(count), [&](const OffsetContribution& k) {
+    return std::abs(volts) > std::abs(k.volts);
   });
-  if (at == kept.end() && kept.size() >= kLargestShown) return;
-  kept.insert(at, std::move(c));
-  if (kept.size() > kLargestShown) kept.pop_back();
+  const auto index = static_cast<std::size_t>(at - first);
+  if (index == count && count >= kLargestShown) return;
+  if (count < kLargestShown) {
+    if (kept.size() == count) kept.emplace_back();
+    ++count;
+  }
+  // The last slot in use (dropped, or spare) moves up to `index`; swaps move no characters.
+  std::rotate(kept.begin() + static_cast<std::ptrdiff_t>(index), kept.begin() + static_cast<std::ptrdiff_t>(count - 1),
+              kept.begin() + static_cast<std::ptrdiff_t>(count));
+  OffsetContribution& c = kept[index];
+  c.opamp.assign(opamp);
+  c.kind = kind;
+  c.gain = gain;
+  c.volts = volts;
+  c.through.assign(through);
 }
 
 // A DC error's share that overflows a double says nothing: exit 3 naming it.
@@ -219,7 +233,8 @@ void keep_if_large(std::vector<OffsetContribution>& kept, OffsetContribution c) 
 // the inner loop of the analysis), and each op amp's output unknown.
 struct Bands {
   std::vector<double> worst, squares;
-  std::vector<int> outputs;  // per result.opamps entry; -1: gnd
+  std::vector<int> outputs;        // per result.opamps entry; -1: gnd
+  std::vector<std::size_t> kept;   // per result.opamps entry: its contributors so far
 };
 
 // One DC error and its solution: the unknowns' shift per unit of the error.
@@ -259,25 +274,29 @@ FoldStop fold_errors(const Circuit& circuit, const MnaSystem& mna, const PinNeig
   }
   for (std::size_t e = 0; e < errors.size() && e < stop.node_error && stop.amp_error == SIZE_MAX; ++e) {
     const auto& [error, x] = errors[e];
-    std::optional<std::string> through;
+    static const std::string none;
+    const std::string* through = nullptr;  // found once per error, when some op amp keeps it
     for (std::size_t a = amp_begin; a < amp_end; ++a) {
       const double sensitivity = mna.voltage_at_unknown(x, bands.outputs[a]);
       if (sensitivity == 0) continue;
       auto& amp = result.opamps[a];
+      std::size_t& kept = bands.kept[a];
       const double volts = error.kind == DcErrorKind::ib ? sensitivity * error.limit
                                                          : std::abs(sensitivity) * error.limit;
       if (!std::isfinite(volts)) {
         stop.amp_error = e;
         break;
       }
-      if (amp.largest.size() == kLargestShown && !(std::abs(volts) > std::abs(amp.largest.back().volts)))
+      if (kept == kLargestShown && !(std::abs(volts) > std::abs(amp.largest[kept - 1].volts)))
         continue;  // would not be kept
-      if (!through)
+      if (!through) {
         through = error.kind == DcErrorKind::vos
-                      ? std::string()
+                      ? &none
                       : busiest_resistor(circuit, mna, pins, x, circuit.elements[error.element]);
-      keep_if_large(amp.largest, {circuit.elements[error.element].name, error.kind,
-                                  std::abs(sensitivity), volts, *through});
+        if (!through) through = &none;
+      }
+      keep_if_large(amp.largest, kept, circuit.elements[error.element].name, error.kind, std::abs(sensitivity),
+                    volts, *through);
     }
   }
   return stop;
@@ -314,14 +333,13 @@ struct ErrorBlock {
   std::size_t columns;
 };
 
-std::vector<ErrorBlock> error_blocks(const std::vector<OpAmpErrors>& amps) {
-  std::vector<ErrorBlock> blocks;
+void error_blocks(const std::vector<OpAmpErrors>& amps, std::vector<ErrorBlock>& blocks) {
+  blocks.clear();
   for (std::size_t first = 0, last = 0; first < amps.size(); first = last) {
     std::size_t columns = 0;
     while (last < amps.size() && columns + amps[last].columns() <= kBlock) columns += amps[last++].columns();
     blocks.push_back({first, last, columns});
   }
-  return blocks;
 }
 
 // Solves one block's right-hand sides into `block` and turns each pin pair
@@ -338,7 +356,7 @@ void solve_block(const Circuit& circuit, const DcSystem& dc, const std::vector<O
   dc.solve(block, static_cast<int>(span.columns));
   if (!std::all_of(block.begin(), block.begin() + static_cast<std::ptrdiff_t>(span.columns * n),
                    [](double v) { return std::isfinite(v); }))
-    for (std::size_t c = 0; c < span.columns; ++c) require_finite(Vector(column(c), column(c) + n), mna);
+    for (std::size_t c = 0; c < span.columns; ++c) require_finite(column(c), n, mna);
   for (std::size_t k = span.first, c = 0; k < span.last; ++k) {
     const OpAmpErrors& amp = amps[k];
     if (amp.vos != 0) errors.push_back({{amp.element, DcErrorKind::vos, amp.vos}, column(c++)});
@@ -357,6 +375,41 @@ void solve_block(const Circuit& circuit, const DcSystem& dc, const std::vector<O
   }
 }
 
+// What a bias run works in besides its result, kept by the DcSystem for its
+// next run: a second run on the same structure (spread: one per draw)
+// allocates nothing.
+struct BiasScratch {
+  explicit BiasScratch(const Circuit& circuit) : pins(circuit) {}
+  PinNeighbours pins;
+  Vector x;  // the nominal point
+  Bands bands;
+  std::vector<OpAmpErrors> amps;
+  std::vector<ErrorBlock> blocks;
+  // Per worker: its own DcSystem ([0] stays empty: the system itself), the
+  // restamp of the system it was last factored at, a block of solutions,
+  // the errors of its block, its failure.
+  std::vector<std::unique_ptr<DcSystem>> own;
+  std::vector<unsigned> own_restamps;
+  std::vector<Vector> buffers;
+  std::vector<std::vector<ErrorColumn>> wave_errors;
+  std::vector<std::exception_ptr> failed;
+  std::vector<ErrorColumn> errors;  // a wave's, in order
+  std::vector<FoldStop> stops;      // per range of a wave's fold
+};
+
+// Worker w's DcSystem at the values of `dc`: built the first time, restamped
+// when `dc` has been restamped since.
+const DcSystem& worker_system(const DcSystem& dc, BiasScratch& work, std::size_t w) {
+  if (w == 0) return dc;
+  if (!work.own[w]) {
+    work.own[w] = std::make_unique<DcSystem>(dc.circuit(), dc.kind());
+  } else if (work.own_restamps[w] != dc.restamps()) {
+    work.own[w]->restamp();
+  }
+  work.own_restamps[w] = dc.restamps();
+  return *work.own[w];
+}
+
 // Every DC error folded into the bands and the op amps' largest contributors.
 // On `threads` workers: waves of one block per worker are solved at once (a
 // worker has a DcSystem of its own, as KLU's solve keeps its workspace in the
@@ -364,53 +417,60 @@ void solve_block(const Circuit& circuit, const DcSystem& dc, const std::vector<O
 // into ranges, each range taking the errors in order. A failure is the one a
 // single thread meets first: a block's solve fails only after the blocks
 // before it have been folded.
-void fold_dc_errors(const DcSystem& dc, const PinNeighbours& pins, int threads, BiasResult& result, Bands& bands) {
+void fold_dc_errors(const DcSystem& dc, int threads, BiasResult& result, BiasScratch& work) {
   const Circuit& circuit = dc.circuit();
   const MnaSystem& mna = dc.mna();
-  const std::vector<OpAmpErrors> amps = opamp_errors(circuit);
-  const std::vector<ErrorBlock> blocks = error_blocks(amps);
+  opamp_errors(circuit, work.amps);
+  error_blocks(work.amps, work.blocks);
+  const auto& blocks = work.blocks;
   const std::size_t n = dc.size();
   const int workers = std::max(1, std::min<int>(resolve_threads(threads), static_cast<int>(blocks.size())));
-  std::vector<std::unique_ptr<DcSystem>> own(static_cast<std::size_t>(workers));  // [0] stays empty: dc itself
-  std::vector<Vector> buffers(static_cast<std::size_t>(workers), Vector(n * kBlock));
-  std::vector<std::vector<ErrorColumn>> wave_errors(static_cast<std::size_t>(workers));
-  std::vector<std::exception_ptr> failed(static_cast<std::size_t>(workers));
-  std::vector<ErrorColumn> errors;
-  std::vector<FoldStop> stops(static_cast<std::size_t>(workers));
-  for (std::size_t first = 0; first < blocks.size(); first += static_cast<std::size_t>(workers)) {
-    const std::size_t count = std::min(blocks.size() - first, static_cast<std::size_t>(workers));
+  const auto slots = static_cast<std::size_t>(workers);
+  if (work.own.size() < slots) {
+    work.own.resize(slots);
+    work.own_restamps.resize(slots);
+    work.wave_errors.resize(slots);
+    work.failed.resize(slots);
+    work.stops.resize(slots);
+  }
+  if (work.buffers.size() < slots) work.buffers.resize(slots);
+  for (std::size_t w = 0; w < slots; ++w) work.buffers[w].resize(n * kBlock);
+  for (std::size_t first = 0; first < blocks.size(); first += slots) {
+    const std::size_t count = std::min(blocks.size() - first, slots);
     for_blocks(count, static_cast<int>(count), [&](int w, std::size_t, std::size_t) {
       const auto slot = static_cast<std::size_t>(w);
-      wave_errors[slot].clear();
-      failed[slot] = nullptr;
+      work.wave_errors[slot].clear();
+      work.failed[slot] = nullptr;
       try {
-        if (slot > 0 && !own[slot]) own[slot] = std::make_unique<DcSystem>(circuit, dc.kind());
-        solve_block(circuit, slot > 0 ? *own[slot] : dc, amps, blocks[first + slot], buffers[slot], wave_errors[slot]);
+        solve_block(circuit, worker_system(dc, work, slot), work.amps, blocks[first + slot], work.buffers[slot],
+                    work.wave_errors[slot]);
       } catch (...) {
-        failed[slot] = std::current_exception();
+        work.failed[slot] = std::current_exception();
       }
     });
-    errors.clear();
+    work.errors.clear();
     std::size_t solved = 0;
-    while (solved < count && !failed[solved]) {
-      errors.insert(errors.end(), wave_errors[solved].begin(), wave_errors[solved].end());
+    while (solved < count && !work.failed[solved]) {
+      work.errors.insert(work.errors.end(), work.wave_errors[solved].begin(), work.wave_errors[solved].end());
       ++solved;
     }
-    const int parts = errors.empty() ? 0 : workers;
+    const int parts = work.errors.empty() ? 0 : workers;
     const auto cut = [&](std::size_t size, int p) {
       return size * static_cast<std::size_t>(p) / static_cast<std::size_t>(parts);
     };
+    Bands& bands = work.bands;
     if (parts > 0)
       for_blocks(static_cast<std::size_t>(parts), parts, [&](int part, std::size_t, std::size_t) {
-        stops[static_cast<std::size_t>(part)] =
-            fold_errors(circuit, mna, pins, errors, cut(bands.worst.size(), part), cut(bands.worst.size(), part + 1),
-                        cut(result.opamps.size(), part), cut(result.opamps.size(), part + 1), result, bands);
+        work.stops[static_cast<std::size_t>(part)] =
+            fold_errors(circuit, mna, work.pins, work.errors, cut(bands.worst.size(), part),
+                        cut(bands.worst.size(), part + 1), cut(result.opamps.size(), part),
+                        cut(result.opamps.size(), part + 1), result, bands);
       });
     for (int part = 0; part < parts; ++part)
-      if (stops[static_cast<std::size_t>(part)].node_error != SIZE_MAX ||
-          stops[static_cast<std::size_t>(part)].amp_error != SIZE_MAX)
-        name_overflow(circuit, mna, errors, {stops.begin(), stops.begin() + parts}, result, bands);
-    if (solved < count) std::rethrow_exception(failed[solved]);
+      if (work.stops[static_cast<std::size_t>(part)].node_error != SIZE_MAX ||
+          work.stops[static_cast<std::size_t>(part)].amp_error != SIZE_MAX)
+        name_overflow(circuit, mna, work.errors, {work.stops.begin(), work.stops.begin() + parts}, result, bands);
+    if (solved < count) std::rethrow_exception(work.failed[solved]);
   }
 }
 
@@ -439,6 +499,16 @@ void check_rails(const Circuit& circuit, OpAmpBias& amp, std::vector<std::string
 }
 
 }  // namespace
+
+struct DcSystem::Scratch {
+  explicit Scratch(const Circuit& circuit) : bias(circuit) {}
+  BiasScratch bias;
+};
+
+DcSystem::Scratch& DcSystem::scratch() const {
+  if (!scratch_) scratch_ = std::make_unique<Scratch>(circuit());
+  return *scratch_;
+}
 
 const char* to_string(DcErrorKind kind) {
   switch (kind) {
@@ -476,6 +546,7 @@ void DcSystem::factor() {
 
 void DcSystem::restamp() {
   mna_->restamp();
+  ++restamps_;
   factor();
 }
 
@@ -490,43 +561,76 @@ BiasResult run_bias(const Circuit& circuit, const BiasOptions& options) {
 }
 
 BiasResult run_bias(const DcSystem& dc, int threads) {
-  const Circuit& circuit = dc.circuit();
-  const MnaSystem& mna = dc.mna();
   BiasResult result;
+  run_bias(dc, threads, result);
+  return result;
+}
+
+namespace {
+
+// The nominal point's tables, assigned in place over those of an earlier run.
+void fill_nominal(const Circuit& circuit, const MnaSystem& mna, const double* x, BiasResult& result) {
   result.range = error_range(circuit);
-  Vector x = nominal_rhs(circuit, dc);
-  dc.solve(x, 1);
-  require_finite(x, mna);
-  for (std::size_t node = 1; node < circuit.node_count(); ++node)
-    result.nodes.push_back({circuit.node_names[node], at_node(mna, x.data(), static_cast<int>(node)), 0, 0});
-  for (std::size_t i = 0; i < circuit.elements.size(); ++i) {
+  result.nodes.resize(circuit.node_count() - 1);
+  for (std::size_t node = 1; node < circuit.node_count(); ++node) {
+    NodeBias& b = result.nodes[node - 1];
+    b.name.assign(circuit.node_names[node]);
+    b.nominal = at_node(mna, x, static_cast<int>(node));
+    b.worst = b.rss = 0;
+  }
+  std::size_t count = 0;
+  for (const auto& e : circuit.elements) count += e.kind == ElementKind::opamp ? 1 : 0;
+  result.opamps.resize(count);
+  for (std::size_t i = 0, a = 0; i < circuit.elements.size(); ++i) {
     const auto& e = circuit.elements[i];
     if (e.kind != ElementKind::opamp) continue;
-    OpAmpBias amp;
-    amp.name = e.name;
+    OpAmpBias& amp = result.opamps[a++];
+    amp.name.assign(e.name);
     amp.element = i;
-    amp.out = circuit.node_names[static_cast<std::size_t>(e.nodes[2])];
-    amp.nominal = at_node(mna, x.data(), e.nodes[2]);
-    result.opamps.push_back(amp);
+    amp.out.assign(circuit.node_names[static_cast<std::size_t>(e.nodes[2])]);
+    amp.nominal = at_node(mna, x, e.nodes[2]);
+    amp.low = amp.high = 0;
+    amp.rails.reset();
+    amp.limit_low = amp.limit_high = kNotGiven;
+    amp.ok.reset();
   }
+  result.warnings.clear();
+}
 
-  const PinNeighbours pins(circuit);
-  Bands bands{std::vector<double>(result.nodes.size(), 0.0), std::vector<double>(result.nodes.size(), 0.0), {}};
-  for (const auto& amp : result.opamps)
-    bands.outputs.push_back(mna.node_unknown(circuit.elements[amp.element].nodes[2]));
-  fold_dc_errors(dc, pins, threads, result, bands);
+void reset_bands(const Circuit& circuit, const MnaSystem& mna, const BiasResult& result, Bands& bands) {
+  bands.worst.assign(result.nodes.size(), 0.0);
+  bands.squares.assign(result.nodes.size(), 0.0);
+  bands.outputs.clear();
+  for (const auto& amp : result.opamps) bands.outputs.push_back(mna.node_unknown(circuit.elements[amp.element].nodes[2]));
+  bands.kept.assign(result.opamps.size(), 0);
+}
+
+}  // namespace
+
+void run_bias(const DcSystem& dc, int threads, BiasResult& result) {
+  const Circuit& circuit = dc.circuit();
+  const MnaSystem& mna = dc.mna();
+  BiasScratch& work = dc.scratch().bias;
+  nominal_rhs(circuit, dc, work.x);
+  dc.solve(work.x, 1);
+  require_finite(work.x.data(), work.x.size(), mna);
+  fill_nominal(circuit, mna, work.x.data(), result);
+
+  Bands& bands = work.bands;
+  reset_bands(circuit, mna, result, bands);
+  fold_dc_errors(dc, threads, result, work);
   for (std::size_t k = 0; k < result.nodes.size(); ++k) {
     result.nodes[k].worst = bands.worst[k];
     result.nodes[k].rss = std::sqrt(bands.squares[k]);
   }
-
-  for (auto& amp : result.opamps) {
+  for (std::size_t a = 0; a < result.opamps.size(); ++a) {
+    auto& amp = result.opamps[a];
+    amp.largest.resize(bands.kept[a]);
     const double worst = result.node(circuit.elements[amp.element].nodes[2]).worst;
     amp.low = amp.nominal - worst;
     amp.high = amp.nominal + worst;
     check_rails(circuit, amp, result.warnings);
   }
-  return result;
 }
 
 }  // namespace tacet

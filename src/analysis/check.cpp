@@ -470,13 +470,19 @@ class SpecMeter {
   void rails(SpecResult& r) {
     const BiasResult& b = bias();
     std::optional<double> smallest;
-    auto take = [&](double margin, const std::string& where) {
-      if (std::isnan(margin)) return;
-      if (!smallest || margin < *smallest) smallest = margin, r.note = where;
+    // Where the smallest margin is, worded once at the end: a draw of a
+    // spread measures this spec thousands of times and reads only the value.
+    const OpAmpBias* dc_amp = nullptr;
+    const OpAmpHeadroom* level_amp = nullptr;
+    const PinHeadroom* level_pin = nullptr;
+    auto smaller = [&](double margin) {
+      if (std::isnan(margin) || (smallest && !(margin < *smallest))) return false;
+      smallest = margin;
+      return true;
     };
     for (const auto& op : b.opamps)
-      if (op.ok.has_value())
-        take(std::min(op.limit_high - op.high, op.low - op.limit_low), fmt::format("{} output at DC", op.name));
+      if (op.ok.has_value() && smaller(std::min(op.limit_high - op.high, op.low - op.limit_low)))
+        dc_amp = &op;
     const bool has_level = std::any_of(circuit_.elements.begin(), circuit_.elements.end(),
                                        [](const Element& e) { return e.level.has_value(); });
     if (has_level) {
@@ -484,12 +490,17 @@ class SpecMeter {
       for (const auto& op : h.opamps) {
         if (!op.has_rails) continue;
         for (const auto* pin : {&op.out, &op.plus, &op.minus})
-          take(pin->margin, fmt::format("{} pin '{}' at {}Hz at the declared level", op.name, pin->node,
-                                        format_si(pin->frequency)));
+          if (smaller(pin->margin)) level_amp = &op, level_pin = pin;
       }
     }
     r.value = smallest;
-    if (!smallest) r.note = "no op amp has rails to check: declare supply or rails=";
+    if (!smallest)
+      r.note = "no op amp has rails to check: declare supply or rails=";
+    else if (level_amp)
+      r.note = fmt::format("{} pin '{}' at {}Hz at the declared level", level_amp->name, level_pin->node,
+                           format_si(level_pin->frequency));
+    else
+      r.note = fmt::format("{} output at DC", dc_amp->name);
   }
 
   /// One step response per (input, probe, band), shared by its settling and
@@ -637,6 +648,7 @@ CheckResult run_check(const Circuit& circuit) { return run_check(circuit, Shared
 CheckResult run_check(const Circuit& circuit, const SharedAnalyses& shared) {
   CheckResult result;
   SpecMeter meter(circuit, shared);
+  result.specs.reserve(circuit.specs.size());
   for (const auto& spec : circuit.specs) result.specs.push_back(meter.measure(spec));
   return result;
 }

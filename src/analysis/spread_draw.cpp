@@ -86,12 +86,13 @@ CheckResult SpreadEvaluator::check() {
     shared.response = response_.get();
   }
   shared.bias_error = dc_error_;
-  if (dc_) {
+  if (dc_ && needs_dc(work_.specs)) {
     try {
       dc_->restamp();
-      shared.dc = dc_.get();
+      run_bias(*dc_, 1, bias_);  // into the last draw's tables: nothing allocated
+      shared.bias = &bias_;
     } catch (const SolveError& e) {
-      shared.bias_error = e;  // singular at this draw's values
+      shared.bias_error = e;  // singular, or not finite, at this draw's values
     }
   }
   return run_check(work_, shared);

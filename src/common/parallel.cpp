@@ -30,7 +30,7 @@ int block_count(std::size_t count, int workers, std::size_t least) {
 }
 
 void for_blocks(std::size_t count, int blocks,
-                const std::function<void(int, std::size_t, std::size_t)>& work) {
+                FunctionRef<void(int, std::size_t, std::size_t)> work) {
   const auto n = static_cast<std::size_t>(std::max(1, blocks));
   auto start = [&](std::size_t b) { return b * count / n; };
   if (n == 1) {
@@ -54,7 +54,7 @@ void for_blocks(std::size_t count, int blocks,
     if (failure) std::rethrow_exception(failure);
 }
 
-void for_items(std::size_t count, int workers, const std::function<void(int, std::size_t)>& work) {
+void for_items(std::size_t count, int workers, FunctionRef<void(int, std::size_t)> work) {
   if (count == 0) return;
   const auto threads_wanted = std::min<std::size_t>(static_cast<std::size_t>(std::max(1, workers)), count);
   std::vector<std::exception_ptr> failures(count);

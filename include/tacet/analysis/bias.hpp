@@ -141,9 +141,20 @@ class DcSystem {
   SolverKind kind() const { return kind_; }
   /// `count` right-hand sides of size() values each, solved in place.
   void solve(std::vector<double>& block, int count) const;
+  /// How many times restamp() has run: a copy factored at an earlier count
+  /// (a bias worker's) is out of date.
+  unsigned restamps() const { return restamps_; }
+
+  /// What run_bias works in besides its result, kept for its next run on
+  /// this system (one run at a time per system, as the factors also hold
+  /// KLU's solve workspace).
+  struct Scratch;
+  Scratch& scratch() const;
 
  private:
   void factor();
+  mutable std::unique_ptr<Scratch> scratch_;
+  unsigned restamps_ = 0;
   std::unique_ptr<MnaSystem> mna_;
   std::unique_ptr<RealSparseLu> lu_;
   std::vector<double> values_;  // the factored matrix: the solution check reads it
@@ -153,5 +164,10 @@ class DcSystem {
 /// run_bias on a system already built (and restamped to the circuit's values),
 /// on `threads` workers (0: one per core).
 BiasResult run_bias(const DcSystem& dc, int threads = 1);
+/// The same into `result`, its tables assigned in place: a run on a result
+/// and a system that served a run before allocates nothing but the text of
+/// warnings (and a contributor's name longer than the string whose storage
+/// it takes over).
+void run_bias(const DcSystem& dc, int threads, BiasResult& result);
 
 }  // namespace tacet

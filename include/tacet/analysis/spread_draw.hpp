@@ -11,6 +11,7 @@
 #include <string>
 #include <vector>
 
+#include "tacet/analysis/bias.hpp"
 #include "tacet/analysis/check.hpp"
 #include "tacet/analysis/spread.hpp"
 #include "tacet/circuit/circuit.hpp"
@@ -54,6 +55,7 @@ class SpreadEvaluator {
   std::vector<double> nominal_, deviations_;
   std::unique_ptr<FrequencyResponse> response_;
   std::unique_ptr<DcSystem> dc_;
+  BiasResult bias_;  ///< the last draw's DC analysis, its tables reused by the next
   std::optional<SolveError> dc_error_;  ///< why the DC system cannot be built; empty: it was
 };
 

@@ -9,8 +9,9 @@
 // far less than the work; a short job runs on the calling thread alone).
 
 #include <cstddef>
-#include <functional>
 #include <string>
+
+#include "tacet/common/function_ref.hpp"
 
 namespace tacet {
 
@@ -37,12 +38,12 @@ int block_count(std::size_t count, int workers, std::size_t least);
 /// stops at its first failing index, so that is the failure a single thread
 /// would meet first.
 void for_blocks(std::size_t count, int blocks,
-                const std::function<void(int block, std::size_t begin, std::size_t end)>& work);
+                FunctionRef<void(int block, std::size_t begin, std::size_t end)> work);
 
 /// The same for `count` independent items claimed one at a time by
 /// `workers` threads (items of very different cost: a check's specs). Every
 /// item is attempted; the exception of the lowest failing item is rethrown.
 void for_items(std::size_t count, int workers,
-               const std::function<void(int worker, std::size_t item)>& work);
+               FunctionRef<void(int worker, std::size_t item)> work);
 
 }  // namespace tacet
