@@ -235,8 +235,13 @@ static HeadroomResult headroom_of(const Circuit& circuit, const BiasResult& bias
   const Band band = headroom_band(circuit, options, result.sources);
   result.band_low = band.from, result.band_high = band.to;
 
+  // Sized once: a spread draw runs this again, and growth would reallocate
+  // about log2(op amps) times per table.
+  const auto opamp_count = static_cast<std::size_t>(std::count_if(
+      circuit.elements.begin(), circuit.elements.end(), [](const Element& e) { return e.kind == ElementKind::opamp; }));
   std::vector<const Element*> amps;
   std::vector<std::size_t> amp_elements;
+  amps.reserve(opamp_count), amp_elements.reserve(opamp_count), result.opamps.reserve(opamp_count);
   for (std::size_t i = 0; i < circuit.elements.size(); ++i) {
     const Element& e = circuit.elements[i];
     if (e.kind != ElementKind::opamp) continue;
@@ -259,6 +264,7 @@ static HeadroomResult headroom_of(const Circuit& circuit, const BiasResult& bias
   std::vector<double> peaks(circuit.node_count());
   const std::vector<LevelDrive> drives = drives_of(circuit, mna, result.sources);
   std::vector<int> branches;
+  branches.reserve(amp_elements.size());
   for (const std::size_t i : amp_elements) branches.push_back(mna.branch_unknown(i));
   std::vector<double> currents(branches.size());
   for (const double f : grid.frequencies()) {

@@ -67,6 +67,7 @@ double direct_coupling(const Probe& probe, std::size_t element, NoiseMechanism m
 std::vector<NoiseSource> noise_sources(const Circuit& circuit, const MnaSystem& mna,
                                        const Probe& probe, double kelvin) {
   std::vector<NoiseSource> sources;
+  sources.reserve(circuit.elements.size());  // mostly one per element: grown once or twice at most
   auto add = [&](std::size_t i, NoiseMechanism m, int plus, int minus, double white, double corner) {
     const double direct = direct_coupling(probe, i, m);
     if (white > 0 && (plus >= 0 || minus >= 0 || direct != 0))
@@ -236,6 +237,7 @@ void fill_points(NoiseResult& result, AdjointTeam& team, const Circuit& circuit,
                  const std::vector<NoiseSource>& sources, const std::vector<std::size_t>& largest,
                  const InputPort* input, std::optional<std::size_t> source, bool figure) {
   const std::size_t n = result.frequencies.size();
+  result.contributor_density.reserve(largest.size());
   for (std::size_t k : largest)
     result.contributor_density.push_back(
         {circuit.elements[sources[k].element].name, sources[k].mechanism, std::vector<double>(n)});
@@ -316,6 +318,7 @@ std::vector<std::size_t> integrate_contributors(NoiseResult& result, AdjointTeam
   std::stable_sort(order.begin(), order.end(), [&](std::size_t a, std::size_t b) {
     return integral.values[first + a] > integral.values[first + b];
   });
+  result.contributors.reserve(order.size());
   for (std::size_t i : order) {
     const double power = integral.values[first + i];
     result.contributors.push_back({circuit.elements[sources[i].element].name,
