@@ -31,6 +31,12 @@ int Circuit::node(const std::string& name, SourceLocation where) {
   return it->second;
 }
 
+void Circuit::reserve_nodes(std::size_t count) {
+  node_ids_.reserve(count);
+  node_names.reserve(count);
+  node_where.reserve(count);
+}
+
 std::optional<int> Circuit::find_node(const std::string& name) const {
   const auto it = node_ids_.find(name);
   if (it == node_ids_.end()) return std::nullopt;

@@ -31,8 +31,12 @@ std::optional<Circuit> Elaborator::run(const std::string& path) {
   if (options_.ambient_celsius) circuit_.ambient_celsius = *options_.ambient_celsius;
   InstanceContext top;
   top.scope = &globals_;
-  // Most netlists are flat: one element per top-level statement.
+  // Most netlists are flat: one element per top-level statement, and about
+  // as many nodes. Sized once, the name tables are not rehashed as they grow
+  // (at 100k elements each rehash walks every entry, out of cache).
   circuit_.elements.reserve(top_instances_.size());
+  element_names_.reserve(top_instances_.size());
+  circuit_.reserve_nodes(top_instances_.size());
   for (const auto& [instance, file] : top_instances_) instantiate(*instance, file, top);
   check_matched_sets();
   for (const auto& [spec, file] : specs_) elaborate_spec(*spec, file);

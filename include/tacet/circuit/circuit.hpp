@@ -163,6 +163,8 @@ struct Circuit {
   /// Node id by name, adding it when new.
   int node(const std::string& name, SourceLocation where = {});
   std::optional<int> find_node(const std::string& name) const;
+  /// Room for `count` nodes before node() grows its tables.
+  void reserve_nodes(std::size_t count);
   std::optional<std::size_t> find_element(const std::string& name) const;
   /// An op amp's model (`e.model` indexes `models`).
   const OpAmpModel& model_of(const Element& e) const;
