@@ -18,6 +18,7 @@
 #include "tacet/analysis/ac.hpp"
 #include "tacet/analysis/bias.hpp"
 #include "tacet/analysis/check.hpp"
+#include "tacet/analysis/headroom.hpp"
 #include "tacet/analysis/noise.hpp"
 #include "tacet/common/errors.hpp"
 #include "tacet/common/parallel.hpp"
@@ -333,6 +334,27 @@ TEST_CASE("bias writes the same bytes with 1, 2, 3 and 7 threads", "[threads][bi
     CHECK(bias_json(many, context) == bias_json(one, context));
     CHECK(bias_table(many, context) == bias_table(one, context));
     CHECK(bias_csv(many) == bias_csv(one));
+  }
+}
+
+TEST_CASE("the headroom sweep writes the same bytes with 1, 2, 3 and 7 threads", "[threads][bias][headroom]") {
+  // 150 frequencies (20 Hz .. 20 kHz at 50 a decade): every count cuts them
+  // into several waves, so each pin's worst frequency is found across workers.
+  const Circuit circuit = circuit_of(chain_with_budget());
+  const ReportContext context{"chain.tacet", "chain"};
+  const BiasResult bias = run_bias(circuit);
+  auto report = [&](int threads) {
+    HeadroomOptions o;
+    o.threads = threads;
+    return BiasReport{bias, run_headroom(circuit, bias, o)};
+  };
+  const BiasReport one = report(1);
+  REQUIRE(one.headroom.opamps.size() == 6);
+  for (int threads : {2, 3, 7}) {
+    INFO(threads << " threads");
+    const BiasReport many = report(threads);
+    CHECK(bias_json(many, context) == bias_json(one, context));
+    CHECK(bias_table(many, context) == bias_table(one, context));
   }
 }
 

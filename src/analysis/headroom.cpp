@@ -16,6 +16,7 @@
 
 #include "tacet/analysis/ac.hpp"
 #include "tacet/common/errors.hpp"
+#include "tacet/common/parallel.hpp"
 #include "tacet/common/format.hpp"
 #include "tacet/solve/mna.hpp"
 #include "tacet/solve/response.hpp"
@@ -125,6 +126,50 @@ void signal_peaks(const MnaSystem& mna, SparseLu& lu, const std::vector<LevelDri
       currents[k] += std::abs(x[static_cast<std::size_t>(branches[k])]);
   }
 }
+
+// The signal peaks of a band's frequencies on `threads` workers: waves of a
+// few frequencies per worker are solved at once (each worker on a response of
+// its own, anchored where the main one is), then handed to `take` one by one
+// in frequency order, so whatever keeps a running worst sees exactly the
+// sequence one thread would.
+class PeakSweep {
+ public:
+  PeakSweep(FrequencyResponse& response, double first, int threads, std::size_t nodes, std::size_t branches)
+      : response_(response) {
+    response.anchor_at(first);  // the pivots every worker reuses (response.hpp)
+    const auto workers = static_cast<std::size_t>(std::max(1, resolve_threads(threads)));
+    for (std::size_t w = 1; w < workers; ++w) own_.push_back(response.worker());
+    const std::size_t slots = workers * kPerWorker;
+    x_.assign(workers, Vector(static_cast<std::size_t>(response.mna().size())));
+    peaks_.assign(slots, std::vector<double>(nodes));
+    currents_.assign(slots, std::vector<double>(branches));
+  }
+
+  template <typename Take>
+  void run(const std::vector<double>& frequencies, const std::vector<LevelDrive>& drives,
+           const std::vector<int>& branches, Take&& take) {
+    const std::size_t workers = x_.size(), slots = peaks_.size();
+    for (std::size_t first = 0; first < frequencies.size(); first += slots) {
+      const std::size_t count = std::min(slots, frequencies.size() - first);
+      for_blocks(count, block_count(count, static_cast<int>(workers), 1), [&](int w, std::size_t begin, std::size_t end) {
+        const auto worker = static_cast<std::size_t>(w);
+        FrequencyResponse& response = worker == 0 ? response_ : *own_[worker - 1];
+        for (std::size_t k = begin; k < end; ++k) {
+          response.factor_at(frequencies[first + k]);
+          signal_peaks(response.mna(), response.lu(), drives, x_[worker], peaks_[k], branches, currents_[k]);
+        }
+      });
+      for (std::size_t k = 0; k < count; ++k) take(frequencies[first + k], peaks_[k], currents_[k]);
+    }
+  }
+
+ private:
+  static constexpr std::size_t kPerWorker = 8;  // frequencies per worker and wave
+  FrequencyResponse& response_;
+  std::vector<std::unique_ptr<FrequencyResponse>> own_;
+  std::vector<Vector> x_;  // per worker
+  std::vector<std::vector<double>> peaks_, currents_;  // per slot of a wave
+};
 
 void warn_pin(const std::string& amp, const char* what, const PinHeadroom& pin, const char* limit,
               std::vector<std::string>& warnings) {
@@ -260,16 +305,14 @@ static HeadroomResult headroom_of(const Circuit& circuit, const BiasResult& bias
   grid.from = band.from, grid.to = band.to, grid.per_decade = options.per_decade;
   FrequencyResponse& response = response_of();
   const MnaSystem& mna = response.mna();
-  Vector x(static_cast<std::size_t>(mna.size()));
-  std::vector<double> peaks(circuit.node_count());
   const std::vector<LevelDrive> drives = drives_of(circuit, mna, result.sources);
   std::vector<int> branches;
   branches.reserve(amp_elements.size());
   for (const std::size_t i : amp_elements) branches.push_back(mna.branch_unknown(i));
-  std::vector<double> currents(branches.size());
-  for (const double f : grid.frequencies()) {
-    response.factor_at(f);
-    signal_peaks(mna, response.lu(), drives, x, peaks, branches, currents);
+  const std::vector<double> frequencies = grid.frequencies();
+  PeakSweep sweep(response, frequencies.front(), options.threads, circuit.node_count(), branches.size());
+  sweep.run(frequencies, drives, branches, [&](double f, const std::vector<double>& peaks,
+                                                const std::vector<double>& currents) {
     for (std::size_t k = 0; k < amps.size(); ++k) {
       const auto& pins = amps[k]->nodes;
       auto& amp = result.opamps[k];
@@ -279,7 +322,7 @@ static HeadroomResult headroom_of(const Circuit& circuit, const BiasResult& bias
       track_slew(amp.slew, peaks[static_cast<std::size_t>(pins[2])], f);
       track_current(amp.current, currents[k], f);
     }
-  }
+  });
   for (const auto& amp : result.opamps) warn(amp, result.warnings);
   return result;
 }

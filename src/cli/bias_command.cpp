@@ -37,9 +37,10 @@ HeadroomOptions headroom_options(const BiasCommandOptions& o) {
 }
 
 void run(const BiasCommandOptions& o) {
-  const HeadroomOptions headroom_opts = headroom_options(o);
+  HeadroomOptions headroom_opts = headroom_options(o);
   BiasOptions bias_options;
   bias_options.threads = checked_threads(o.threads);
+  headroom_opts.threads = bias_options.threads;
   const BiasReport report =
       analyse_and_write(o.common, bias_writers(), [&](const Circuit& circuit) {
         BiasResult bias = run_bias(circuit, bias_options);

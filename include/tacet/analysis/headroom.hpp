@@ -56,6 +56,9 @@ struct HeadroomOptions {
   double band_high = 0;  ///< Hz
   int per_decade = 50;   ///< log grid over the band, points per decade
   SolverKind solver = SolverKind::klu;
+  /// Workers for the sweep's solves (0: one per core); the result is the
+  /// same to the bit for any number.
+  int threads = 1;
 
   /// Empty when valid, else a message naming the option and the rule.
   std::string validate() const;
