@@ -139,7 +139,7 @@ class PeakSweep {
     response.anchor_at(first);  // the pivots every worker reuses (response.hpp)
     const auto workers = static_cast<std::size_t>(std::max(1, resolve_threads(threads)));
     for (std::size_t w = 1; w < workers; ++w) own_.push_back(response.worker());
-    const std::size_t slots = workers * kPerWorker;
+    const std::size_t slots = workers == 1 ? 1 : workers * kPerWorker;  // one thread: one at a time
     x_.assign(workers, Vector(static_cast<std::size_t>(response.mna().size())));
     peaks_.assign(slots, std::vector<double>(nodes));
     currents_.assign(slots, std::vector<double>(branches));
