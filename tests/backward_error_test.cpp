@@ -291,10 +291,9 @@ TEST_CASE("a block of right-hand sides gets each column's own backward error, bi
       b.insert(b.end(), other.b.begin(), other.b.end());
     }
     if (count > 2) x[2 * n + 3] = kInf;  // a value that is not finite in one column
-    std::vector<double> r(x.size()), omega(static_cast<std::size_t>(count));
-    Residual<double> scratch;
-    backward_errors(pattern, rows, values.data(), x.data(), b.data(), count, r.data(), omega.data(),
-                    scratch);
+    std::vector<double> r(x.size()), scale(x.size()), omega(static_cast<std::size_t>(count));
+    backward_errors(pattern, rows, values.data(), x.data(), b.data(), count, r.data(), scale.data(),
+                    omega.data());
     for (int c = 0; c < count; ++c) {
       const std::size_t at = n * static_cast<std::size_t>(c);
       const std::vector<double> xc(x.begin() + static_cast<std::ptrdiff_t>(at),
@@ -303,7 +302,10 @@ TEST_CASE("a block of right-hand sides gets each column's own backward error, bi
                                    b.begin() + static_cast<std::ptrdiff_t>(at + n));
       const Reference<double> expected = oettli_prager(first.a, xc, bc);
       CHECK(omega[static_cast<std::size_t>(c)] == expected.omega);
-      for (std::size_t i = 0; i < n; ++i) CHECK(same(r[at + i], expected.r[i]));
+      for (std::size_t i = 0; i < n; ++i) {
+        CHECK(same(r[at + i], expected.r[i]));
+        CHECK(same(scale[at + i], expected.scale[i]));
+      }
       (rows_below_floor(expected) > 0 ? under : over) += 1;
     }
   }

@@ -10,6 +10,10 @@
 // the floor (a ladder far above its corner) are the ratios taken again against
 // the floor, from the stored residuals. Either way omega is what the formula
 // with the floor gives.
+//
+// A block of real right-hand sides (the DC errors, sixteen to a solve) is
+// summed four columns per pass over A, two to an SSE register, each lane with
+// the arithmetic of its column alone.
 
 #include "tacet/solve/backward_error.hpp"
 
@@ -36,10 +40,6 @@ inline void subtract_product(std::complex<double>& acc, std::complex<double> a,
 // The rows' ratios as they are formed, for one right-hand side.
 class RatioScan {
  public:
-  RatioScan() = default;
-  RatioScan(double largest, double worst, double smallest, bool finite)
-      : largest_(largest), worst_(worst), smallest_(smallest), finite_(finite) {}
-
   void add(double num, double scale) {
     largest_ = std::max(largest_, scale);
     if (num == 0) return;
@@ -53,16 +53,13 @@ class RatioScan {
     smallest_ = std::min(smallest_, scale);
   }
 
-  // True when a row with a residual is under the floor: omega needs the
-  // rows again.
-  bool below_floor() const { return finite_ && smallest_ < kNegligibleRow * largest_; }
-  // omega when not below_floor().
-  double settled() const { return finite_ ? worst_ : kInfinity; }
-
+  // omega; `r` and `scale` are read again only when a row with a residual is
+  // under the floor.
   template <typename T>
   double omega(const T* r, const double* scale, std::size_t n) const {
-    if (!below_floor()) return settled();
+    if (!finite_) return kInfinity;
     const double floor = kNegligibleRow * largest_;
+    if (!(smallest_ < floor)) return worst_;
     double worst = 0;
     for (std::size_t i = 0; i < n; ++i) {
       const double num = magnitude(r[i]);
@@ -99,6 +96,15 @@ double gather(std::size_t n, const int* start, const int* from, ValueAt value_at
   return scan.omega(r, scale, n);
 }
 
+// A x, row i of A through the row order.
+template <typename T, typename XMagnitude>
+double gather_plain(std::size_t n, const RowOrder& rows, const T* values, XMagnitude x_magnitude,
+                    const T* x, const T* b, T* r, double* scale) {
+  return gather(n, rows.start.data(), rows.column.data(),
+                [values, at = rows.at.data()](int j) { return values[at[j]]; }, x_magnitude, x, b, r,
+                scale);
+}
+
 // |x_k| for the pass: a real magnitude is one instruction, a complex one three,
 // worth computing once per entry of x rather than once per matrix entry.
 inline auto magnitudes(const double* x, std::vector<double>&) {
@@ -115,43 +121,21 @@ using Pair = double __attribute__((vector_size(16)));
 using PairBits = long long __attribute__((vector_size(16)));
 
 inline Pair pair_abs(Pair v) {
-  const PairBits sign = {static_cast<long long>(1ULL << 63), static_cast<long long>(1ULL << 63)};
+  const auto sign = reinterpret_cast<PairBits>(Pair{-0.0, -0.0});
   return reinterpret_cast<Pair>(reinterpret_cast<PairBits>(v) & ~sign);
 }
 
-// RatioScan::add for two columns at once, lane by lane the same comparisons
-// (std::max(a, b) is a < b ? b : a, std::min(a, b) is b < a ? b : a) and the
-// same division, without a branch.
-class PairScan {
- public:
-  void add(Pair num, Pair s) {
-    const Pair most = {std::numeric_limits<double>::max(), std::numeric_limits<double>::max()};
-    largest_ = largest_ < s ? s : largest_;
-    const PairBits finite = num <= most;  // false for infinity and NaN
-    not_finite_ |= ~finite;
-    const PairBits counts = finite & (num != 0);
-    const Pair ratio = num / s;
-    worst_ = (counts & (worst_ < ratio)) ? ratio : worst_;
-    smallest_ = (counts & (s < smallest_)) ? s : smallest_;
-  }
-  RatioScan lane(int l) const {
-    return {largest_[l], worst_[l], smallest_[l], not_finite_[l] == 0};
-  }
-
- private:
-  Pair largest_ = {0, 0}, worst_ = {0, 0}, smallest_ = {kInfinity, kInfinity};
-  PairBits not_finite_ = {0, 0};
-};
-
 // Columns 0 .. 2P of a block (column c at offset c * n) in one pass over A:
 // each entry is read once for the 2P columns, whose sums stay in registers,
-// each lane's sums those of gather for its column. The residuals are kept,
-// the denominators not.
+// each lane's sums those of gather for its column. The ratios are taken
+// afterwards, a column at a time (taken here, lane by lane, they cost more
+// than the sums).
 template <int P>
 void gather_group(std::size_t n, const RowOrder& rows, const double* values, const double* x,
-                  const double* b, double* r, PairScan* scans) {
+                  const double* b, double* r, double* scale) {
   for (std::size_t i = 0; i < n; ++i) {
     Pair acc[P], s[P];
+#pragma GCC unroll 4
     for (int p = 0; p < P; ++p) {
       acc[p] = Pair{b[2 * p * n + i], b[(2 * p + 1) * n + i]};
       s[p] = pair_abs(acc[p]);
@@ -160,17 +144,27 @@ void gather_group(std::size_t n, const RowOrder& rows, const double* values, con
       const auto k = static_cast<std::size_t>(rows.column[static_cast<std::size_t>(j)]);
       const double a = values[rows.at[static_cast<std::size_t>(j)]];
       const Pair a2 = {a, a}, size2 = pair_abs(a2);
+#pragma GCC unroll 4
       for (int p = 0; p < P; ++p) {
         const Pair xk = {x[2 * p * n + k], x[(2 * p + 1) * n + k]};
         acc[p] -= a2 * xk;
         s[p] += size2 * pair_abs(xk);
       }
     }
-    for (int p = 0; p < P; ++p) {
-      r[2 * p * n + i] = acc[p][0], r[(2 * p + 1) * n + i] = acc[p][1];
-      scans[p].add(pair_abs(acc[p]), s[p]);
-    }
+#pragma GCC unroll 4
+    for (int p = 0; p < P; ++p)
+      for (int lane = 0; lane < 2; ++lane) {
+        const std::size_t at = (2 * p + lane) * n + i;
+        r[at] = acc[p][lane], scale[at] = s[p][lane];
+      }
   }
+}
+
+// omega of one column from its stored residual and denominators.
+double scanned(const double* r, const double* scale, std::size_t n) {
+  RatioScan scan;
+  for (std::size_t i = 0; i < n; ++i) scan.add(std::abs(r[i]), scale[i]);
+  return scan.omega(r, scale, n);
 }
 
 }  // namespace
@@ -206,9 +200,7 @@ double backward_error(const CscPattern& pattern, const RowOrder& rows, const T* 
   if (transposed)  // row i of A^T is column i of A
     return gather(n, pattern.col_ptr.data(), pattern.row_index.data(),
                   [values](int j) { return values[j]; }, x_magnitude, x, b, out.r.data(), out.scale.data());
-  return gather(n, rows.start.data(), rows.column.data(),
-                [values, at = rows.at.data()](int j) { return values[at[j]]; }, x_magnitude, x, b,
-                out.r.data(), out.scale.data());
+  return gather_plain(n, rows, values, x_magnitude, x, b, out.r.data(), out.scale.data());
 }
 
 template double backward_error(const CscPattern&, const RowOrder&, const double*, const double*,
@@ -218,31 +210,20 @@ template double backward_error(const CscPattern&, const RowOrder&, const std::co
                                Residual<std::complex<double>>&);
 
 void backward_errors(const CscPattern& pattern, const RowOrder& rows, const double* values,
-                     const double* x, const double* b, int count, double* r, double* omega,
-                     Residual<double>& scratch) {
+                     const double* x, const double* b, int count, double* r, double* scale,
+                     double* omega) {
   const auto n = static_cast<std::size_t>(pattern.n);
   auto at = [&](int c) { return n * static_cast<std::size_t>(c); };
-  auto alone = [&](int c) {
-    omega[c] = backward_error(pattern, rows, values, x + at(c), b + at(c), false, scratch);
-    std::copy(scratch.r.begin(), scratch.r.end(), r + at(c));
-  };
-  // One or two pairs of columns from c0 on (the sums of four columns fit the
-  // registers). A column with a row under the floor needs its rows again: it
-  // is measured alone, the same bits.
-  auto group = [&](int c0, int pairs) {
-    PairScan scans[2];
-    if (pairs == 2) gather_group<2>(n, rows, values, x + at(c0), b + at(c0), r + at(c0), scans);
-    else gather_group<1>(n, rows, values, x + at(c0), b + at(c0), r + at(c0), scans);
-    for (int c = 0; c < 2 * pairs; ++c) {
-      const RatioScan scan = scans[c / 2].lane(c % 2);
-      if (scan.below_floor()) alone(c0 + c);
-      else omega[c0 + c] = scan.settled();
-    }
-  };
   int c0 = 0;
-  for (; c0 + 4 <= count; c0 += 4) group(c0, 2);
-  if (c0 + 2 <= count) group(c0, 1), c0 += 2;
-  if (c0 < count) alone(c0);
+  for (; c0 + 4 <= count; c0 += 4)  // four columns' sums fit the registers; eight measured slower
+    gather_group<2>(n, rows, values, x + at(c0), b + at(c0), r + at(c0), scale + at(c0));
+  if (c0 + 2 <= count) gather_group<1>(n, rows, values, x + at(c0), b + at(c0), r + at(c0), scale + at(c0)), c0 += 2;
+  for (int c = 0; c < c0; ++c) omega[c] = scanned(r + at(c), scale + at(c), n);
+  if (c0 < count) {
+    const double* last = x + at(c0);
+    omega[c0] = gather_plain(n, rows, values, [last](std::size_t k) { return std::abs(last[k]); }, last,
+                             b + at(c0), r + at(c0), scale + at(c0));
+  }
 }
 
 }  // namespace tacet

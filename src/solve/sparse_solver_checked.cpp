@@ -179,9 +179,9 @@ class CheckedRealLu final : public RealSparseLu {
     backend_->solve(rhs, count);
     // Every column measured in one pass over A; a poor one refined alone from
     // its residual there (the bits a measurement of it alone gives).
-    r_.resize(size), omega_.resize(static_cast<std::size_t>(count));
+    r_.resize(size), scale_.resize(size), omega_.resize(static_cast<std::size_t>(count));
     backward_errors(*pattern_.csc, *pattern_.rows, values_, rhs, b_.data(), count, r_.data(),
-                    omega_.data(), work_.now);
+                    scale_.data(), omega_.data());
     auto with_factors = [&](double* v) { backend_->solve(v, 1); };
     for (int c = 0; c < count; ++c) {
       double omega = omega_[static_cast<std::size_t>(c)];
@@ -197,7 +197,7 @@ class CheckedRealLu final : public RealSparseLu {
   std::unique_ptr<RealSparseLu> backend_;
   CheckedPattern pattern_;
   const double* values_ = nullptr;
-  std::vector<double> b_, r_, omega_;
+  std::vector<double> b_, r_, scale_, omega_;
   RefineBuffers<double> work_;
 };
 

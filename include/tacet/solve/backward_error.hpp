@@ -61,13 +61,12 @@ template <typename T>
 double backward_error(const CscPattern& pattern, const RowOrder& rows, const T* values, const T* x,
                       const T* b, bool transposed, Residual<T>& out);
 
-/// omega[c] and column c of r = b - A x for `count` right-hand sides of a
-/// real A x = b, x, b and r held column after column (n * count each): exactly
-/// what backward_error gives for column c alone, with the matrix read once for
-/// a group of columns instead of once per column. `scratch` serves a column
-/// whose rows must be read again (one under the floor).
+/// omega[c] and column c of r and scale for `count` right-hand sides of a real
+/// A x = b, x, b, r and scale held column after column (n * count each):
+/// exactly what backward_error gives for column c alone, with the matrix read
+/// once for a group of columns instead of once per column.
 void backward_errors(const CscPattern& pattern, const RowOrder& rows, const double* values,
-                     const double* x, const double* b, int count, double* r, double* omega,
-                     Residual<double>& scratch);
+                     const double* x, const double* b, int count, double* r, double* scale,
+                     double* omega);
 
 }  // namespace tacet
