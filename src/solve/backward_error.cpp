@@ -37,6 +37,14 @@ inline void subtract_product(std::complex<double>& acc, std::complex<double> a,
   acc = {acc.real() - re, acc.imag() - im};
 }
 
+// x[k], a complex one read as two doubles at 2k (an index doubled costs one
+// instruction less than one scaled by 16).
+inline double element(const double* x, std::size_t k) { return x[k]; }
+inline std::complex<double> element(const std::complex<double>* x, std::size_t k) {
+  const auto* d = reinterpret_cast<const double*>(x);
+  return {d[2 * k], d[2 * k + 1]};
+}
+
 // The rows' ratios as they are formed, for one right-hand side.
 class RatioScan {
  public:
@@ -87,7 +95,7 @@ double gather(std::size_t n, const int* start, const int* from, ValueAt value_at
     for (int j = start[i]; j < start[i + 1]; ++j) {
       const auto k = static_cast<std::size_t>(from[j]);
       const T a = value_at(j);
-      subtract_product(acc, a, x[k]);
+      subtract_product(acc, a, element(x, k));
       s += magnitude(a) * x_magnitude(k);
     }
     r[i] = acc, scale[i] = s;
@@ -101,8 +109,8 @@ template <typename T, typename XMagnitude>
 double gather_plain(std::size_t n, const RowOrder& rows, const T* values, XMagnitude x_magnitude,
                     const T* x, const T* b, T* r, double* scale) {
   return gather(n, rows.start.data(), rows.column.data(),
-                [values, at = rows.at.data()](int j) { return values[at[j]]; }, x_magnitude, x, b, r,
-                scale);
+                [values, at = rows.at.data()](int j) { return element(values, static_cast<std::size_t>(at[j])); },
+                x_magnitude, x, b, r, scale);
 }
 
 // |x_k| for the pass: a real magnitude is one instruction, a complex one three,
