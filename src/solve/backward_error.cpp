@@ -223,6 +223,7 @@ void backward_errors(const CscPattern& pattern, const RowOrder& rows, const doub
   const auto n = static_cast<std::size_t>(pattern.n);
   auto at = [&](int c) { return n * static_cast<std::size_t>(c); };
   int c0 = 0;
+  static_assert(kBlockColumns == 4, "two pairs a pass");
   for (; c0 + 4 <= count; c0 += 4)  // four columns' sums fit the registers; eight measured slower
     gather_group<2>(n, rows, values, x + at(c0), b + at(c0), r + at(c0), scale + at(c0));
   if (c0 + 2 <= count) gather_group<1>(n, rows, values, x + at(c0), b + at(c0), r + at(c0), scale + at(c0)), c0 += 2;

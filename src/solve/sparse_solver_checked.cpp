@@ -18,6 +18,7 @@
 
 #include <fmt/format.h>
 
+#include <algorithm>
 #include <cmath>
 #include <complex>
 #include <memory>
@@ -177,19 +178,24 @@ class CheckedRealLu final : public RealSparseLu {
     const std::size_t size = n * static_cast<std::size_t>(count);
     b_.assign(rhs, rhs + size);
     backend_->solve(rhs, count);
-    // Every column measured in one pass over A; a poor one refined alone from
-    // its residual there (the bits a measurement of it alone gives).
-    r_.resize(size), scale_.resize(size), omega_.resize(static_cast<std::size_t>(count));
-    backward_errors(*pattern_.csc, *pattern_.rows, values_, rhs, b_.data(), count, r_.data(),
-                    scale_.data(), omega_.data());
+    // The columns measured kBlockColumns to a pass over A; a poor one refined
+    // alone from its residual there (the bits a measurement of it alone
+    // gives), in column order, before the next group.
+    r_.resize(n * kBlockColumns), scale_.resize(r_.size()), omega_.resize(kBlockColumns);
     auto with_factors = [&](double* v) { backend_->solve(v, 1); };
-    for (int c = 0; c < count; ++c) {
-      double omega = omega_[static_cast<std::size_t>(c)];
-      if (omega <= kGood) continue;
-      const std::size_t at = n * static_cast<std::size_t>(c);
-      omega = refine(pattern_, values_, b_.data() + at, rhs + at, false, with_factors, work_,
-                     r_.data() + at, omega);
-      if (omega > kTrusted) throw_untrusted(0.0, omega, backend_->condition_estimate());
+    for (int c0 = 0; c0 < count; c0 += kBlockColumns) {
+      const int width = std::min(kBlockColumns, count - c0);
+      const std::size_t first = n * static_cast<std::size_t>(c0);
+      backward_errors(*pattern_.csc, *pattern_.rows, values_, rhs + first, b_.data() + first, width,
+                      r_.data(), scale_.data(), omega_.data());
+      for (int c = 0; c < width; ++c) {
+        double omega = omega_[static_cast<std::size_t>(c)];
+        if (omega <= kGood) continue;
+        const std::size_t at = first + n * static_cast<std::size_t>(c);
+        omega = refine(pattern_, values_, b_.data() + at, rhs + at, false, with_factors, work_,
+                       r_.data() + n * static_cast<std::size_t>(c), omega);
+        if (omega > kTrusted) throw_untrusted(0.0, omega, backend_->condition_estimate());
+      }
     }
   }
 

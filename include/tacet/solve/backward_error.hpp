@@ -61,6 +61,9 @@ template <typename T>
 double backward_error(const CscPattern& pattern, const RowOrder& rows, const T* values, const T* x,
                       const T* b, bool transposed, Residual<T>& out);
 
+/// How many columns of a block backward_errors sums in one pass over A.
+constexpr int kBlockColumns = 4;
+
 /// omega[c] and column c of r and scale for `count` right-hand sides of a real
 /// A x = b, x, b, r and scale held column after column (n * count each):
 /// exactly what backward_error gives for column c alone, with the matrix read
