@@ -8,7 +8,6 @@
 
 #include "is_close.hpp"
 #include "tacet/common/errors.hpp"
-#include "tacet/solve/backward_error.hpp"
 
 using namespace tacet;
 using namespace tacet::testing;
@@ -193,23 +192,6 @@ class InexactLu final : public SparseLu {
 };
 
 }  // namespace
-
-TEST_CASE("the backward error is the Oettli-Prager ratio of residual to |A||x| + |b|",
-          "[solver][check]") {
-  // A = [2 1; 1 3], b = (3, 4), x = (1, 1.001): r = b - A x = (-0.001, -0.003),
-  // |A||x| + |b| = (3.001 + 3, 4.003 + 4); omega = max(0.001/6.001, 0.003/8.003)
-  // (Oettli & Prager 1964; Higham 2002, Thm 7.3), worked by hand.
-  Eigen::MatrixXi mask = Eigen::MatrixXi::Ones(2, 2);
-  Eigen::MatrixXcd dense(2, 2);
-  dense << 2.0, 1.0, 1.0, 3.0;
-  const SmallSystem system = from_dense(dense, mask);
-  const std::vector<cplx> b{3.0, 4.0}, x{1.0, 1.001};
-  std::vector<cplx> r;
-  std::vector<double> scale;
-  residual(system.pattern, system.values.data(), x.data(), b.data(), false, r, scale);
-  CHECK_THAT(r[1], IsClose(-0.003, 1e-12));
-  CHECK(componentwise_error(r, scale) == Approx(0.003 / 8.003).epsilon(1e-12));
-}
 
 TEST_CASE("iterative refinement recovers full accuracy from factors good to six digits",
           "[solver][check]") {

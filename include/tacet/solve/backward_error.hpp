@@ -10,10 +10,15 @@
 // (a 1 Tohm resistor's row beside a voltage source's), where a norm-wise
 // residual would only see the largest rows. A row whose denominator is zero
 // (every term zero) counts as exact when its residual is zero too.
+//
+// Every LU solve is checked with it, so it is measured in one pass that forms
+// each row's residual and denominator in registers and takes the ratio as the
+// row ends. The sums are those of the plain column-by-column loop, term for
+// term in the same order, so omega and the residual (which refinement solves
+// with) are the same bits as that loop gives.
 
 #include <cmath>
 #include <complex>
-#include <limits>
 #include <vector>
 
 #include "tacet/solve/sparse_solver.hpp"
@@ -25,46 +30,46 @@ namespace tacet {
 inline double magnitude(double x) { return std::abs(x); }
 inline double magnitude(std::complex<double> z) { return std::abs(z.real()) + std::abs(z.imag()); }
 
-/// r = b - A x (or b - A^T x when `transposed`) and the Oettli-Prager
-/// denominator |A||x| + |b|, for a matrix in `pattern`'s CSC order.
-template <typename T>
-void residual(const CscPattern& pattern, const T* values, const T* x, const T* b, bool transposed,
-              std::vector<T>& r, std::vector<double>& scale) {
-  const auto n = static_cast<std::size_t>(pattern.n);
-  r.assign(b, b + n);
-  scale.resize(n);
-  for (std::size_t i = 0; i < n; ++i) scale[i] = magnitude(b[i]);
-  for (std::size_t col = 0; col < n; ++col)
-    for (int k = pattern.col_ptr[col]; k < pattern.col_ptr[col + 1]; ++k) {
-      const auto row = static_cast<std::size_t>(pattern.row_index[static_cast<std::size_t>(k)]);
-      const T a = values[k];
-      // A(row, col) x(col) feeds row `row`; in A^T it is x(row) feeding `col`.
-      const std::size_t into = transposed ? col : row, from = transposed ? row : col;
-      r[into] -= a * x[from];
-      scale[into] += magnitude(a) * magnitude(x[from]);
-    }
-}
+/// A row whose denominator is more than 200 decades below the largest row's (a
+/// long RC ladder far above its corner attenuates by 1e-300 and its last node
+/// voltages underflow) has no digits left to be wrong in: its ratio is taken
+/// against kNegligibleRow times the largest denominator instead of its own.
+constexpr double kNegligibleRow = 1e-200;
 
-/// The largest ratio |r_i| / scale_i; infinity when some r_i is not finite.
-/// A row more than 200 decades below the largest (a long RC ladder far above
-/// its corner attenuates by 1e-300 and its last node voltages underflow) has
-/// no digits left to be wrong in: its ratio is taken against that floor,
-/// kNegligibleRow times the largest scale, instead of against its own.
+/// A CSC pattern's entries row by row: row i's are start[i] .. start[i + 1],
+/// each with its column and its position in the CSC values, in column order.
+/// Built once per pattern; the plain residual reads A through it.
+struct RowOrder {
+  std::vector<int> start, column, at;
+};
+RowOrder row_order(const CscPattern& pattern);
+
+/// What one measurement leaves: r = b - op(A) x and the denominator
+/// |op(A)| |x| + |b| row by row (refinement solves with r); `x_magnitude` is
+/// scratch.
 template <typename T>
-double componentwise_error(const std::vector<T>& r, const std::vector<double>& scale) {
-  constexpr double kNegligibleRow = 1e-200;
-  double largest = 0;
-  for (const double s : scale) largest = std::max(largest, s);
-  const double floor = kNegligibleRow * largest;
-  double worst = 0;
-  for (std::size_t i = 0; i < r.size(); ++i) {
-    const double num = magnitude(r[i]);
-    if (!std::isfinite(num)) return std::numeric_limits<double>::infinity();
-    if (num == 0) continue;
-    const double against = std::max(scale[i], floor);
-    worst = std::max(worst, against > 0 ? num / against : std::numeric_limits<double>::infinity());
-  }
-  return worst;
-}
+struct Residual {
+  std::vector<T> r;
+  std::vector<double> scale;
+  std::vector<double> x_magnitude;
+};
+
+/// omega of x as a solution of A x = b (A^T x = b when `transposed`), A in
+/// `pattern`'s CSC order and `rows` its row order; infinity when some residual
+/// is not finite. Fills `out`.
+template <typename T>
+double backward_error(const CscPattern& pattern, const RowOrder& rows, const T* values, const T* x,
+                      const T* b, bool transposed, Residual<T>& out);
+
+/// How many columns of a block backward_errors sums in one pass over A.
+constexpr int kBlockColumns = 4;
+
+/// omega[c] and column c of r and scale for `count` right-hand sides of a real
+/// A x = b, x, b, r and scale held column after column (n * count each):
+/// exactly what backward_error gives for column c alone, with the matrix read
+/// once for a group of columns instead of once per column.
+void backward_errors(const CscPattern& pattern, const RowOrder& rows, const double* values,
+                     const double* x, const double* b, int count, double* r, double* scale,
+                     double* omega);
 
 }  // namespace tacet
