@@ -134,10 +134,13 @@ void signal_peaks(const MnaSystem& mna, SparseLu& lu, const std::vector<LevelDri
 // sequence one thread would.
 class PeakSweep {
  public:
-  PeakSweep(FrequencyResponse& response, double first, int threads, std::size_t nodes, std::size_t branches)
+  PeakSweep(FrequencyResponse& response, const std::vector<double>& frequencies, int threads, std::size_t nodes,
+            std::size_t branches)
       : response_(response) {
-    response.anchor_at(first);  // the pivots every worker reuses (response.hpp)
-    const auto workers = static_cast<std::size_t>(std::max(1, resolve_threads(threads)));
+    response.anchor_at(frequencies.front());  // the pivots every worker reuses (response.hpp)
+    // No more workers than frequencies: each worker is a whole numeric factorisation.
+    const auto workers = std::max<std::size_t>(
+        1, std::min(static_cast<std::size_t>(resolve_threads(threads)), frequencies.size()));
     for (std::size_t w = 1; w < workers; ++w) own_.push_back(response.worker());
     const std::size_t slots = workers == 1 ? 1 : workers * kPerWorker;  // one thread: one at a time
     x_.assign(workers, Vector(static_cast<std::size_t>(response.mna().size())));
@@ -310,7 +313,7 @@ static HeadroomResult headroom_of(const Circuit& circuit, const BiasResult& bias
   branches.reserve(amp_elements.size());
   for (const std::size_t i : amp_elements) branches.push_back(mna.branch_unknown(i));
   const std::vector<double> frequencies = grid.frequencies();
-  PeakSweep sweep(response, frequencies.front(), options.threads, circuit.node_count(), branches.size());
+  PeakSweep sweep(response, frequencies, options.threads, circuit.node_count(), branches.size());
   sweep.run(frequencies, drives, branches, [&](double f, const std::vector<double>& peaks,
                                                 const std::vector<double>& currents) {
     for (std::size_t k = 0; k < amps.size(); ++k) {
