@@ -14,6 +14,7 @@
 #include <numeric>
 #include <optional>
 
+#include "tacet/analysis/dc_cascade.hpp"
 #include "tacet/common/errors.hpp"
 #include "tacet/common/format.hpp"
 #include "tacet/common/parallel.hpp"
@@ -168,15 +169,16 @@ class PinNeighbours {
 // op amp's input pins, the one with the largest voltage across it in that
 // error's solution `x`. A pin that is an op-amp output (a follower's - input)
 // is left out: that op amp supplies the current, not the resistors on it.
-const std::string* busiest_resistor(const Circuit& circuit, const MnaSystem& mna, const PinNeighbours& pins,
-                                    const double* x, const Element& opamp) {
+template <typename Voltage>
+const std::string* busiest_resistor(const Circuit& circuit, const PinNeighbours& pins, Voltage&& voltage,
+                                    const Element& opamp) {
   const std::string* name = nullptr;
   double largest = 0;
   for (const int pin : {opamp.nodes[0], opamp.nodes[1]}) {
     if (pin == 0 || pins.driven(pin)) continue;
     pins.for_each_resistor(pin, [&](std::size_t i) {
       const Element& e = circuit.elements[i];
-      const double across = std::abs(at_node(mna, x, e.nodes[0]) - at_node(mna, x, e.nodes[1]));
+      const double across = std::abs(voltage(e.nodes[0]) - voltage(e.nodes[1]));
       if (across > largest) largest = across, name = &e.name;
     });
   }
@@ -292,7 +294,8 @@ FoldStop fold_errors(const Circuit& circuit, const MnaSystem& mna, const PinNeig
       if (!through) {
         through = error.kind == DcErrorKind::vos
                       ? &none
-                      : busiest_resistor(circuit, mna, pins, x, circuit.elements[error.element]);
+                      : busiest_resistor(circuit, pins, [&](int node) { return at_node(mna, x, node); },
+                                         circuit.elements[error.element]);
         if (!through) through = &none;
       }
       keep_if_large(amp.largest, kept, circuit.elements[error.element].name, error.kind, std::abs(sensitivity),
@@ -395,7 +398,117 @@ struct BiasScratch {
   std::vector<std::exception_ptr> failed;
   std::vector<ErrorColumn> errors;  // a wave's, in order
   std::vector<FoldStop> stops;      // per range of a wave's fold
+  // The cascade's path (dc_cascade.hpp): its plan, kept while the errors'
+  // rows stay the same, the errors in its terms, and a node's largest shares.
+  DcCascade cascade;
+  bool cascade_planned = false;
+  std::vector<CascadeError> cascade_errors;
+  std::vector<DcError> cascade_meta;
+  std::vector<CascadeShare> shares;
+  std::size_t solved_error = SIZE_MAX;  // which error `solved` holds
+  Vector solved;
 };
+
+// The op amps' DC errors as sums of unit right-hand sides, in the order the
+// per-error path solves them: vos (+1 in the gain row), ios = (P - M)/2,
+// ib = P + M and ib_max = P + M, where P (M) is 1 A drawn from the + (-) pin.
+void cascade_errors(const Circuit& circuit, const MnaSystem& mna, const std::vector<OpAmpErrors>& amps,
+                    std::vector<CascadeError>& out, std::vector<DcError>& meta) {
+  out.clear();
+  meta.clear();
+  for (const OpAmpErrors& amp : amps) {
+    const auto& pins = circuit.elements[amp.element].nodes;
+    const int plus = mna.node_unknown(pins[0]), minus = mna.node_unknown(pins[1]);
+    auto add = [&](DcErrorKind kind, double limit, double at_plus, double at_minus) {
+      CascadeError e;
+      e.limit = limit;
+      e.in_band = kind != DcErrorKind::ib;
+      auto part = [&](int row, double coefficient) {
+        if (row < 0 || coefficient == 0) return;
+        e.parts[static_cast<std::size_t>(e.part_count++)] = {row, coefficient};
+      };
+      if (kind == DcErrorKind::vos) {
+        part(mna.opamp_gain_row(amp.element), 1.0);
+      } else if (plus == minus) {
+        part(plus, at_plus + at_minus);
+      } else {
+        part(plus, at_plus);
+        part(minus, at_minus);
+      }
+      out.push_back(e);
+      meta.push_back({amp.element, kind, limit});
+    };
+    if (amp.vos != 0) add(DcErrorKind::vos, amp.vos, 0, 0);
+    if (!amp.pins()) continue;
+    if (amp.ios != 0) add(DcErrorKind::ios, amp.ios, -0.5, 0.5);
+    if (amp.ib != 0) add(DcErrorKind::ib, amp.ib, -1.0, -1.0);
+    if (amp.ib_excess != 0) add(DcErrorKind::ib_max, amp.ib_excess, -1.0, -1.0);
+  }
+}
+
+// One error's whole solution, for the rare unknown the cascade would walk
+// too far to reach: solved once, kept while the same error is asked for.
+const double* solved_error(const DcSystem& dc, BiasScratch& work, std::size_t error) {
+  if (work.solved_error != error) {
+    const CascadeError& e = work.cascade_errors[error];
+    work.solved.assign(dc.size(), 0.0);
+    for (int p = 0; p < e.part_count; ++p)
+      work.solved[static_cast<std::size_t>(e.parts[static_cast<std::size_t>(p)].row)] += e.parts[static_cast<std::size_t>(p)].coefficient;
+    dc.solve(work.solved, 1);
+    work.solved_error = error;
+  }
+  return work.solved.data();
+}
+
+// Every DC error folded into the bands and the op amps' largest contributors
+// by the cascade's path, when the circuit is one: false leaves both as they
+// were, for the per-error path.
+bool fold_cascade(const DcSystem& dc, BiasResult& result, BiasScratch& work) {
+  const Circuit& circuit = dc.circuit();
+  const MnaSystem& mna = dc.mna();
+  opamp_errors(circuit, work.amps);
+  cascade_errors(circuit, mna, work.amps, work.cascade_errors, work.cascade_meta);
+  if (!work.cascade_planned || !work.cascade.planned_for(work.cascade_errors)) {
+    work.cascade.plan(mna, work.cascade_errors);
+    work.cascade_planned = true;
+  }
+  DcCascade& cascade = work.cascade;
+  if (!cascade.usable() || !cascade.run(dc.values(), work.cascade_errors)) return false;
+  work.solved_error = SIZE_MAX;
+  Bands& bands = work.bands;
+  for (std::size_t k = 0; k < bands.worst.size(); ++k) {
+    bands.worst[k] = cascade.worst(static_cast<int>(k));
+    bands.squares[k] = cascade.squares(static_cast<int>(k));
+  }
+  static const std::string none;
+  for (std::size_t a = 0; a < result.opamps.size(); ++a) {
+    cascade.largest(bands.outputs[a], kLargestShown, work.shares);
+    for (const CascadeShare& share : work.shares) {
+      const DcError& error = work.cascade_meta[share.error];
+      const double s = share.sensitivity;
+      const std::string* through = &none;
+      if (error.kind != DcErrorKind::vos) {
+        auto voltage = [&](int node) {
+          const auto terms = mna.voltage_terms(node);
+          double v = 0;
+          for (int t = 0; t < terms.count; ++t) {
+            const int unknown = terms.term[static_cast<std::size_t>(t)].unknown;
+            double x = 0;
+            if (!cascade.value(share.error, unknown, x)) x = solved_error(dc, work, share.error)[unknown];
+            v += terms.term[static_cast<std::size_t>(t)].coefficient * x;
+          }
+          return v;
+        };
+        through = busiest_resistor(circuit, work.pins, voltage, circuit.elements[error.element]);
+        if (!through) through = &none;
+      }
+      keep_if_large(result.opamps[a].largest, bands.kept[a], circuit.elements[error.element].name, error.kind,
+                    std::abs(s), error.kind == DcErrorKind::ib ? s * error.limit : std::abs(s) * error.limit,
+                    *through);
+    }
+  }
+  return true;
+}
 
 // Worker w's DcSystem at the values of `dc`: built the first time, restamped
 // when `dc` has been restamped since.
@@ -557,7 +670,9 @@ std::size_t DcSystem::size() const { return static_cast<std::size_t>(mna_->size(
 void DcSystem::solve(Vector& block, int count) const { lu_->solve(block.data(), count); }
 
 BiasResult run_bias(const Circuit& circuit, const BiasOptions& options) {
-  return run_bias(DcSystem(circuit, options.solver), options.threads);
+  BiasResult result;
+  run_bias(DcSystem(circuit, options.solver), options.threads, result, options.cascade);
+  return result;
 }
 
 BiasResult run_bias(const DcSystem& dc, int threads) {
@@ -607,7 +722,7 @@ void reset_bands(const Circuit& circuit, const MnaSystem& mna, const BiasResult&
 
 }  // namespace
 
-void run_bias(const DcSystem& dc, int threads, BiasResult& result) {
+void run_bias(const DcSystem& dc, int threads, BiasResult& result, bool cascade) {
   const Circuit& circuit = dc.circuit();
   const MnaSystem& mna = dc.mna();
   BiasScratch& work = dc.scratch().bias;
@@ -618,7 +733,8 @@ void run_bias(const DcSystem& dc, int threads, BiasResult& result) {
 
   Bands& bands = work.bands;
   reset_bands(circuit, mna, result, bands);
-  fold_dc_errors(dc, threads, result, work);
+  result.cascade = cascade && fold_cascade(dc, result, work);
+  if (!result.cascade) fold_dc_errors(dc, threads, result, work);
   for (std::size_t k = 0; k < result.nodes.size(); ++k) {
     result.nodes[k].worst = bands.worst[k];
     result.nodes[k].rss = std::sqrt(bands.squares[k]);

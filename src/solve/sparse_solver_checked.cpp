@@ -31,9 +31,9 @@
 namespace tacet {
 namespace {
 
-constexpr double kGood = 1e-13;     // a few hundred ulps: nothing to do
-constexpr double kTrusted = 1e-9;   // nine digits of the system itself
-constexpr int kRefinements = 3;
+constexpr double kGood = kGoodBackwardError;
+constexpr double kTrusted = kTrustedBackwardError;
+constexpr int kRefinements = kRefinementSteps;
 
 [[noreturn]] void throw_untrusted(double hz, double omega, double condition) {
   const std::string estimate =

@@ -47,6 +47,9 @@ struct BiasOptions {
   /// Workers for the DC errors' solves and sums (0: one per core); the
   /// result is the same to the bit for any number.
   int threads = 1;
+  /// Take the cascade's linear-time path (dc_cascade.hpp) where the circuit
+  /// is one; false: one solve per error always (the tests compare the two).
+  bool cascade = true;
 };
 
 /// Which DC error of an op amp a contribution comes from.
@@ -104,6 +107,9 @@ struct BiasResult {
   std::vector<NodeBias> nodes;    ///< node id k at index k - 1 (gnd left out)
   std::vector<OpAmpBias> opamps;  ///< in the order of the netlist
   std::vector<std::string> warnings;  ///< for people: saturation, unchecked rails
+  /// The bands came from the cascade's path (dc_cascade.hpp), not from one
+  /// solve per error: the same figures to rounding, in linear time.
+  bool cascade = false;
 
   /// The bias of node id `node`; gnd is 0 V with no band.
   const NodeBias& node(int node) const;
@@ -139,6 +145,8 @@ class DcSystem {
   const MnaSystem& mna() const { return *mna_; }
   std::size_t size() const;
   SolverKind kind() const { return kind_; }
+  /// The factored matrix's values in the pattern's CSC order.
+  const double* values() const { return values_.data(); }
   /// `count` right-hand sides of size() values each, solved in place.
   void solve(std::vector<double>& block, int count) const;
   /// How many times restamp() has run: a copy factored at an earlier count
@@ -168,6 +176,7 @@ BiasResult run_bias(const DcSystem& dc, int threads = 1);
 /// and a system that served a run before allocates nothing but the text of
 /// warnings (and a contributor's name longer than the string whose storage
 /// it takes over).
-void run_bias(const DcSystem& dc, int threads, BiasResult& result);
+/// `cascade` as BiasOptions::cascade.
+void run_bias(const DcSystem& dc, int threads, BiasResult& result, bool cascade = true);
 
 }  // namespace tacet

@@ -36,6 +36,15 @@ inline double magnitude(std::complex<double> z) { return std::abs(z.real()) + st
 /// against kNegligibleRow times the largest denominator instead of its own.
 constexpr double kNegligibleRow = 1e-200;
 
+/// The thresholds every solve is held to (sparse_solver_checked.cpp, and the
+/// bias cascade's dense block solves): at or under kGoodBackwardError a
+/// solution is taken as it is (a few hundred ulps); above it up to
+/// kRefinementSteps of iterative refinement; above kTrustedBackwardError
+/// after them (nine digits of the system itself) it is not trusted.
+constexpr double kGoodBackwardError = 1e-13;
+constexpr double kTrustedBackwardError = 1e-9;
+constexpr int kRefinementSteps = 3;
+
 /// A CSC pattern's entries row by row: row i's are start[i] .. start[i + 1],
 /// each with its column and its position in the CSC values, in column order.
 /// Built once per pattern; the plain residual reads A through it.
