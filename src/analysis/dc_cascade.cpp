@@ -2,13 +2,11 @@
 
 #include "tacet/analysis/dc_cascade.hpp"
 
-#include <btf.h>
-
 #include <algorithm>
 #include <cmath>
 #include <limits>
 
-#include "tacet/solve/backward_error.hpp"
+#include "tacet/solve/block_form.hpp"
 #include "tacet/solve/mna.hpp"
 
 namespace tacet {
@@ -53,58 +51,22 @@ void DcCascade::plan(const MnaSystem& mna, const std::vector<CascadeError>& erro
   usable_ = false;
   planned_ = errors;
   if (!plan_blocks(mna) || !plan_entries(errors)) return;
-  const auto most = static_cast<std::size_t>(kMostBlockUnknowns);
-  a_.resize(most * most), lu_.resize(most * most), pivot_.resize(most);
-  rhs_.resize(most), scale_.resize(most), x_.resize(most), r_.resize(most), d_.resize(most);
+  lu_.reserve(kMostBlockUnknowns);
+  rhs_.resize(static_cast<std::size_t>(kMostBlockUnknowns));
   usable_ = true;
 }
 
 // The blocks, their entries, what each reads from upstream, the unit
 // right-hand sides and what is summed; false: no cascade.
 bool DcCascade::plan_blocks(const MnaSystem& mna) {
-  const CscPattern& pattern = mna.pattern();
-  const int n = pattern.n;
-  if (n == 0) return false;
-  const auto un = static_cast<std::size_t>(n);
-
-  // Block upper triangular form: block b reads only blocks after it.
-  std::vector<int> row_of(un), col_of(un), bounds(un + 1), work(5 * un);
-  double maxtrans_work = 0;
-  int matched = 0;
-  const int count = btf_order(n, const_cast<int*>(pattern.col_ptr.data()), const_cast<int*>(pattern.row_index.data()),
-                              0.0, &maxtrans_work, row_of.data(), col_of.data(), bounds.data(), &matched, work.data());
-  if (matched < n || count <= 0) return false;
-  const auto nb = static_cast<std::size_t>(count);
+  auto form = block_form(mna.pattern());
+  if (!form) return false;
+  form_ = std::move(*form);
+  const auto un = static_cast<std::size_t>(mna.pattern().n);
+  const std::size_t nb = form_.blocks.size();
   blocks_.assign(nb, Block{});
-  col_block_.assign(un, -1), col_local_.assign(un, -1), row_block_.assign(un, -1), row_local_.assign(un, -1);
-  for (std::size_t b = 0; b < nb; ++b) {
-    blocks_[b].first = bounds[b];
-    blocks_[b].size = bounds[b + 1] - bounds[b];
-    for (int k = bounds[b]; k < bounds[b + 1]; ++k) {
-      const auto col = static_cast<std::size_t>(BTF_UNFLIP(col_of[static_cast<std::size_t>(k)]));
-      const auto row = static_cast<std::size_t>(row_of[static_cast<std::size_t>(k)]);
-      col_block_[col] = row_block_[row] = static_cast<int>(b);
-      col_local_[col] = row_local_[row] = k - bounds[b];
-    }
-  }
-
-  // The blocks' own entries, and the entries that read upstream unknowns.
-  struct Read {
-    int block, unknown, row, at;
-  };
-  std::vector<std::pair<int, DenseEntry>> dense;
-  std::vector<Read> reads;
-  for (int c = 0; c < n; ++c) {
-    const int bc = col_block_[static_cast<std::size_t>(c)];
-    for (int k = pattern.col_ptr[static_cast<std::size_t>(c)]; k < pattern.col_ptr[static_cast<std::size_t>(c) + 1]; ++k) {
-      const auto r = static_cast<std::size_t>(pattern.row_index[static_cast<std::size_t>(k)]);
-      const int br = row_block_[r];
-      if (br == bc) dense.push_back({br, {row_local_[r], col_local_[static_cast<std::size_t>(c)], k}});
-      else reads.push_back({br, c, row_local_[r], k});
-    }
-  }
-  std::sort(reads.begin(), reads.end(),
-            [](const Read& x, const Read& y) { return x.block != y.block ? x.block < y.block : x.unknown < y.unknown; });
+  for (std::size_t b = 0; b < nb; ++b) blocks_[b].first = form_.blocks[b].first, blocks_[b].size = form_.blocks[b].size;
+  const auto& reads = form_.reads;
 
   // Only the blocks a node voltage depends on are solved: the others (an op
   // amp's output current, found from two voltages and read by nobody) may
@@ -114,23 +76,18 @@ bool DcCascade::plan_blocks(const MnaSystem& mna) {
   for (std::size_t k = 0; k < node_unknowns; ++k) {
     const auto terms = mna.voltage_terms(static_cast<int>(k) + 1);
     for (int t = 0; t < terms.count; ++t)
-      needed_[static_cast<std::size_t>(col_block_[static_cast<std::size_t>(terms.term[static_cast<std::size_t>(t)].unknown)])] = true;
+      needed_[static_cast<std::size_t>(form_.col_block[static_cast<std::size_t>(terms.term[static_cast<std::size_t>(t)].unknown)])] = true;
   }
   std::vector<int> reads_begin(nb + 1, 0);
-  for (const Read& r : reads) ++reads_begin[static_cast<std::size_t>(r.block) + 1];
+  for (const BlockForm::Read& r : reads) ++reads_begin[static_cast<std::size_t>(r.block) + 1];
   for (std::size_t b = 0; b < nb; ++b) reads_begin[b + 1] += reads_begin[b];
   for (std::size_t j = 0; j < nb; ++j) {  // readers before what they read
     if (!needed_[j]) continue;
     if (blocks_[j].size > kMostBlockUnknowns) return false;
     for (int i = reads_begin[j]; i < reads_begin[j + 1]; ++i)
-      needed_[static_cast<std::size_t>(col_block_[static_cast<std::size_t>(reads[static_cast<std::size_t>(i)].unknown)])] = true;
+      needed_[static_cast<std::size_t>(form_.col_block[static_cast<std::size_t>(reads[static_cast<std::size_t>(i)].unknown)])] = true;
   }
-  std::vector<std::pair<int, DenseEntry>> kept;
-  for (const auto& d : dense)
-    if (needed_[static_cast<std::size_t>(d.first)]) kept.push_back(d);
   std::vector<int> begin;
-  dense_ = grouped(kept, nb, begin);
-  for (std::size_t b = 0; b < nb; ++b) blocks_[b].dense_begin = begin[b], blocks_[b].dense_end = begin[b + 1];
   interfaces_.clear();
   couple_.clear();
   int t_at = 0;
@@ -138,7 +95,7 @@ bool DcCascade::plan_blocks(const MnaSystem& mna) {
     Block& block = blocks_[j];
     block.interfaces_begin = static_cast<int>(interfaces_.size());
     for (int i = reads_begin[j]; needed_[j] && i < reads_begin[j + 1]; ++i) {
-      const Read& r = reads[static_cast<std::size_t>(i)];
+      const BlockForm::Read& r = reads[static_cast<std::size_t>(i)];
       if (interfaces_.size() == static_cast<std::size_t>(block.interfaces_begin) || interfaces_.back().unknown != r.unknown) {
         interfaces_.push_back({r.unknown, -1, t_at, static_cast<int>(couple_.size()), 0});
         t_at += block.size;
@@ -160,12 +117,12 @@ bool DcCascade::plan_blocks(const MnaSystem& mna) {
   for (std::size_t k = 0; k < node_unknowns; ++k) {
     const auto terms = mna.voltage_terms(static_cast<int>(k) + 1);
     if (terms.count == 0) continue;
-    const int b = col_block_[static_cast<std::size_t>(terms.term[0].unknown)];
+    const int b = form_.col_block[static_cast<std::size_t>(terms.term[0].unknown)];
     const auto first = static_cast<int>(all_terms.size());
     for (int t = 0; t < terms.count; ++t) {
       const auto& term = terms.term[static_cast<std::size_t>(t)];
-      if (col_block_[static_cast<std::size_t>(term.unknown)] != b) return false;  // a voltage across blocks
-      all_terms.push_back({col_local_[static_cast<std::size_t>(term.unknown)], term.coefficient});
+      if (form_.col_block[static_cast<std::size_t>(term.unknown)] != b) return false;  // a voltage across blocks
+      all_terms.push_back({form_.col_local[static_cast<std::size_t>(term.unknown)], term.coefficient});
     }
     wanted.push_back({b, {b, static_cast<int>(k), first, terms.count}});
   }
@@ -173,8 +130,8 @@ bool DcCascade::plan_blocks(const MnaSystem& mna) {
   for (const Interface& i : interfaces_) {
     if (raw_of[static_cast<std::size_t>(i.unknown)] >= 0) continue;
     raw_of[static_cast<std::size_t>(i.unknown)] = 0;
-    const int b = col_block_[static_cast<std::size_t>(i.unknown)];
-    all_terms.push_back({col_local_[static_cast<std::size_t>(i.unknown)], 1.0});
+    const int b = form_.col_block[static_cast<std::size_t>(i.unknown)];
+    all_terms.push_back({form_.col_local[static_cast<std::size_t>(i.unknown)], 1.0});
     wanted.push_back({b, {b, -1 - i.unknown, static_cast<int>(all_terms.size()) - 1, 1}});
   }
   const std::vector<Wanted> ordered = grouped(wanted, nb, begin);
@@ -201,14 +158,14 @@ bool DcCascade::plan_blocks(const MnaSystem& mna) {
 // in it), in error order; false: no cascade.
 bool DcCascade::plan_entries(const std::vector<CascadeError>& errors) {
   const std::size_t nb = blocks_.size();
-  unit_of_row_.assign(row_block_.size(), -1);
+  unit_of_row_.assign(form_.row_block.size(), -1);
   std::vector<std::pair<int, Unit>> units;
   for (const CascadeError& e : errors)
     for (int p = 0; p < e.part_count; ++p) {
       const auto row = static_cast<std::size_t>(e.parts[static_cast<std::size_t>(p)].row);
-      if (unit_of_row_[row] >= 0 || !needed_[static_cast<std::size_t>(row_block_[row])]) continue;
+      if (unit_of_row_[row] >= 0 || !needed_[static_cast<std::size_t>(form_.row_block[row])]) continue;
       unit_of_row_[row] = 0;
-      units.push_back({row_block_[row], {row_block_[row], static_cast<int>(row), 0}});  // .row: global until grouped
+      units.push_back({form_.row_block[row], {form_.row_block[row], static_cast<int>(row), 0}});  // .row: global until grouped
     }
   std::vector<int> begin;
   units_ = grouped(units, nb, begin);
@@ -218,7 +175,7 @@ bool DcCascade::plan_entries(const std::vector<CascadeError>& errors) {
     for (int u = begin[b]; u < begin[b + 1]; ++u) {
       Unit& unit = units_[static_cast<std::size_t>(u)];
       unit_of_row_[static_cast<std::size_t>(unit.row)] = u;
-      unit.row = row_local_[static_cast<std::size_t>(unit.row)];
+      unit.row = form_.row_local[static_cast<std::size_t>(unit.row)];
       unit.ell_at = ell_at;
       ell_at += blocks_[b].size;
     }
@@ -230,7 +187,7 @@ bool DcCascade::plan_entries(const std::vector<CascadeError>& errors) {
   error_last_block_.assign(errors.size(), -1);
   for (std::size_t e = 0; e < errors.size(); ++e)
     for (int p = 0; p < errors[e].part_count; ++p) {
-      const int b = row_block_[static_cast<std::size_t>(errors[e].parts[static_cast<std::size_t>(p)].row)];
+      const int b = form_.row_block[static_cast<std::size_t>(errors[e].parts[static_cast<std::size_t>(p)].row)];
       if (!needed_[static_cast<std::size_t>(b)]) continue;  // reaches no node
       home[e] = std::min(home[e], b);
       error_last_block_[e] = std::max(error_last_block_[e], b);
@@ -250,7 +207,7 @@ bool DcCascade::plan_entries(const std::vector<CascadeError>& errors) {
     Block& block = blocks_[j];
     seen.clear();
     for (int i = block.interfaces_begin; i < block.interfaces_end; ++i) {
-      const Block& up = blocks_[static_cast<std::size_t>(col_block_[static_cast<std::size_t>(interfaces_[static_cast<std::size_t>(i)].unknown)])];
+      const Block& up = blocks_[static_cast<std::size_t>(form_.col_block[static_cast<std::size_t>(interfaces_[static_cast<std::size_t>(i)].unknown)])];
       if (up.sums) {
         if (block.primary >= 0) return false;  // two interfaces carry sums: no cascade
         block.primary = i;
@@ -301,102 +258,8 @@ bool DcCascade::run(const double* values, const std::vector<CascadeError>& error
   if (!usable_) return false;
   planned_ = errors;  // the same rows; the limits of this run
   for (std::size_t j = blocks_.size(); j-- > 0;)
-    if (needed_[j] && !solve_block(blocks_[j], values)) return false;
+    if (needed_[j] && !solve_block(j, values)) return false;
   return true;
-}
-
-// Rows scaled to a largest entry of 1, then threshold partial pivoting that
-// keeps the diagonal while it is at least kDiagonalPreference of the
-// column's largest (the rule KLU applies, with the same 1e-3): the blocks'
-// diagonals are BTF's matching, so the elimination stays in the order of the
-// circuit's structure, and an unknown no right-hand side reaches stays an
-// exact zero instead of picking up rounding from the rows that carry it
-// (which the componentwise check would rightly refuse). False: a row or a
-// pivot is zero (the per-error path then reports the singular matrix).
-constexpr double kDiagonalPreference = 1e-3;
-
-static bool factor_dense(int n, double* lu, int* pivot, double* scale) {
-  for (int i = 0; i < n; ++i) {
-    double largest = 0;
-    for (int c = 0; c < n; ++c) largest = std::max(largest, std::abs(lu[i * n + c]));
-    if (largest == 0) return false;
-    scale[i] = 1.0 / largest;
-    for (int c = 0; c < n; ++c) lu[i * n + c] *= scale[i];
-  }
-  for (int k = 0; k < n; ++k) {
-    int p = k;
-    for (int i = k + 1; i < n; ++i)
-      if (std::abs(lu[i * n + k]) > std::abs(lu[p * n + k])) p = i;
-    if (std::abs(lu[k * n + k]) >= kDiagonalPreference * std::abs(lu[p * n + k])) p = k;
-    pivot[k] = p;
-    if (lu[p * n + k] == 0) return false;
-    if (p != k)
-      for (int c = 0; c < n; ++c) std::swap(lu[k * n + c], lu[p * n + c]);
-    const double diagonal = lu[k * n + k];
-    for (int i = k + 1; i < n; ++i) {
-      const double l = lu[i * n + k] /= diagonal;
-      if (l == 0) continue;
-      for (int c = k + 1; c < n; ++c) lu[i * n + c] -= l * lu[k * n + c];
-    }
-  }
-  return true;
-}
-
-static void solve_dense(int n, const double* lu, const int* pivot, const double* scale, double* x) {
-  for (int i = 0; i < n; ++i) x[i] *= scale[i];
-  for (int k = 0; k < n; ++k)
-    if (pivot[k] != k) std::swap(x[k], x[pivot[k]]);
-  for (int i = 1; i < n; ++i)
-    for (int c = 0; c < i; ++c) x[i] -= lu[i * n + c] * x[c];
-  for (int i = n; i-- > 0;) {
-    for (int c = i + 1; c < n; ++c) x[i] -= lu[i * n + c] * x[c];
-    x[i] /= lu[i * n + i];
-  }
-}
-
-// The componentwise backward error of x for A x = b, the residual into r;
-// the same measure and floor as every sparse solve's (backward_error.hpp).
-static double measure_dense(int n, const double* a, const double* x, const double* b, double* r, double* scale) {
-  double largest = 0;
-  for (int i = 0; i < n; ++i) {
-    double residual = b[i], denominator = std::abs(b[i]);
-    for (int c = 0; c < n; ++c) {
-      residual -= a[i * n + c] * x[c];
-      denominator += std::abs(a[i * n + c]) * std::abs(x[c]);
-    }
-    r[i] = residual;
-    scale[i] = denominator;
-    largest = std::max(largest, denominator);
-  }
-  double omega = 0;
-  for (int i = 0; i < n; ++i) {
-    if (!std::isfinite(r[i])) return std::numeric_limits<double>::infinity();
-    const double denominator = std::max(scale[i], kNegligibleRow * largest);
-    if (denominator == 0) {
-      if (r[i] != 0) return std::numeric_limits<double>::infinity();
-      continue;
-    }
-    omega = std::max(omega, std::abs(r[i]) / denominator);
-  }
-  return omega;
-}
-
-// x from rhs with the block's factors, measured and refined like every
-// other solve (sparse_solver_checked.cpp); false when it cannot be trusted.
-bool DcCascade::solve_measured(int n, const double* rhs, double* x) {
-  std::copy(rhs, rhs + n, x);
-  solve_dense(n, lu_.data(), pivot_.data(), scale_.data(), x);
-  double omega = measure_dense(n, a_.data(), x, rhs, r_.data(), d_.data());
-  for (int step = 0; step < kRefinementSteps && omega > kGoodBackwardError; ++step) {
-    std::copy(r_.begin(), r_.begin() + n, x_.begin());  // the correction
-    solve_dense(n, lu_.data(), pivot_.data(), scale_.data(), x_.data());
-    for (int i = 0; i < n; ++i) x_[static_cast<std::size_t>(i)] += x[i];
-    const double next = measure_dense(n, a_.data(), x_.data(), rhs, r_.data(), d_.data());
-    if (!(next < omega)) break;  // no progress: keep the better solution
-    std::copy(x_.begin(), x_.begin() + n, x);
-    omega = next;
-  }
-  return omega <= kTrustedBackwardError;
 }
 
 void DcCascade::insert(Sums& s, std::size_t error, double sensitivity, const std::vector<CascadeError>& errors) const {
@@ -409,28 +272,28 @@ void DcCascade::insert(Sums& s, std::size_t error, double sensitivity, const std
   s.count = std::min(s.count + 1, 3);
 }
 
-bool DcCascade::solve_block(const Block& b, const double* values) {
+bool DcCascade::solve_block(std::size_t j, const double* values) {
+  const Block& b = blocks_[j];
   const int n = b.size;
-  const auto nn = static_cast<std::size_t>(n) * static_cast<std::size_t>(n);
-  std::fill(a_.begin(), a_.begin() + static_cast<std::ptrdiff_t>(nn), 0.0);
-  for (int i = b.dense_begin; i < b.dense_end; ++i) {
-    const DenseEntry& entry = dense_[static_cast<std::size_t>(i)];
-    a_[static_cast<std::size_t>(entry.row * n + entry.col)] = values[entry.at];
+  double* a = lu_.matrix(n);
+  const BlockForm::Block& own = form_.blocks[j];
+  for (int i = own.entries_begin; i < own.entries_end; ++i) {
+    const BlockForm::Entry& entry = form_.entries[static_cast<std::size_t>(i)];
+    a[entry.row * n + entry.col] = values[entry.at];
   }
-  std::copy(a_.begin(), a_.begin() + static_cast<std::ptrdiff_t>(nn), lu_.begin());
-  if (!factor_dense(n, lu_.data(), pivot_.data(), scale_.data())) return false;
+  if (!lu_.factor()) return false;
   for (int i = b.interfaces_begin; i < b.interfaces_end; ++i) {  // A_jj t = -A_ju
     const Interface& in = interfaces_[static_cast<std::size_t>(i)];
     std::fill(rhs_.begin(), rhs_.begin() + n, 0.0);
     for (int k = in.couple_begin; k < in.couple_end; ++k)
       rhs_[static_cast<std::size_t>(couple_[static_cast<std::size_t>(k)].row)] = -values[couple_[static_cast<std::size_t>(k)].at];
-    if (!solve_measured(n, rhs_.data(), t_.data() + in.t_at)) return false;
+    if (!lu_.solve(rhs_.data(), t_.data() + in.t_at)) return false;
   }
   for (int u = b.units_begin; u < b.units_end; ++u) {
     const Unit& unit = units_[static_cast<std::size_t>(u)];
     std::fill(rhs_.begin(), rhs_.begin() + n, 0.0);
     rhs_[static_cast<std::size_t>(unit.row)] = 1.0;
-    if (!solve_measured(n, rhs_.data(), ell_.data() + unit.ell_at)) return false;
+    if (!lu_.solve(rhs_.data(), ell_.data() + unit.ell_at)) return false;
   }
 
   const std::vector<CascadeError>& errors = planned_;
@@ -562,8 +425,8 @@ bool DcCascade::value(std::size_t error, int unknown, double& out) const {
     if (++steps > kMostWalked) return false;
     const auto [col, factor] = walk_.back();
     walk_.pop_back();
-    const int b = col_block_[static_cast<std::size_t>(col)];
-    const int local = col_local_[static_cast<std::size_t>(col)];
+    const int b = form_.col_block[static_cast<std::size_t>(col)];
+    const int local = form_.col_local[static_cast<std::size_t>(col)];
     out += factor * local_value(error, b, local);
     if (last <= b) continue;  // nothing of the error upstream of here
     const Block& block = blocks_[static_cast<std::size_t>(b)];

@@ -31,10 +31,10 @@
 // holding only that op amp's pin currents): their errors are all kept apart,
 // and add in with the t of each.
 //
-// Every block is solved densely (rows scaled, threshold partial pivoting that
-// keeps BTF's diagonal) and each of its solves is measured with the
-// componentwise backward error (backward_error.hpp) under the thresholds of
-// every other solve, refined when poor. Only the blocks some node voltage
+// Every block is solved densely (solve/dense_lu.hpp: rows scaled, pivots
+// kept on BTF's diagonal while they are large enough) and each of its solves
+// is measured with the componentwise backward error (backward_error.hpp)
+// under the thresholds of every other solve, refined when poor. Only the blocks some node voltage
 // depends on are solved (an op amp's output current may read what it likes).
 //
 // Stages that load each other both ways (an inverting stage on an output
@@ -51,6 +51,9 @@
 #include <array>
 #include <cstddef>
 #include <vector>
+
+#include "tacet/solve/block_form.hpp"
+#include "tacet/solve/dense_lu.hpp"
 
 namespace tacet {
 
@@ -112,12 +115,8 @@ class DcCascade {
     int interfaces_begin = 0, interfaces_end = 0;
     int primary = -1;     // the interface that carries sums; -1: none does
     bool sums = false;    // some error has joined the sums here or upstream
-    int dense_begin = 0, dense_end = 0;
     int units_begin = 0, units_end = 0, observables_begin = 0, observables_end = 0;
     int entries_begin = 0, entries_end = 0, pending = 0;
-  };
-  struct DenseEntry {
-    int row, col, at;  // local row and column, position in the values
   };
   struct CoupleEntry {
     int row, at;
@@ -152,8 +151,7 @@ class DcCascade {
 
   bool plan_blocks(const MnaSystem& mna);
   bool plan_entries(const std::vector<CascadeError>& errors);
-  bool solve_block(const Block& b, const double* values);
-  bool solve_measured(int n, const double* rhs, double* x);
+  bool solve_block(std::size_t j, const double* values);
   void insert(Sums& s, std::size_t error, double sensitivity, const std::vector<CascadeError>& errors) const;
   template <typename Visit>
   void for_apart(int observable, Visit&& visit) const;
@@ -163,10 +161,9 @@ class DcCascade {
   std::vector<CascadeError> planned_;
   std::vector<Block> blocks_;
   std::vector<Interface> interfaces_;
-  std::vector<int> col_block_, col_local_, row_block_, row_local_;  // per unknown / row
+  BlockForm form_;
   std::vector<bool> needed_;                // per block: some node voltage depends on it
   std::vector<int> node_observable_;        // per node unknown; -1: none
-  std::vector<DenseEntry> dense_;
   std::vector<CoupleEntry> couple_;
   std::vector<Unit> units_;
   std::vector<int> unit_of_row_;
@@ -179,8 +176,8 @@ class DcCascade {
   // Per run.
   std::vector<double> t_, ell_, pending_;
   std::vector<Sums> sums_;
-  std::vector<double> a_, lu_, scale_, rhs_, x_, r_, d_;
-  std::vector<int> pivot_;
+  DenseBlockLu<double> lu_;
+  std::vector<double> rhs_;
   mutable std::vector<std::pair<int, double>> walk_;  // value()'s work list
 };
 
