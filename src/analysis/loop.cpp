@@ -13,6 +13,8 @@
 #include "tacet/common/errors.hpp"
 #include "tacet/common/format.hpp"
 #include "tacet/common/spelling.hpp"
+#include "tacet/solve/block_form.hpp"
+#include "tacet/solve/dense_lu.hpp"
 #include "tacet/solve/mna.hpp"
 #include "tacet/solve/search.hpp"
 
@@ -180,34 +182,103 @@ std::vector<std::size_t> resolve_opamps(const Circuit& circuit,
   return chosen;
 }
 
-LoopGain::LoopGain(const Circuit& circuit, SolverKind solver)
+// The op amp's block and its dense factors at the frequency factored last.
+struct LoopGain::Blocks {
+  BlockForm form;
+  DenseBlockLu<std::complex<double>> lu{kMostBlockUnknowns};
+  std::vector<std::complex<double>> rhs, x;
+  std::vector<std::complex<double>> solution;  // size n, zero outside the block solved last
+  int block = -1;  // whose factors lu holds; -1: none
+  double f = -1;
+  unsigned restamps = 0;
+};
+
+LoopGain::LoopGain(const Circuit& circuit, SolverKind solver, bool blocks)
     : owned_(std::make_unique<FrequencyResponse>(circuit, solver)),
       response_(*owned_),
-      rhs_(static_cast<std::size_t>(response_.mna().size())) {}
+      rhs_(static_cast<std::size_t>(response_.mna().size())) {
+  if (auto form = blocks ? block_form(response_.mna().pattern()) : std::nullopt) {
+    blocks_ = std::make_unique<Blocks>();
+    blocks_->form = std::move(*form);
+  }
+}
 
-LoopGain::LoopGain(FrequencyResponse& shared)
-    : response_(shared), rhs_(static_cast<std::size_t>(response_.mna().size())) {}
+LoopGain::LoopGain(FrequencyResponse& shared, bool blocks)
+    : response_(shared), rhs_(static_cast<std::size_t>(response_.mna().size())) {
+  if (auto form = blocks ? block_form(response_.mna().pattern()) : std::nullopt) {
+    blocks_ = std::make_unique<Blocks>();
+    blocks_->form = std::move(*form);
+  }
+}
 
-std::complex<double> LoopGain::at(std::size_t opamp, double f) {
-  response_.factor_at(f);
+LoopGain::~LoopGain() = default;
+
+// T = -A(s) d / v_x from a solution of the unit in the op amp's gain row.
+std::complex<double> LoopGain::from_solution(std::size_t opamp, double f, const std::complex<double>* x) const {
   const MnaSystem& mna = response_.mna();
-  std::fill(rhs_.begin(), rhs_.end(), std::complex<double>{});
-  rhs_[static_cast<std::size_t>(mna.opamp_gain_row(opamp))] = 1.0;
-  response_.lu().solve(rhs_.data());
   const auto& e = mna.circuit().elements[opamp];
-  auto voltage = [&](int node) { return mna.node_voltage(rhs_.data(), node); };
+  auto voltage = [&](int node) { return mna.node_voltage(x, node); };
   // The voltage the gain source amplifies, with its common-mode error (mna.hpp).
   const std::complex<double> s(0, kTwoPi * f);
   const std::complex<double> plus = voltage(e.nodes[0]), minus = voltage(e.nodes[1]);
   const std::complex<double> d =
       plus - minus + common_mode_feedthrough(model_of(mna.circuit(), opamp), s) * (plus + minus);
-  const std::complex<double> vx = mna.voltage_at_unknown(rhs_.data(), mna.opamp_source_unknown(opamp));
+  const std::complex<double> vx = mna.voltage_at_unknown(x, mna.opamp_source_unknown(opamp));
   const std::complex<double> t = -opamp_gain(model_of(mna.circuit(), opamp), s) * d / vx;
   if (!std::isfinite(t.real()) || !std::isfinite(t.imag()))
     throw SolveError::unsolvable_at(
         f, fmt::format("the loop gain of '{}' is not finite: its gain source sets no voltage",
                        e.name));
   return t;
+}
+
+std::optional<std::complex<double>> LoopGain::on_block(std::size_t opamp, double f) {
+  Blocks& b = *blocks_;
+  const MnaSystem& mna = response_.mna();
+  const int row = mna.opamp_gain_row(opamp);
+  const int j = b.form.row_block[static_cast<std::size_t>(row)];
+  const BlockForm::Block& block = b.form.blocks[static_cast<std::size_t>(j)];
+  const int n = block.size;
+  if (n > kMostBlockUnknowns) return std::nullopt;
+  if (b.block != j || b.f != f || b.restamps != response_.restamps()) {
+    const std::complex<double> s(0, kTwoPi * f);
+    std::complex<double>* a = b.lu.matrix(n);
+    for (int i = block.entries_begin; i < block.entries_end; ++i) {
+      const BlockForm::Entry& entry = b.form.entries[static_cast<std::size_t>(i)];
+      a[entry.row * n + entry.col] = mna.entry(entry.at, s);
+    }
+    b.block = -1;
+    if (!b.lu.factor()) return std::nullopt;
+    b.block = j, b.f = f, b.restamps = response_.restamps();
+  }
+  b.rhs.assign(static_cast<std::size_t>(n), {});
+  b.x.resize(static_cast<std::size_t>(n));
+  b.rhs[static_cast<std::size_t>(b.form.row_local[static_cast<std::size_t>(row)])] = 1.0;
+  if (!b.lu.solve(b.rhs.data(), b.x.data())) return std::nullopt;
+  // The whole solution: the block's values, zero elsewhere (nothing upstream
+  // moves; what the block drives downstream is not read). Kept all zero
+  // between calls, so a call touches the block's unknowns only.
+  b.solution.resize(static_cast<std::size_t>(mna.size()));
+  const auto column = [&](int k) { return static_cast<std::size_t>(b.form.column_at[static_cast<std::size_t>(block.first + k)]); };
+  for (int k = 0; k < n; ++k) b.solution[column(k)] = b.x[static_cast<std::size_t>(k)];
+  const std::complex<double> t = from_solution(opamp, f, b.solution.data());
+  for (int k = 0; k < n; ++k) b.solution[column(k)] = {};
+  return t;
+}
+
+std::complex<double> LoopGain::at(std::size_t opamp, double f) {
+  last_on_block_ = false;
+  if (blocks_)
+    if (const auto t = on_block(opamp, f)) {
+      last_on_block_ = true;
+      return *t;
+    }
+  response_.factor_at(f);
+  const MnaSystem& mna = response_.mna();
+  std::fill(rhs_.begin(), rhs_.end(), std::complex<double>{});
+  rhs_[static_cast<std::size_t>(mna.opamp_gain_row(opamp))] = 1.0;
+  response_.lu().solve(rhs_.data());
+  return from_solution(opamp, f, rhs_.data());
 }
 
 LoopResult run_loop(const Circuit& circuit, const LoopOptions& options) {

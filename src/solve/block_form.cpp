@@ -25,6 +25,7 @@ std::optional<BlockForm> block_form(const CscPattern& pattern) {
   form.blocks.resize(nb);
   form.col_block.assign(un, -1), form.col_local.assign(un, -1);
   form.row_block.assign(un, -1), form.row_local.assign(un, -1);
+  form.column_at.resize(un);
   for (std::size_t b = 0; b < nb; ++b) {
     form.blocks[b].first = bounds[b];
     form.blocks[b].size = bounds[b + 1] - bounds[b];
@@ -33,6 +34,7 @@ std::optional<BlockForm> block_form(const CscPattern& pattern) {
       const auto row = static_cast<std::size_t>(row_of[static_cast<std::size_t>(k)]);
       form.col_block[col] = form.row_block[row] = static_cast<int>(b);
       form.col_local[col] = form.row_local[row] = k - bounds[b];
+      form.column_at[static_cast<std::size_t>(k)] = static_cast<int>(col);
     }
   }
   // The blocks' own entries grouped by block (counted, then placed), and the reads.

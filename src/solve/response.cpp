@@ -49,6 +49,7 @@ void FrequencyResponse::anchor_at(double f) {
 
 void FrequencyResponse::restamp() {
   mna_->restamp();
+  ++restamps_;
   mna_->assemble(0.0, values_.data());
   mna_->excitation(excitation_.data());
   factored_ = -1;

@@ -84,21 +84,47 @@ std::vector<std::size_t> resolve_opamps(const Circuit& circuit,
 /// The op amp's open-loop gain A(s), the same function its MNA row divides by.
 std::complex<double> opamp_gain(const OpAmpModel& model, std::complex<double> s);
 
-/// T of one op amp at one frequency on a shared closed-loop factorisation:
-/// the first call at f factors, each op amp then costs one solve.
+/// T of one op amp at one frequency. An op amp's loop lives in its own
+/// diagonal block of the matrix in block triangular form (solve/
+/// block_form.hpp): its gain row, the gain source it drives and any pin that
+/// depends on that source are strongly connected, and the unit in its gain
+/// row reaches nothing upstream. So T comes from a dense solve of that block
+/// alone (up to kMostBlockUnknowns unknowns, factored once per frequency and
+/// block, each solve measured like every other): a few hundred operations a
+/// point however large the circuit, where the whole matrix would cost one
+/// factorisation and a solve of every unknown per op amp. A larger block, or
+/// a block solve that cannot be trusted, takes the closed-loop factorisation
+/// of the whole circuit: the first call at f factors, each op amp then costs
+/// one solve.
 class LoopGain {
  public:
-  explicit LoopGain(const Circuit& circuit, SolverKind solver = SolverKind::klu);
+  static constexpr int kMostBlockUnknowns = 64;
+
+  /// `blocks` false: always the whole matrix (the tests compare the two).
+  explicit LoopGain(const Circuit& circuit, SolverKind solver = SolverKind::klu, bool blocks = true);
   /// On a response the caller already has (check's, shared with its AC specs):
   /// no second MNA system, and a frequency factored for one is reused by both.
-  explicit LoopGain(FrequencyResponse& shared);
+  explicit LoopGain(FrequencyResponse& shared, bool blocks = true);
+  ~LoopGain();
+  LoopGain(const LoopGain&) = delete;
+  LoopGain& operator=(const LoopGain&) = delete;
   std::complex<double> at(std::size_t opamp, double f);
   FrequencyResponse& response() { return response_; }
+  /// Whether the last at() was solved on the op amp's own block.
+  bool last_on_block() const { return last_on_block_; }
 
  private:
+  struct Blocks;
+  /// T from the op amp's block; none: the block is too large or its solve
+  /// cannot be trusted.
+  std::optional<std::complex<double>> on_block(std::size_t opamp, double f);
+  std::complex<double> from_solution(std::size_t opamp, double f, const std::complex<double>* x) const;
+
   std::unique_ptr<FrequencyResponse> owned_;  ///< empty when the response is shared
   FrequencyResponse& response_;
   std::vector<std::complex<double>> rhs_;
+  std::unique_ptr<Blocks> blocks_;  ///< none: whole matrix always
+  bool last_on_block_ = false;
 };
 
 /// Crossovers, phase crossovers and both margins of a loop gain T(f) (V/V)

@@ -36,6 +36,8 @@ struct BlockForm {
   /// Per column (unknown) and per row of the original matrix: its block and
   /// its place in it; row k and column k of a block are matched.
   std::vector<int> col_block, col_local, row_block, row_local;
+  /// Per position of the permuted matrix: the original column there.
+  std::vector<int> column_at;
 };
 
 /// The form of `pattern`; none when it is structurally singular (no perfect

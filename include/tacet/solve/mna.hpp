@@ -186,6 +186,12 @@ class MnaSystem {
 
   /// Position of entry (row, col) in the values array; -1 if not in the pattern.
   int slot(int row, int col) const;
+  /// The entry at position `at` of the values array at s, as assemble()
+  /// writes it: for analyses that need a few entries, not the whole matrix.
+  std::complex<double> entry(int at, std::complex<double> s) const {
+    const Coefficients& c = coefficients_[static_cast<std::size_t>(at)];
+    return c.c0 + s * (c.c1 + s * c.c2);
+  }
 
  private:
   // Every stamp is real in powers of s: entry = c0 + c1 s + c2 s^2.

@@ -67,6 +67,9 @@ class FrequencyResponse {
   /// restamped on the same pattern and symbolic analysis, and the next
   /// frequency asked for is factored anew. No allocation.
   void restamp();
+  /// How many times restamp() has run: what a caller keeps of the matrix at
+  /// an earlier count is out of date.
+  unsigned restamps() const { return restamps_; }
 
   const MnaSystem& mna() const { return *mna_; }
   /// The factorisation at the frequency factored last, for callers that solve
@@ -94,6 +97,7 @@ class FrequencyResponse {
   std::size_t single_source_ = 0;  ///< the source of w_
   double anchor_ = -1;          ///< Hz of the first factorisation; -1: none yet
   double pending_anchor_ = -1;  ///< a worker's anchor, factored before its first frequency; -1: none
+  unsigned restamps_ = 0;
 };
 
 
