@@ -26,8 +26,7 @@ namespace tacet {
 
 std::string SpreadOptions::validate() const {
   if (runs < 1) return fmt::format("--runs must be at least 1, not {}", runs);
-  if (threads < 0 || threads > kMostSpreadThreads)
-    return fmt::format("--threads must be from 0 (one per core) to {}, not {}", kMostSpreadThreads, threads);
+  if (auto problem = threads_problem(threads); !problem.empty()) return problem;
   if (shards < 1 || shard < 1 || shard > shards)
     return fmt::format("--shard {}/{} does not exist: shards are numbered 1/N to N/N", shard, shards);
   if (shards > runs)

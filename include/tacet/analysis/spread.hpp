@@ -38,9 +38,9 @@
 
 namespace tacet {
 
-/// Limits of one process: worker threads, and draws x specs held in memory
-/// (9 bytes each; a larger run is cut into shards).
-inline constexpr int kMostSpreadThreads = 256;
+/// Limit of one process: draws x specs held in memory (9 bytes each; a
+/// larger run is cut into shards). Threads are bounded as for every command
+/// (common/parallel.hpp).
 inline constexpr std::int64_t kMostSpreadValues = 200000000;
 
 struct SpreadOptions {
