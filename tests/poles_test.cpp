@@ -2,6 +2,7 @@
 
 #include "tacet/analysis/poles.hpp"
 
+#include <algorithm>
 #include <catch2/catch.hpp>
 #include <cmath>
 
@@ -96,16 +97,54 @@ TEST_CASE("positive feedback gives a right-half-plane pole and names the op amp"
   CHECK(r.unstable_loops == std::vector<std::string>{"U1"});
 }
 
-TEST_CASE("poles refuse a circuit too large for the dense method", "[poles]") {
+TEST_CASE("poles refuse a circuit with one block too large for the dense method", "[poles]") {
+  // A passive ladder is one strongly connected block: kMaxPoleUnknowns + 1 nodes.
   CircuitBuilder b;
   b.vsrc("Vin", "n0", "gnd", 1.0);
-  for (int k = 0; k < kMaxPoleUnknowns; ++k) {
+  for (int k = 0; k <= kMaxPoleUnknowns; ++k) {
     b.add(ElementKind::resistor, "R" + std::to_string(k),
           {"n" + std::to_string(k), "n" + std::to_string(k + 1)}, 1e3);
     b.add(ElementKind::capacitor, "C" + std::to_string(k), {"n" + std::to_string(k + 1), "gnd"},
           1e-9);
   }
   CHECK_THROWS_AS(run_poles(b.circuit), InputError);
+  CHECK_THROWS_WITH(run_poles(b.circuit), Catch::Matchers::Contains("601 of them in one block"));
+}
+
+TEST_CASE("the poles of a buffered RC cascade beyond the dense limit are those of its stages", "[poles]") {
+  // 250 sections of R_k into C to gnd, buffered by a follower: a pencil of
+  // 752 unknowns, more than the dense method takes whole, but each section
+  // is a block of its own (the follower's output is a source to the next).
+  // Closed forms (from memory): the RC pole s = -1/(R_k C); a single-pole op
+  // amp A = aol/(1 + s/wp) as a follower closes its loop at s = -wp (1 + aol).
+  const int sections = 250;
+  const double c = 1e-9;
+  OpAmpModel m = single_pole(10e6, 1e5);
+  CircuitBuilder b;
+  b.vsrc("Vin", "o0", "gnd", 1.0);
+  std::vector<double> expected;
+  const double wp = 2 * kPi * m.gbw / m.aol;
+  for (int k = 1; k <= sections; ++k) {
+    const std::string id = std::to_string(k), from = "o" + std::to_string(k - 1);
+    const double r = 1e3 * (1 + 0.01 * k);
+    b.add(ElementKind::resistor, "R" + id, {from, "c" + id}, r);
+    b.add(ElementKind::capacitor, "C" + id, {"c" + id, "gnd"}, c);
+    b.opamp("U" + id, "c" + id, "o" + id, "o" + id, m);
+    expected.push_back(1 / (r * c));
+    expected.push_back(wp * (1 + m.aol));
+  }
+  const PolesResult r = run_poles(b.circuit);
+  CHECK(r.unknowns > kMaxPoleUnknowns);
+  CHECK(r.stable);
+  REQUIRE(r.poles.size() == expected.size());
+  std::sort(expected.begin(), expected.end());
+  for (std::size_t k = 0; k < expected.size(); ++k) {
+    CAPTURE(k);
+    CHECK(r.poles[k].s.imag() == 0);
+    CHECK_THAT(-r.poles[k].s.real(), IsClose(expected[k], 1e-9));
+  }
+  // Zeros need the whole bordered pencil: still refused at this size.
+  CHECK_THROWS_AS(run_poles(b.circuit, {"o250", "Vin"}), InputError);
 }
 
 TEST_CASE("zeros need an input that is a source", "[poles]") {

@@ -328,14 +328,16 @@ class SpecMeter {
   }
 
   /// The rightmost pole's real part Re s/(2 pi), Hz: below 0 when every pole
-  /// is in the left half-plane. The dense pole method serves kMaxPoleUnknowns:
-  /// beyond it the spec cannot be measured (exit 3), the others still are.
+  /// is in the left half-plane. The dense pole method serves kMaxPoleUnknowns
+  /// in one block (poles.hpp): beyond it the spec cannot be measured (exit
+  /// 3), the others still are.
   void stable(SpecResult& r) {
     const int unknowns = pole_unknowns(response().mna());
-    if (unknowns > kMaxPoleUnknowns)
+    const int block = unknowns > kMaxPoleUnknowns ? largest_pole_block(response().mna()) : unknowns;
+    if (block > kMaxPoleUnknowns)
       throw SolveError::unsolvable(
-          fmt::format("{} unknowns, more than the {} the dense pole method serves", unknowns,
-                      kMaxPoleUnknowns),
+          fmt::format("{} unknowns, {} in one block: more than the {} the dense pole method serves", unknowns,
+                      block, kMaxPoleUnknowns),
           "check each op amp's loop with phase_margin and gain_margin specs, or the stage on its own "
           "with a stable spec");
     const PolesResult poles = run_poles(circuit_);

@@ -13,7 +13,9 @@
 #include "tacet/analysis/loop.hpp"
 #include "tacet/common/constants.hpp"
 #include "tacet/common/errors.hpp"
+#include "tacet/solve/block_form.hpp"
 #include "tacet/solve/mna.hpp"
+#include "tacet/solve/pencil.hpp"
 #include "tacet/solve/probe.hpp"
 
 namespace tacet {
@@ -57,6 +59,8 @@ Pencil linear_pencil(const MnaSystem& mna, int extra) {
   return p;
 }
 
+bool by_f0(const Root& a, const Root& b) { return a.f0() != b.f0() ? a.f0() < b.f0() : a.s.imag() < b.s.imag(); }
+
 // Finite generalised eigenvalues s of (G + s C) x = 0.
 std::vector<Root> finite_roots(const Pencil& p) {
   const double norm_c = p.c.norm();
@@ -76,9 +80,7 @@ std::vector<Root> finite_roots(const Pencil& p) {
     if (std::abs(s.imag()) < 1e-12 * std::abs(s)) s.imag(0);
     roots.push_back({s});
   }
-  std::sort(roots.begin(), roots.end(), [](const Root& a, const Root& b) {
-    return a.f0() != b.f0() ? a.f0() < b.f0() : a.s.imag() < b.s.imag();
-  });
+  std::sort(roots.begin(), roots.end(), by_f0);
   return roots;
 }
 
@@ -103,6 +105,35 @@ std::vector<Root> transfer_zeros(const MnaSystem& mna, const Probe& probe, std::
   return finite_roots(p);
 }
 
+// The poles of a pencil beyond kMaxPoleUnknowns: those of each diagonal block
+// of its block triangular form, each block by the dense method.
+std::vector<Root> block_poles(const MnaSystem& mna) {
+  const SparsePencil pencil = sparse_pencil(mna);
+  const auto form = block_form(pencil.pattern);
+  int largest = 0;
+  if (form)
+    for (const auto& b : form->blocks) largest = std::max(largest, b.size);
+  if (!form || largest > kMaxPoleUnknowns)
+    throw InputError::usage(
+        fmt::format("poles: the circuit has {} unknowns, {} of them in one block that the dense "
+                    "eigenvalue method must solve whole; it serves at most {}",
+                    pencil.size(), form ? largest : pencil.size(), kMaxPoleUnknowns),
+        "use tacet loop for each op amp's margins, or analyse the stage on its own");
+  std::vector<Root> roots;
+  for (const auto& b : form->blocks) {
+    Pencil dense{Matrix::Zero(b.size, b.size), Matrix::Zero(b.size, b.size)};
+    for (int i = b.entries_begin; i < b.entries_end; ++i) {
+      const BlockForm::Entry& e = form->entries[static_cast<std::size_t>(i)];
+      dense.g(e.row, e.col) = pencil.g[static_cast<std::size_t>(e.at)];
+      dense.c(e.row, e.col) = pencil.c[static_cast<std::size_t>(e.at)];
+    }
+    const std::vector<Root> own = finite_roots(dense);
+    roots.insert(roots.end(), own.begin(), own.end());
+  }
+  std::sort(roots.begin(), roots.end(), by_f0);
+  return roots;
+}
+
 std::vector<std::string> unstable_loops(const Circuit& circuit) {
   std::vector<std::string> names;
   bool any = false;
@@ -116,6 +147,15 @@ std::vector<std::string> unstable_loops(const Circuit& circuit) {
 }
 
 }  // namespace
+
+int largest_pole_block(const MnaSystem& mna) {
+  const SparsePencil pencil = sparse_pencil(mna);
+  const auto form = block_form(pencil.pattern);
+  if (!form) return pencil.size();
+  int largest = 0;
+  for (const auto& b : form->blocks) largest = std::max(largest, b.size);
+  return largest;
+}
 
 int pole_unknowns(const MnaSystem& mna) {
   const auto entries = mna.polynomials();
@@ -142,9 +182,8 @@ PolesResult run_poles(const Circuit& circuit, const PolesOptions& options) {
     input = resolve_source(options.input, circuit, "--input");
   }
   const MnaSystem mna(circuit);
-  const Pencil pencil = linear_pencil(mna, 0);
-  result.unknowns = static_cast<int>(pencil.g.rows());
-  result.poles = finite_roots(pencil);
+  result.unknowns = pole_unknowns(mna);
+  result.poles = result.unknowns > kMaxPoleUnknowns && !probe ? block_poles(mna) : finite_roots(linear_pencil(mna, 0));
   for (const Root& pole : result.poles) result.stable = result.stable && pole.s.real() < 0;
   if (probe) {
     result.probe = probe->text;

@@ -23,8 +23,17 @@
 // based solver applies and the QZ's alpha/beta form keeps the infinite
 // eigenvalues apart (beta ~ 0). Before it, s is scaled by w0 = |G|/|C|
 // (Frobenius), so the two matrices have equal norms; an eigenvalue with
-// |alpha| > 1e10 |beta| is taken as infinite. Cost O(N^3), memory O(N^2):
-// above kMaxPoleUnknowns the command refuses with a clear error.
+// |alpha| > 1e10 |beta| is taken as infinite. Cost O(N^3), memory O(N^2).
+//
+// Above kMaxPoleUnknowns the poles alone are found block by block: in block
+// upper triangular form (solve/block_form.hpp) P (G + s C) Q has the same
+// diagonal blocks at every s, so det(G + s C) is the product of the blocks'
+// determinants and the poles are the blocks' poles together: a cascade of
+// stages, each a small block, costs the sum of its stages (linear in its
+// length). A block beyond kMaxPoleUnknowns (a long passive ladder is one
+// strongly connected block), or zeros of a pencil that large (the bordered
+// system pencil couples the input to the probe across every block), are
+// refused with a clear error.
 
 #include <complex>
 #include <cstddef>
@@ -44,6 +53,9 @@ class MnaSystem;
 /// The size of the pencil run_poles solves for this MNA system: its unknowns
 /// plus one per entry quadratic in s (an op amp with a second pole).
 int pole_unknowns(const MnaSystem& mna);
+/// The largest diagonal block of that pencil in block triangular form: what
+/// the dense method must solve whole when the pencil is beyond kMaxPoleUnknowns.
+int largest_pole_block(const MnaSystem& mna);
 
 struct PolesOptions {
   std::string probe;  ///< with input: the transfer whose zeros are found
