@@ -187,7 +187,6 @@ struct LoopGain::Blocks {
   BlockForm form;
   DenseBlockLu<std::complex<double>> lu{kMostBlockUnknowns};
   std::vector<std::complex<double>> rhs, x;
-  std::vector<std::complex<double>> solution;  // size n, zero outside the block solved last
   int block = -1;  // whose factors lu holds; -1: none
   double f = -1;
   unsigned restamps = 0;
@@ -213,17 +212,29 @@ LoopGain::LoopGain(FrequencyResponse& shared, bool blocks)
 
 LoopGain::~LoopGain() = default;
 
-// T = -A(s) d / v_x from a solution of the unit in the op amp's gain row.
-std::complex<double> LoopGain::from_solution(std::size_t opamp, double f, const std::complex<double>* x) const {
-  const MnaSystem& mna = response_.mna();
+namespace {
+
+// T = -A(s) d / v_x from a solution of the unit in the op amp's gain row,
+// read through value(unknown): the whole solution, or a block's alone (zero
+// outside it), with no state left behind whatever happens.
+template <typename Value>
+std::complex<double> return_ratio(const MnaSystem& mna, std::size_t opamp, double f, Value&& value) {
   const auto& e = mna.circuit().elements[opamp];
-  auto voltage = [&](int node) { return mna.node_voltage(x, node); };
+  auto voltage = [&](int node) {
+    const auto terms = mna.voltage_terms(node);
+    std::complex<double> v{};
+    for (int k = 0; k < terms.count; ++k)
+      v += terms.term[static_cast<std::size_t>(k)].coefficient * value(terms.term[static_cast<std::size_t>(k)].unknown);
+    return v;
+  };
   // The voltage the gain source amplifies, with its common-mode error (mna.hpp).
   const std::complex<double> s(0, kTwoPi * f);
   const std::complex<double> plus = voltage(e.nodes[0]), minus = voltage(e.nodes[1]);
   const std::complex<double> d =
       plus - minus + common_mode_feedthrough(model_of(mna.circuit(), opamp), s) * (plus + minus);
-  const std::complex<double> vx = mna.voltage_at_unknown(x, mna.opamp_source_unknown(opamp));
+  const int source = mna.opamp_source_unknown(opamp);
+  const auto node_unknowns = static_cast<int>(mna.circuit().node_count()) - 1;
+  const std::complex<double> vx = source < node_unknowns ? voltage(source + 1) : value(source);
   const std::complex<double> t = -opamp_gain(model_of(mna.circuit(), opamp), s) * d / vx;
   if (!std::isfinite(t.real()) || !std::isfinite(t.imag()))
     throw SolveError::unsolvable_at(
@@ -231,6 +242,8 @@ std::complex<double> LoopGain::from_solution(std::size_t opamp, double f, const 
                        e.name));
   return t;
 }
+
+}  // namespace
 
 std::optional<std::complex<double>> LoopGain::on_block(std::size_t opamp, double f) {
   Blocks& b = *blocks_;
@@ -255,15 +268,13 @@ std::optional<std::complex<double>> LoopGain::on_block(std::size_t opamp, double
   b.x.resize(static_cast<std::size_t>(n));
   b.rhs[static_cast<std::size_t>(b.form.row_local[static_cast<std::size_t>(row)])] = 1.0;
   if (!b.lu.solve(b.rhs.data(), b.x.data())) return std::nullopt;
-  // The whole solution: the block's values, zero elsewhere (nothing upstream
-  // moves; what the block drives downstream is not read). Kept all zero
-  // between calls, so a call touches the block's unknowns only.
-  b.solution.resize(static_cast<std::size_t>(mna.size()));
-  const auto column = [&](int k) { return static_cast<std::size_t>(b.form.column_at[static_cast<std::size_t>(block.first + k)]); };
-  for (int k = 0; k < n; ++k) b.solution[column(k)] = b.x[static_cast<std::size_t>(k)];
-  const std::complex<double> t = from_solution(opamp, f, b.solution.data());
-  for (int k = 0; k < n; ++k) b.solution[column(k)] = {};
-  return t;
+  // Nothing upstream of the block moves; what it drives downstream is not read.
+  const auto value = [&](int unknown) {
+    return b.form.col_block[static_cast<std::size_t>(unknown)] == j
+               ? b.x[static_cast<std::size_t>(b.form.col_local[static_cast<std::size_t>(unknown)])]
+               : std::complex<double>{};
+  };
+  return return_ratio(mna, opamp, f, value);
 }
 
 std::complex<double> LoopGain::at(std::size_t opamp, double f) {
@@ -278,7 +289,7 @@ std::complex<double> LoopGain::at(std::size_t opamp, double f) {
   std::fill(rhs_.begin(), rhs_.end(), std::complex<double>{});
   rhs_[static_cast<std::size_t>(mna.opamp_gain_row(opamp))] = 1.0;
   response_.lu().solve(rhs_.data());
-  return from_solution(opamp, f, rhs_.data());
+  return return_ratio(mna, opamp, f, [&](int unknown) { return rhs_[static_cast<std::size_t>(unknown)]; });
 }
 
 LoopResult run_loop(const Circuit& circuit, const LoopOptions& options) {

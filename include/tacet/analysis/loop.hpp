@@ -118,7 +118,6 @@ class LoopGain {
   /// T from the op amp's block; none: the block is too large or its solve
   /// cannot be trusted.
   std::optional<std::complex<double>> on_block(std::size_t opamp, double f);
-  std::complex<double> from_solution(std::size_t opamp, double f, const std::complex<double>* x) const;
 
   std::unique_ptr<FrequencyResponse> owned_;  ///< empty when the response is shared
   FrequencyResponse& response_;
