@@ -12,8 +12,10 @@ netlist, the yardstick the performance goals are written against:
   noise  100 points and the band total over 20 Hz .. 20 kHz
   check  the seven specs of the chain's budget
   diff   the chain against itself with one resistor changed
-  settle the step response over its first 2 us (not part of the default set:
-         pass --only settle)
+  settle the step response over its first 2 us
+  loop   every op amp's loop gain over the default loop sweep, and its margins
+  poles  every pole (block by block beyond 600 unknowns)
+         (these three are not part of the default set: pass --only settle,loop,poles)
   ac1    the AC response at one frequency (1 kHz)
   sens   tacet sensitivity at 1 kHz: every parameter by one adjoint solve
   checks tacet check --sensitivity: the budget and what moves each spec
@@ -51,7 +53,12 @@ def commands(path, changed, out):
         "ac1": ["ac", path, "--probe", out, "--at", "1k"],
         "sens": ["sensitivity", path, "--probe", out, "--at", "1k", "--format", "csv"],
         "checks": ["check", path, "--sensitivity"],
+        "loop": ["loop", path, "--format", "csv"],
+        "poles": ["poles", path],
     }
+
+
+OPT_IN = {"settle", "loop", "poles"}  # run only when --only names them
 
 
 def run(tacet, args):
@@ -94,7 +101,7 @@ def main():
             for name, argv in commands(path, changed, output_node(text)).items():
                 if only and name not in only and name != "ac":
                     continue
-                if name == "settle" and not (only and "settle" in only):
+                if name in OPT_IN and not (only and name in only):
                     continue
                 best = min((run(tacet, argv) for _ in range(repeats)), key=lambda r: r[1])
                 seconds, cpu, peak, code = best
