@@ -185,6 +185,14 @@ std::vector<std::size_t> resolve_opamps(const Circuit& circuit,
 // The op amp's block and its dense factors at the frequency factored last.
 struct LoopGain::Blocks {
   BlockForm form;
+  // Each block's entries as polynomials, side by side in block order: read
+  // where the CSC array holds them, a block's few entries are scattered over
+  // a matrix that outgrows the cache. Copied again after a restamp.
+  struct Polynomial {
+    double c0, c1, c2;
+  };
+  std::vector<Polynomial> polynomials;  // per form.entries
+  unsigned copied = 0;                  // the restamps they were copied at
   DenseBlockLu<std::complex<double>> lu{kMostBlockUnknowns};
   std::vector<std::complex<double>> rhs, x;
   int block = -1;  // whose factors lu holds; -1: none
@@ -253,12 +261,22 @@ std::optional<std::complex<double>> LoopGain::on_block(std::size_t opamp, double
   const BlockForm::Block& block = b.form.blocks[static_cast<std::size_t>(j)];
   const int n = block.size;
   if (n > kMostBlockUnknowns) return std::nullopt;
+  if (b.polynomials.empty() || b.copied != response_.restamps()) {
+    const auto all = mna.polynomials();  // CSC order: position `at`
+    b.polynomials.resize(b.form.entries.size());
+    for (std::size_t i = 0; i < b.form.entries.size(); ++i) {
+      const auto& p = all[static_cast<std::size_t>(b.form.entries[i].at)];
+      b.polynomials[i] = {p.c0, p.c1, p.c2};
+    }
+    b.copied = response_.restamps();
+  }
   if (b.block != j || b.f != f || b.restamps != response_.restamps()) {
     const std::complex<double> s(0, kTwoPi * f);
     std::complex<double>* a = b.lu.matrix(n);
     for (int i = block.entries_begin; i < block.entries_end; ++i) {
       const BlockForm::Entry& entry = b.form.entries[static_cast<std::size_t>(i)];
-      a[entry.row * n + entry.col] = mna.entry(entry.at, s);
+      const Blocks::Polynomial& c = b.polynomials[static_cast<std::size_t>(i)];
+      a[entry.row * n + entry.col] = c.c0 + s * (c.c1 + s * c.c2);  // as MnaSystem::assemble
     }
     b.block = -1;
     if (!b.lu.factor()) return std::nullopt;
