@@ -65,7 +65,7 @@ bool DcCascade::plan_blocks(const MnaSystem& mna) {
   const auto un = static_cast<std::size_t>(mna.pattern().n);
   const std::size_t nb = form_.blocks.size();
   blocks_.assign(nb, Block{});
-  for (std::size_t b = 0; b < nb; ++b) blocks_[b].first = form_.blocks[b].first, blocks_[b].size = form_.blocks[b].size;
+  for (std::size_t b = 0; b < nb; ++b) blocks_[b].size = form_.blocks[b].size;
   const auto& reads = form_.reads;
 
   // Only the blocks a node voltage depends on are solved: the others (an op

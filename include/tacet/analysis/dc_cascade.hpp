@@ -111,7 +111,7 @@ class DcCascade {
     int unknown = -1, observable = -1, t_at = 0, couple_begin = 0, couple_end = 0;
   };
   struct Block {
-    int first = 0, size = 0;  // BTF positions first .. first + size
+    int size = 0;  // unknowns (form_ has where they are)
     int interfaces_begin = 0, interfaces_end = 0;
     int primary = -1;     // the interface that carries sums; -1: none does
     bool sums = false;    // some error has joined the sums here or upstream
