@@ -13,8 +13,10 @@
 #include <memory>
 #include <numeric>
 #include <optional>
+#include <type_traits>
 
 #include "tacet/analysis/dc_cascade.hpp"
+#include "tacet/analysis/dc_tree.hpp"
 #include "tacet/common/errors.hpp"
 #include "tacet/common/format.hpp"
 #include "tacet/common/parallel.hpp"
@@ -400,8 +402,11 @@ struct BiasScratch {
   std::vector<FoldStop> stops;      // per range of a wave's fold
   // The cascade's path (dc_cascade.hpp): its plan, kept while the errors'
   // rows stay the same, the errors in its terms, and a node's largest shares.
+  // The tree's path (dc_tree.hpp) likewise, for stages that load each other.
   DcCascade cascade;
   bool cascade_planned = false;
+  DcTree tree;
+  bool tree_planned = false;
   std::vector<CascadeError> cascade_errors;
   std::vector<DcError> cascade_meta;
   std::vector<CascadeShare> shares;
@@ -461,28 +466,27 @@ const double* solved_error(const DcSystem& dc, BiasScratch& work, std::size_t er
 }
 
 // Every DC error folded into the bands and the op amps' largest contributors
-// by the cascade's path, when the circuit is one: false leaves both as they
-// were, for the per-error path.
-bool fold_cascade(const DcSystem& dc, BiasResult& result, BiasScratch& work) {
+// by a linear-time path (DcCascade or DcTree), when the circuit suits it:
+// false leaves both as they were, for the next path.
+template <typename Path>
+bool fold_linear(const DcSystem& dc, BiasResult& result, BiasScratch& work, Path& path, bool& planned) {
   const Circuit& circuit = dc.circuit();
   const MnaSystem& mna = dc.mna();
-  opamp_errors(circuit, work.amps);
-  cascade_errors(circuit, mna, work.amps, work.cascade_errors, work.cascade_meta);
-  if (!work.cascade_planned || !work.cascade.planned_for(work.cascade_errors)) {
-    work.cascade.plan(mna, work.cascade_errors);
-    work.cascade_planned = true;
+  if (!planned || !path.planned_for(work.cascade_errors)) {
+    if constexpr (std::is_same_v<Path, DcTree>) path.plan(mna, dc.values(), work.cascade_errors);
+    else path.plan(mna, work.cascade_errors);
+    planned = true;
   }
-  DcCascade& cascade = work.cascade;
-  if (!cascade.usable() || !cascade.run(dc.values(), work.cascade_errors)) return false;
+  if (!path.usable() || !path.run(dc.values(), work.cascade_errors)) return false;
   work.solved_error = SIZE_MAX;
   Bands& bands = work.bands;
   for (std::size_t k = 0; k < bands.worst.size(); ++k) {
-    bands.worst[k] = cascade.worst(static_cast<int>(k));
-    bands.squares[k] = cascade.squares(static_cast<int>(k));
+    bands.worst[k] = path.worst(static_cast<int>(k));
+    bands.squares[k] = path.squares(static_cast<int>(k));
   }
   static const std::string none;
   for (std::size_t a = 0; a < result.opamps.size(); ++a) {
-    cascade.largest(bands.outputs[a], kLargestShown, work.shares);
+    path.largest(bands.outputs[a], kLargestShown, work.shares);
     for (const CascadeShare& share : work.shares) {
       const DcError& error = work.cascade_meta[share.error];
       const double s = share.sensitivity;
@@ -494,7 +498,7 @@ bool fold_cascade(const DcSystem& dc, BiasResult& result, BiasScratch& work) {
           for (int t = 0; t < terms.count; ++t) {
             const int unknown = terms.term[static_cast<std::size_t>(t)].unknown;
             double x = 0;
-            if (!cascade.value(share.error, unknown, x)) x = solved_error(dc, work, share.error)[unknown];
+            if (!path.value(share.error, unknown, x)) x = solved_error(dc, work, share.error)[unknown];
             v += terms.term[static_cast<std::size_t>(t)].coefficient * x;
           }
           return v;
@@ -508,6 +512,16 @@ bool fold_cascade(const DcSystem& dc, BiasResult& result, BiasScratch& work) {
     }
   }
   return true;
+}
+
+// The first linear-time path that takes the circuit; per_error when none does.
+BiasPath fold_linear_paths(const DcSystem& dc, BiasResult& result, BiasScratch& work, bool cascade, bool tree) {
+  if (!cascade && !tree) return BiasPath::per_error;
+  opamp_errors(dc.circuit(), work.amps);
+  cascade_errors(dc.circuit(), dc.mna(), work.amps, work.cascade_errors, work.cascade_meta);
+  if (cascade && fold_linear(dc, result, work, work.cascade, work.cascade_planned)) return BiasPath::cascade;
+  if (tree && fold_linear(dc, result, work, work.tree, work.tree_planned)) return BiasPath::tree;
+  return BiasPath::per_error;
 }
 
 // Worker w's DcSystem at the values of `dc`: built the first time, restamped
@@ -671,7 +685,7 @@ void DcSystem::solve(Vector& block, int count) const { lu_->solve(block.data(), 
 
 BiasResult run_bias(const Circuit& circuit, const BiasOptions& options) {
   BiasResult result;
-  run_bias(DcSystem(circuit, options.solver), options.threads, result, options.cascade);
+  run_bias(DcSystem(circuit, options.solver), options.threads, result, options.cascade, options.tree);
   return result;
 }
 
@@ -722,7 +736,7 @@ void reset_bands(const Circuit& circuit, const MnaSystem& mna, const BiasResult&
 
 }  // namespace
 
-void run_bias(const DcSystem& dc, int threads, BiasResult& result, bool cascade) {
+void run_bias(const DcSystem& dc, int threads, BiasResult& result, bool cascade, bool tree) {
   const Circuit& circuit = dc.circuit();
   const MnaSystem& mna = dc.mna();
   BiasScratch& work = dc.scratch().bias;
@@ -733,8 +747,8 @@ void run_bias(const DcSystem& dc, int threads, BiasResult& result, bool cascade)
 
   Bands& bands = work.bands;
   reset_bands(circuit, mna, result, bands);
-  result.cascade = cascade && fold_cascade(dc, result, work);
-  if (!result.cascade) fold_dc_errors(dc, threads, result, work);
+  result.path = fold_linear_paths(dc, result, work, cascade, tree);
+  if (result.path == BiasPath::per_error) fold_dc_errors(dc, threads, result, work);
   for (std::size_t k = 0; k < result.nodes.size(); ++k) {
     result.nodes[k].worst = bands.worst[k];
     result.nodes[k].rss = std::sqrt(bands.squares[k]);

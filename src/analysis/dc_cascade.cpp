@@ -24,28 +24,9 @@ std::vector<Item> grouped(std::vector<std::pair<int, Item>>& items, std::size_t 
   return out;
 }
 
-// |S limit|: the size of a share, the order of the largest contributors.
-double share(double sensitivity, const CascadeError& error) { return std::abs(sensitivity * error.limit); }
-
-bool before(double size, std::size_t error, const CascadeShare& other, const std::vector<CascadeError>& errors) {
-  const double other_size = share(other.sensitivity, errors[other.error]);
-  return size > other_size || (size == other_size && error < other.error);
-}
-
 }  // namespace
 
-bool DcCascade::planned_for(const std::vector<CascadeError>& errors) const {
-  if (errors.size() != planned_.size()) return false;
-  for (std::size_t e = 0; e < errors.size(); ++e) {
-    const CascadeError &a = errors[e], &b = planned_[e];
-    if (a.part_count != b.part_count || a.in_band != b.in_band) return false;
-    for (int p = 0; p < a.part_count; ++p) {
-      const auto k = static_cast<std::size_t>(p);
-      if (a.parts[k].row != b.parts[k].row || a.parts[k].coefficient != b.parts[k].coefficient) return false;
-    }
-  }
-  return true;
-}
+bool DcCascade::planned_for(const std::vector<CascadeError>& errors) const { return same_rows(errors, planned_); }
 
 void DcCascade::plan(const MnaSystem& mna, const std::vector<CascadeError>& errors) {
   usable_ = false;
@@ -250,7 +231,7 @@ bool DcCascade::plan_entries(const std::vector<CascadeError>& errors) {
     }
   }
   pending_.assign(static_cast<std::size_t>(pending_at), 0.0);
-  sums_.assign(observables_.size(), Sums{});
+  sums_.assign(observables_.size(), DcSums{});
   return true;
 }
 
@@ -260,16 +241,6 @@ bool DcCascade::run(const double* values, const std::vector<CascadeError>& error
   for (std::size_t j = blocks_.size(); j-- > 0;)
     if (needed_[j] && !solve_block(j, values)) return false;
   return true;
-}
-
-void DcCascade::insert(Sums& s, std::size_t error, double sensitivity, const std::vector<CascadeError>& errors) const {
-  const double size = share(sensitivity, errors[error]);
-  int at = 0;
-  while (at < s.count && !before(size, error, s.top[static_cast<std::size_t>(at)], errors)) ++at;
-  if (at == 3) return;
-  for (int i = std::min(s.count, 2); i > at; --i) s.top[static_cast<std::size_t>(i)] = s.top[static_cast<std::size_t>(i) - 1];
-  s.top[static_cast<std::size_t>(at)] = {error, sensitivity};
-  s.count = std::min(s.count + 1, 3);
 }
 
 bool DcCascade::solve_block(std::size_t j, const double* values) {
@@ -305,20 +276,11 @@ bool DcCascade::solve_block(std::size_t j, const double* values) {
         v += terms_[static_cast<std::size_t>(k)].coefficient * column[terms_[static_cast<std::size_t>(k)].col];
       return v;
     };
-    Sums& s = sums_[static_cast<std::size_t>(o)];
-    s = Sums{};
+    DcSums& s = sums_[static_cast<std::size_t>(o)];
+    s = DcSums{};
     if (b.primary >= 0) {
       const Interface& in = interfaces_[static_cast<std::size_t>(b.primary)];
-      const double tau = at(t_.data() + in.t_at);
-      const Sums& up = sums_[static_cast<std::size_t>(in.observable)];
-      if (tau != 0) {
-        s.worst = std::abs(tau) * up.worst;
-        s.squares = tau * tau * up.squares;
-        s.count = up.count;
-        for (int i = 0; i < up.count; ++i)
-          s.top[static_cast<std::size_t>(i)] = {up.top[static_cast<std::size_t>(i)].error,
-                                                tau * up.top[static_cast<std::size_t>(i)].sensitivity};
-      }
+      s.add_scaled(sums_[static_cast<std::size_t>(in.observable)], at(t_.data() + in.t_at), errors);
     }
     double* apart = pending_.data() + obs.pending_at;
     for (int i = b.entries_begin; i < b.entries_end; ++i) {
@@ -338,16 +300,9 @@ bool DcCascade::solve_block(std::size_t j, const double* values) {
         apart[entry.slot] = v;
         continue;
       }
-      if (v == 0) continue;
-      const CascadeError& error = errors[entry.error];
-      if (error.in_band) {
-        const double term = std::abs(v) * error.limit;
-        s.worst += term;
-        s.squares += term * term;
-      }
-      insert(s, entry.error, v, errors);
+      s.add(entry.error, v, errors);
     }
-    if (!std::isfinite(s.worst) || !std::isfinite(s.squares)) return false;
+    if (!s.finite()) return false;
   }
   return true;
 }
@@ -389,10 +344,9 @@ void DcCascade::largest(int unknown, std::size_t count, std::vector<CascadeShare
   out.clear();
   const int o = unknown < 0 ? -1 : node_observable_[static_cast<std::size_t>(unknown)];
   if (o < 0) return;
-  const Sums& s = sums_[static_cast<std::size_t>(o)];
-  Sums all = s;  // the three largest of the sums and of the shares kept apart
+  DcSums all = sums_[static_cast<std::size_t>(o)];  // the three largest of the sums and of the shares kept apart
   for_apart(o, [&](std::size_t e, double v) {
-    if (v != 0) insert(all, e, v, planned_);
+    if (v != 0) all.insert(e, v, planned_);
   });
   for (int i = 0; i < all.count && out.size() < count; ++i) out.push_back(all.top[static_cast<std::size_t>(i)]);
 }

@@ -8,17 +8,46 @@
 
 namespace tacet {
 
-std::optional<BlockForm> block_form(const CscPattern& pattern) {
+namespace {
+
+// btf_order's permutation: the row (row_of) and column (col_of, possibly
+// flipped) at each position, the blocks' bounds; the block count, 0 when
+// there is no perfect matching.
+int ordered(const CscPattern& pattern, std::vector<int>& row_of, std::vector<int>& col_of, std::vector<int>& bounds) {
   const int n = pattern.n;
-  if (n == 0) return std::nullopt;
   const auto un = static_cast<std::size_t>(n);
-  std::vector<int> row_of(un), col_of(un), bounds(un + 1), work(5 * un);
+  row_of.resize(un), col_of.resize(un), bounds.resize(un + 1);
+  std::vector<int> work(5 * un);
   double maxtrans_work = 0;
   int matched = 0;
   // btf_order does not write the pattern; its C interface is not const.
   const int count = btf_order(n, const_cast<int*>(pattern.col_ptr.data()), const_cast<int*>(pattern.row_index.data()),
                               0.0, &maxtrans_work, row_of.data(), col_of.data(), bounds.data(), &matched, work.data());
-  if (matched < n || count <= 0) return std::nullopt;
+  return matched < n ? 0 : count;
+}
+
+}  // namespace
+
+bool block_order(const CscPattern& pattern, std::vector<int>& row_at, std::vector<int>& col_at) {
+  const auto un = static_cast<std::size_t>(pattern.n);
+  row_at.resize(un), col_at.resize(un);
+  if (un == 0) return true;
+  std::vector<int> row_of, col_of, bounds;
+  if (ordered(pattern, row_of, col_of, bounds) <= 0) return false;
+  for (std::size_t k = 0; k < un; ++k) {
+    row_at[static_cast<std::size_t>(row_of[k])] = static_cast<int>(k);
+    col_at[static_cast<std::size_t>(BTF_UNFLIP(col_of[k]))] = static_cast<int>(k);
+  }
+  return true;
+}
+
+std::optional<BlockForm> block_form(const CscPattern& pattern) {
+  const int n = pattern.n;
+  if (n == 0) return std::nullopt;
+  const auto un = static_cast<std::size_t>(n);
+  std::vector<int> row_of, col_of, bounds;
+  const int count = ordered(pattern, row_of, col_of, bounds);
+  if (count <= 0) return std::nullopt;
 
   BlockForm form;
   const auto nb = static_cast<std::size_t>(count);

@@ -47,10 +47,16 @@ struct BiasOptions {
   /// Workers for the DC errors' solves and sums (0: one per core); the
   /// result is the same to the bit for any number.
   int threads = 1;
-  /// Take the cascade's linear-time path (dc_cascade.hpp) where the circuit
-  /// is one; false: one solve per error always (the tests compare the two).
+  /// Take a linear-time path (dc_cascade.hpp, dc_tree.hpp) where the circuit
+  /// suits one; false: one solve per error always (the tests compare them).
   bool cascade = true;
+  /// Likewise the tree's path (dc_tree.hpp), tried when the cascade's is not taken.
+  bool tree = true;
 };
+
+/// How the DC error bands were summed: down a cascade of stages, along a
+/// tree of blocks joined at single unknowns, or one solve per error.
+enum class BiasPath { per_error, cascade, tree };
 
 /// Which DC error of an op amp a contribution comes from.
 /// ib is the nominal shift of the typical bias current; ib_max the band term
@@ -107,9 +113,9 @@ struct BiasResult {
   std::vector<NodeBias> nodes;    ///< node id k at index k - 1 (gnd left out)
   std::vector<OpAmpBias> opamps;  ///< in the order of the netlist
   std::vector<std::string> warnings;  ///< for people: saturation, unchecked rails
-  /// The bands came from the cascade's path (dc_cascade.hpp), not from one
-  /// solve per error: the same figures to rounding, in linear time.
-  bool cascade = false;
+  /// Where the bands came from: a linear-time path (dc_cascade.hpp,
+  /// dc_tree.hpp) or one solve per error; the same figures to rounding.
+  BiasPath path = BiasPath::per_error;
 
   /// The bias of node id `node`; gnd is 0 V with no band.
   const NodeBias& node(int node) const;
@@ -177,6 +183,6 @@ BiasResult run_bias(const DcSystem& dc, int threads = 1);
 /// warnings (and a contributor's name longer than the string whose storage
 /// it takes over).
 /// `cascade` as BiasOptions::cascade.
-void run_bias(const DcSystem& dc, int threads, BiasResult& result, bool cascade = true);
+void run_bias(const DcSystem& dc, int threads, BiasResult& result, bool cascade = true, bool tree = true);
 
 }  // namespace tacet

@@ -52,31 +52,13 @@
 #include <cstddef>
 #include <vector>
 
+#include "tacet/analysis/dc_shares.hpp"
 #include "tacet/solve/block_form.hpp"
 #include "tacet/solve/dense_lu.hpp"
 
 namespace tacet {
 
 class MnaSystem;
-
-/// One DC error: the sum of up to two unit right-hand sides (a 1 in one row
-/// of the DC system) times coefficients, and its limit.
-struct CascadeError {
-  struct Part {
-    int row = -1;
-    double coefficient = 0;
-  };
-  std::array<Part, 2> parts{};
-  int part_count = 0;
-  double limit = 0;     ///< weight of |S| in the band (signed for ib: volts = S limit)
-  bool in_band = true;  ///< false: a nominal shift (ib), a contributor only
-};
-
-/// An error's share at a node: its index and sensitivity S (V per unit).
-struct CascadeShare {
-  std::size_t error = 0;
-  double sensitivity = 0;
-};
 
 class DcCascade {
  public:
@@ -143,16 +125,10 @@ class DcCascade {
     int unit;
     double coefficient;
   };
-  struct Sums {
-    double worst = 0, squares = 0;
-    std::array<CascadeShare, 3> top{};
-    int count = 0;
-  };
 
   bool plan_blocks(const MnaSystem& mna);
   bool plan_entries(const std::vector<CascadeError>& errors);
   bool solve_block(std::size_t j, const double* values);
-  void insert(Sums& s, std::size_t error, double sensitivity, const std::vector<CascadeError>& errors) const;
   template <typename Visit>
   void for_apart(int observable, Visit&& visit) const;
   double local_value(std::size_t error, int block, int local) const;
@@ -175,7 +151,7 @@ class DcCascade {
   std::vector<int> error_last_block_;  // per error: its most upstream block; -1: none solved
   // Per run.
   std::vector<double> t_, ell_, pending_;
-  std::vector<Sums> sums_;
+  std::vector<DcSums> sums_;
   DenseBlockLu<double> lu_;
   std::vector<double> rhs_;
   mutable std::vector<std::pair<int, double>> walk_;  // value()'s work list

@@ -44,4 +44,9 @@ struct BlockForm {
 /// matching) or empty.
 std::optional<BlockForm> block_form(const CscPattern& pattern);
 
+/// Only the permutation of that form, for a small dense matrix: the position
+/// of each row (row_at) and column (col_at) in it, row and column k matched;
+/// false when there is no perfect matching (structurally singular).
+bool block_order(const CscPattern& pattern, std::vector<int>& row_at, std::vector<int>& col_at);
+
 }  // namespace tacet

@@ -1,0 +1,133 @@
+// The tree's path of the DC bands (dc_tree.hpp) against one solve per DC
+// error, the definition worst_n = sum_j |S_nj| limit_j itself: the same
+// bands, root-sum-squares and largest contributors (with the resistor each
+// current flows through) to rounding, on chains whose stages load each other,
+// on branching trees of stages, on the cascades the other path takes, and
+// through held cuts (ideal outputs, source nodes) and stiff parts. A loop of
+// stages larger than a block must be declined.
+
+#include "tacet/analysis/dc_tree.hpp"
+
+#include <catch2/catch.hpp>
+#include <string>
+
+#include "bias_paths.hpp"
+#include "reference_circuits.hpp"
+#include "tacet/analysis/bias.hpp"
+
+using namespace tacet;
+using namespace tacet::testing;
+
+namespace {
+
+BiasResult by_tree(const Circuit& circuit) {
+  BiasOptions options;
+  options.cascade = false;
+  options.tree = true;
+  return run_bias(circuit, options);
+}
+
+// `stages` inverting stages from `from`, each op amp with rout so that each
+// stage loads the output before it; returns the last output.
+std::string inverting_chain(CircuitBuilder& b, const std::string& tag, std::string from, int stages) {
+  for (int k = 0; k < stages; ++k) {
+    const std::string id = tag + std::to_string(k), out = "o" + id;
+    b.add(ElementKind::resistor, "RI" + id, {from, "m" + id}, 10e3 + 37.0 * k);
+    b.add(ElementKind::resistor, "RF" + id, {out, "m" + id}, 20e3 - 53.0 * k);
+    b.add(ElementKind::resistor, "RC" + id, {"p" + id, "gnd"}, 6.8e3);
+    b.opamp("U" + id, "p" + id, "m" + id, out, dc_model(1e-3 / (k + 1), 2e-9 * (k % 3 - 1), 1e-10, 20 + k % 7));
+    from = out;
+  }
+  return from;
+}
+
+}  // namespace
+
+TEST_CASE("a long chain of stages that load each other takes the tree's path and gives the bands of one solve per error",
+          "[bias][tree]") {
+  for (const int stages : {40, 300}) {
+    CAPTURE(stages);
+    CircuitBuilder b;
+    b.vsrc("Vin", "in", "gnd", 0).dc = 0.01;
+    b.add(ElementKind::resistor, "RL", {inverting_chain(b, "", "in", stages), "gnd"}, 10e3);
+    b.circuit.supply = Rails{15, -15};
+    const BiasResult fast = by(b.circuit, true);
+    CHECK(fast.path == BiasPath::tree);
+    require_same_bands(fast, by(b.circuit, false));
+  }
+}
+
+TEST_CASE("random chains with rout everywhere take the tree's path with the bands of one solve per error",
+          "[bias][tree]") {
+  for (unsigned seed = 1; seed <= 12; ++seed) {
+    CAPTURE(seed);
+    const Circuit circuit = random_chain(seed, 40, true);
+    const BiasResult fast = by_tree(circuit);
+    CHECK(fast.path == BiasPath::tree);
+    require_same_bands(fast, by(circuit, false));
+  }
+}
+
+TEST_CASE("the tree's path gives the cascade's bands on cascades, ideal outputs holding their cuts",
+          "[bias][tree]") {
+  // Half the op amps have no rout: their outputs are held by the gain row,
+  // and a current from the stage after moves nothing before it.
+  for (unsigned seed = 1; seed <= 20; ++seed) {
+    CAPTURE(seed);
+    const Circuit circuit = random_chain(seed, 12);
+    const BiasResult tree = by_tree(circuit);
+    CHECK(tree.path == BiasPath::tree);
+    require_same_bands(tree, by(circuit, false));
+  }
+}
+
+TEST_CASE("a branching tree of stages with a stiff link takes the tree's path", "[bias][tree]") {
+  // One buffer drives three inverting chains; a 1 uohm link (a stiff part:
+  // its node voltages are a root and a difference, dc_system's two terms)
+  // joins the second chain's start to its own node.
+  CircuitBuilder b;
+  b.vsrc("Vin", "in", "gnd", 0).dc = 0.02;
+  b.opamp("UB", "in", "buf", "buf", dc_model(0.5e-3, 1e-9, 1e-10, 10));
+  b.add(ElementKind::resistor, "RS", {"buf", "split"}, 1e-6);
+  const std::string a = inverting_chain(b, "a", "buf", 15);
+  const std::string c = inverting_chain(b, "c", "split", 15);
+  const std::string d = inverting_chain(b, "d", "buf", 15);
+  for (const auto& out : {a, c, d}) b.add(ElementKind::resistor, "RL" + out, {out, "gnd"}, 2e3);
+  b.circuit.supply = Rails{12, -12};
+  const BiasResult fast = by(b.circuit, true);
+  CHECK(fast.path == BiasPath::tree);
+  require_same_bands(fast, by(b.circuit, false));
+}
+
+TEST_CASE("a loop of stages larger than a block takes one solve per error", "[bias][tree]") {
+  // A difference stage fed from the ends of two long chains on one source:
+  // made symmetric, the two chains and the difference stage are one
+  // biconnected component of far more than kMostBlockUnknowns unknowns.
+  CircuitBuilder b;
+  b.vsrc("Vin", "in", "gnd", 0).dc = 0.01;
+  const std::string a = inverting_chain(b, "a", "in", 12), c = inverting_chain(b, "c", "in", 12);
+  b.add(ElementKind::resistor, "R1", {a, "dm"}, 10e3);
+  b.add(ElementKind::resistor, "R2", {"dout", "dm"}, 10e3);
+  b.add(ElementKind::resistor, "R3", {c, "dp"}, 10e3);
+  b.add(ElementKind::resistor, "R4", {"dp", "gnd"}, 10e3);
+  b.opamp("UD", "dp", "dm", "dout", dc_model(1e-3, 1e-9, 1e-10, 10));
+  const BiasResult fast = by(b.circuit, true);
+  CHECK(fast.path == BiasPath::per_error);
+  require_same_bands(fast, by(b.circuit, false));
+}
+
+TEST_CASE("the tree's path is the same on 1 and 2 threads and on a reused system, restamped", "[bias][tree][threads]") {
+  Circuit circuit = random_chain(11, 30, true);
+  DcSystem dc(circuit);
+  BiasResult one, two;
+  run_bias(dc, 1, one, false, true);
+  run_bias(dc, 2, two, false, true);
+  REQUIRE(one.path == BiasPath::tree);
+  for (std::size_t k = 0; k < one.nodes.size(); ++k) CHECK(one.nodes[k].worst == two.nodes[k].worst);
+  for (auto& e : circuit.elements)
+    if (e.kind == ElementKind::resistor) e.value *= 1.5;
+  dc.restamp();
+  run_bias(dc, 1, one, false, true);
+  CHECK(one.path == BiasPath::tree);
+  require_same_bands(one, by(circuit, false));
+}
