@@ -20,8 +20,9 @@ netlist, the yardstick the performance goals are written against:
   sens   tacet sensitivity at 1 kHz: every parameter by one adjoint solve
   checks tacet check --sensitivity: the budget and what moves each spec
 
-Usage: commands.py TACET [SIZE...] [--repeats N] [--only CMD,CMD]
-       (default sizes 10 1000 10000 100000; default repeats 3)
+Usage: commands.py TACET [SIZE...] [--repeats N] [--only CMD,CMD] [--inverting]
+       (default sizes 10 1000 10000 100000; default repeats 3; --inverting:
+       the chain of gen_chain.py --inverting, whose stages load each other)
 """
 
 import os
@@ -78,6 +79,8 @@ def main():
     if not args:
         sys.exit(__doc__)
     repeats, only = 3, None
+    inverting = "--inverting" in args
+    args = [a for a in args if a != "--inverting"]
     if "--repeats" in args:
         i = args.index("--repeats")
         repeats = int(args[i + 1])
@@ -90,13 +93,13 @@ def main():
     print(f"{'elements':>9} {'command':>7} {'wall s':>9} {'cpu s':>9} {'peak MB':>8} {'x ac':>7} {'exit':>4}")
     with tempfile.TemporaryDirectory() as folder:
         for size in sizes:
-            text = gen_chain.netlist(size)
+            text = gen_chain.netlist(size, inverting=inverting)
             path = os.path.join(folder, f"chain_{size}.tacet")
             changed = os.path.join(folder, f"chain_{size}_b.tacet")
             with open(path, "w") as f:
                 f.write(text)
             with open(changed, "w") as f:
-                f.write(text.replace("res RF0 (a0, fb0) 10k", "res RF0 (a0, fb0) 10.2k"))
+                f.write(re.sub(r"res RF0 \(a0, fb0\) (\d+)k", r"res RF0 (a0, fb0) \g<1>.2k", text))  # both kinds
             ac_seconds = None
             for name, argv in commands(path, changed, output_node(text)).items():
                 if only and name not in only and name != "ac":

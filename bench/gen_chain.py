@@ -9,11 +9,16 @@ has one spec of every kind a chain needs: gain, flatness, upper corner, noise,
 snr, offset and rails (the source declares a level, so rails also runs the
 headroom sweep).
 
+With --inverting the first stage of every section is inverting (gain -2, its
++ pin on a bias-compensation resistor to gnd): its input resistor loads the
+output before it, which has rout, so the stages load each other both ways and
+bias takes the tree's path (docs/analyses/bias.md) instead of the cascade's.
+
 With --tol every resistor gets tol=1%, every capacitor tol=5% dist=normal,
 each section's gain pair is a matched set (ratio 0.1%) and the model spreads
 (gbw_tol 30%, aol_tol 50%), for the spread benchmark.
 
-Usage: gen_chain.py ELEMENTS [OUTPUT] [--tol]   (default output: stdout)
+Usage: gen_chain.py ELEMENTS [OUTPUT] [--tol] [--inverting]   (default output: stdout)
 """
 
 import sys
@@ -21,16 +26,26 @@ import sys
 SECTION = 10  # elements per section
 
 
-def section(k, into, tol=False):
+def section(k, into, tol=False, inverting=False):
     """Elements of section k, from node `into`; returns its output node."""
     a, fb, b, s1, s2, out = (f"a{k}", f"fb{k}", f"b{k}", f"s{k}", f"t{k}", f"o{k}")
     r = " tol=1%" if tol else ""
     pair = f" tol=1% match=RA{k} ratio=0.1%" if tol else ""
     c = " tol=5% dist=normal" if tol else ""
-    return [
-        f"opamp UA{k} (+{into}, -{fb}, {a}) chain_amp",
-        f"res RF{k} ({a}, {fb}) 10k{pair}",
-        f"res RG{k} ({fb}, gnd) 10k{pair}",
+    if inverting:  # gain -2 from `into`, the + pin on 6.8k to gnd (about 20k || 10k)
+        first = [
+            f"opamp UA{k} (+{a}p, -{fb}, {a}) chain_amp",
+            f"res RF{k} ({a}, {fb}) 20k{pair}",
+            f"res RG{k} ({into}, {fb}) 10k{pair}",
+            f"res RC{k} ({a}p, gnd) 6.8k{r}",
+        ]
+    else:
+        first = [
+            f"opamp UA{k} (+{into}, -{fb}, {a}) chain_amp",
+            f"res RF{k} ({a}, {fb}) 10k{pair}",
+            f"res RG{k} ({fb}, gnd) 10k{pair}",
+        ]
+    return first + [
         f"res RP{k} ({a}, {b}) 4.7k{r}",
         f"res RQ{k} ({b}, gnd) 4.7k{r}",
         f"res RS{k} ({b}, {s1}) 1k{r}",
@@ -41,8 +56,8 @@ def section(k, into, tol=False):
     ], out
 
 
-def netlist(elements, tol=False):
-    sections = max(1, (elements - 2) // SECTION)
+def netlist(elements, tol=False, inverting=False):
+    sections = max(1, (elements - 2) // (SECTION + (1 if inverting else 0)))
     lines = [
         f'title "Generated chain, {sections} sections"',
         "supply +15V -15V",
@@ -56,7 +71,7 @@ def netlist(elements, tol=False):
     ]
     node = "in"
     for k in range(sections):
-        body, node = section(k, node, tol)
+        body, node = section(k, node, tol, inverting)
         lines += body
     lines += [
         f"res RL ({node}, gnd) 10k",
@@ -72,11 +87,11 @@ def netlist(elements, tol=False):
 
 
 def main():
-    tol = "--tol" in sys.argv
-    args = [a for a in sys.argv[1:] if a != "--tol"]
+    tol, inverting = "--tol" in sys.argv, "--inverting" in sys.argv
+    args = [a for a in sys.argv[1:] if a not in ("--tol", "--inverting")]
     if len(args) not in (1, 2):
         sys.exit(__doc__)
-    text = netlist(int(args[0]), tol)
+    text = netlist(int(args[0]), tol, inverting)
     if len(args) == 2:
         with open(args[1], "w") as out:
             out.write(text)

@@ -21,21 +21,30 @@
 //   sigma = A_cU M_U^-1 A_Uc    (M_U: the block's other unknowns, reduced alike),
 //
 // formed from the leaves to the root and then, from the root down, for the
-// other side of every cut (g_c = 1 / (L^-1)_cc). Each block's matrix L, so
-// reduced on all sides, is the exact system of its unknowns: an error homed
-// in the block is solved there, and an error beyond cut c reaches every
-// unknown v of the block in the proportion tau_v = z_v / z_c, z = L^-1 e_c.
-// The sums of dc_shares.hpp are then passed along the tree both ways, like
-// the cascade's but in two sweeps, with prefix and suffix combinations so
-// that no sum is ever taken back out.
+// other side of every cut, with the cut left out of the block's matrix (never
+// as a total less a part: a stage hung on its own virtual ground adds a large
+// sigma there, and what the other sides leave is small). Each block's matrix
+// L, so reduced on all sides, is the exact system of its unknowns: an error
+// homed in the block is solved there, and an error beyond cut c reaches
+// every unknown v of the block in the proportion tau_v of the solution for
+// x_c = 1 with no source in the block. The sums of dc_shares.hpp are then
+// passed along the tree both ways, like the cascade's but in two sweeps, with
+// prefix and suffix combinations so that no sum is ever taken back out.
 //
-// Each block (at most kMostBlockUnknowns unknowns) is solved densely and
-// every solve measured (dense_lu.hpp). A block whose other unknowns have no
-// structural matching (a voltage source's current beside the node it sets)
-// is merged into the block above it. plan() leaves usable() false, and the
-// caller solves one right-hand side per error, when a block would be larger
-// than the limit; run() returns false when a solve cannot be trusted or a
-// sum is not finite.
+// A cut that the block's other unknowns cannot be solved without (an ideal
+// output: its current unknown is in its node's row alone) is held: by
+// Cramer's rule no current moves it, nothing from beyond passes it, and the
+// blocks beyond see x_c = 0. A block whose own unknowns are singular without
+// its parent cut (no structural matching, or singular at the plan's values:
+// an op amp's rout between its output and its internal node, hung on the
+// gain row) is merged into the block above it.
+//
+// Each block (at most kMostBlockUnknowns unknowns) is solved densely in its
+// own block triangular order (block_form.hpp), so that unknowns a right-hand
+// side does not reach stay exact zeros, and every solve is measured
+// (dense_lu.hpp). plan() leaves usable() false, and the caller solves one
+// right-hand side per error, when a block would be larger than the limit;
+// run() returns false when a solve cannot be trusted or a sum is not finite.
 
 #include <cstddef>
 #include <vector>
@@ -72,8 +81,6 @@ class DcTree {
   bool value(std::size_t error, int unknown, double& out) const;
   static constexpr std::size_t kMostWalked = 100000;
 
-  /// How many blocks the plan has (tests and the docs).
-  std::size_t blocks() const { return blocks_.size(); }
 
  private:
   struct Block {
@@ -162,7 +169,7 @@ class DcTree {
   std::vector<Observable> observables_;
   std::vector<int> node_observable_;  // per node unknown k; -1: none
   // Per run.
-  std::vector<double> sigma_, parent_diagonal_, tau_, ell_;
+  std::vector<double> sigma_, parent_diagonal_, tau_, ell_;  // per block, per block, per cut slot, per unit
   std::vector<char> held_;  // per cut: no current moves it (z_c = 0)
   std::vector<char> unordered_;  // per block: its M has no matching (plan_orders)
   std::vector<int> orders_, order_of_;
