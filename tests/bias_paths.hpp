@@ -22,31 +22,33 @@ inline OpAmpModel dc_model(double vos, double ib, double ios, double rout) {
 }
 
 
-// Equal to rounding: 1e-12 relative.
-inline bool close(double a, double b) { return std::abs(a - b) <= 1e-12 * std::max(std::abs(a), std::abs(b)) + 1e-30; }
+// Equal to rounding: 1e-12 relative unless told otherwise.
+inline bool close(double a, double b, double relative = 1e-12) {
+  return std::abs(a - b) <= relative * std::max(std::abs(a), std::abs(b)) + 1e-30;
+}
 
-inline void require_same_bands(const BiasResult& fast, const BiasResult& exact) {
+inline void require_same_bands(const BiasResult& fast, const BiasResult& exact, double relative = 1e-12) {
   REQUIRE(fast.nodes.size() == exact.nodes.size());
   for (std::size_t k = 0; k < fast.nodes.size(); ++k) {
     CAPTURE(fast.nodes[k].name, fast.nodes[k].worst, exact.nodes[k].worst);
     CHECK(fast.nodes[k].nominal == exact.nodes[k].nominal);
-    CHECK(close(fast.nodes[k].worst, exact.nodes[k].worst));
-    CHECK(close(fast.nodes[k].rss, exact.nodes[k].rss));
+    CHECK(close(fast.nodes[k].worst, exact.nodes[k].worst, relative));
+    CHECK(close(fast.nodes[k].rss, exact.nodes[k].rss, relative));
   }
   REQUIRE(fast.opamps.size() == exact.opamps.size());
   for (std::size_t a = 0; a < fast.opamps.size(); ++a) {
     const OpAmpBias &x = fast.opamps[a], &y = exact.opamps[a];
     CAPTURE(x.name);
-    CHECK(close(x.low, y.low));
-    CHECK(close(x.high, y.high));
+    CHECK(close(x.low, y.low, relative));
+    CHECK(close(x.high, y.high, relative));
     CHECK(x.ok == y.ok);
     REQUIRE(x.largest.size() == y.largest.size());
     for (std::size_t c = 0; c < x.largest.size(); ++c) {
       CAPTURE(c);
       CHECK(x.largest[c].opamp == y.largest[c].opamp);
       CHECK(x.largest[c].kind == y.largest[c].kind);
-      CHECK(close(x.largest[c].gain, y.largest[c].gain));
-      CHECK(close(x.largest[c].volts, y.largest[c].volts));
+      CHECK(close(x.largest[c].gain, y.largest[c].gain, relative));
+      CHECK(close(x.largest[c].volts, y.largest[c].volts, relative));
       CHECK(x.largest[c].through == y.largest[c].through);
     }
   }
