@@ -21,14 +21,21 @@ std::complex<double> Element::ac_phasor() const {
   return ac_magnitude * std::complex<double>(std::cos(angle), std::sin(angle));
 }
 
+NameIndex Circuit::gnd_only() {
+  NameIndex index;
+  index.insert("gnd", 0, [](int) { return std::string_view(); });
+  return index;
+}
+
 int Circuit::node(const std::string& name, SourceLocation where) {
-  const auto [it, added] = node_ids_.try_emplace(name, static_cast<int>(node_names.size()));
+  const auto [id, added] = node_ids_.insert(name, static_cast<int>(node_names.size()),
+                                            [&](int i) -> const std::string& { return node_names[static_cast<std::size_t>(i)]; });
   if (added) {
     node_names.push_back(name);
     node_where.resize(node_names.size());
     node_where.back() = where;
   }
-  return it->second;
+  return id;
 }
 
 void Circuit::reserve_nodes(std::size_t count) {
@@ -38,9 +45,9 @@ void Circuit::reserve_nodes(std::size_t count) {
 }
 
 std::optional<int> Circuit::find_node(const std::string& name) const {
-  const auto it = node_ids_.find(name);
-  if (it == node_ids_.end()) return std::nullopt;
-  return it->second;
+  const int id = node_ids_.find(name, [&](int i) -> const std::string& { return node_names[static_cast<std::size_t>(i)]; });
+  if (id < 0) return std::nullopt;
+  return id;
 }
 
 std::optional<std::size_t> Circuit::find_element(const std::string& name) const {

@@ -148,10 +148,10 @@ void Elaborator::collect(const ast::Netlist& netlist, int file) {
 
 bool Elaborator::check_unique(DefinedNames& seen, const std::string& what,
                               const ast::Identifier& name, int file, const std::string& full_name) {
-  auto [it, inserted] = seen.emplace(full_name, SourceLocation{file, name.offset});
+  const auto [first, inserted] = seen.emplace(full_name, SourceLocation{file, name.offset});
   if (inserted) return true;
   error(file, name, fmt::format("{} '{}' is already defined", what, full_name));
-  diagnostics_.add({Severity::note, it->second, static_cast<std::uint32_t>(name.text.size()),
+  diagnostics_.add({Severity::note, first, static_cast<std::uint32_t>(name.text.size()),
                     fmt::format("'{}' was first defined here", full_name), ""});
   return false;
 }
@@ -274,9 +274,7 @@ namespace {
 /// The keys of `names` in sorted order: the hints consider candidates in the
 /// order a sorted map would give them, whatever the table's own order.
 std::vector<std::string> sorted_names(const DefinedNames& names) {
-  std::vector<std::string> out;
-  out.reserve(names.size());
-  for (const auto& [n, w] : names) out.push_back(n);
+  std::vector<std::string> out = names.names();
   std::sort(out.begin(), out.end());
   return out;
 }

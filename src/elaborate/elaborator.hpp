@@ -10,10 +10,10 @@
 #include <string>
 #include <string_view>
 #include <type_traits>
-#include <unordered_map>
 #include <utility>
 #include <vector>
 
+#include "tacet/common/name_index.hpp"
 #include "tacet/language/ast.hpp"
 #include "tacet/circuit/circuit.hpp"
 #include "tacet/circuit/band.hpp"
@@ -59,7 +59,33 @@ struct KeyWording {
 };
 
 /// Names already defined, by kind: looked up once per element, so hashed.
-using DefinedNames = std::unordered_map<std::string, SourceLocation>;
+/// Names defined once (elements, models, blocks, specs) and where each was.
+class DefinedNames {
+ public:
+  void reserve(std::size_t count) {
+    index_.reserve(count);
+    names_.reserve(count);
+    where_.reserve(count);
+  }
+  /// Records `name` at `at` unless it is there: where it was first defined,
+  /// and whether this was the first time.
+  std::pair<SourceLocation, bool> emplace(const std::string& name, SourceLocation at) {
+    const auto [i, added] = index_.insert(name, static_cast<int>(names_.size()), [&](int k) -> const std::string& {
+      return names_[static_cast<std::size_t>(k)];
+    });
+    if (!added) return {where_[static_cast<std::size_t>(i)], false};
+    names_.push_back(name);
+    where_.push_back(at);
+    return {at, true};
+  }
+  /// In the order defined.
+  const std::vector<std::string>& names() const { return names_; }
+
+ private:
+  NameIndex index_;
+  std::vector<std::string> names_;
+  std::vector<SourceLocation> where_;
+};
 
 /// An accepted key, as the statement will read it: the value of `--set
 /// OWNER.key=` when there is one (then `file` is the override's own), else

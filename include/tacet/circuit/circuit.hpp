@@ -10,9 +10,9 @@
 #include <optional>
 #include <string>
 #include <string_view>
-#include <unordered_map>
 #include <vector>
 
+#include "tacet/common/name_index.hpp"
 #include "tacet/language/element_kinds.hpp"
 #include "tacet/language/source.hpp"
 #include "tacet/circuit/spec.hpp"
@@ -171,7 +171,8 @@ struct Circuit {
   std::size_t node_count() const { return node_names.size(); }
 
  private:
-  std::unordered_map<std::string, int> node_ids_{{"gnd", 0}};
+  NameIndex node_ids_ = gnd_only();  // into node_names
+  static NameIndex gnd_only();
 };
 
 }  // namespace tacet
