@@ -4,7 +4,7 @@
 //
 // A reused pivot sequence can turn bad as values move by many decades over a
 // sweep (1 Hz .. 100 MHz). After each refactor the cheap reciprocal pivot
-// ratio klu_z_rcond (min |U_kk| / max |U_kk|) is compared with its value at the
+// ratio of klu_z_rcond (min |U_kk| / max |U_kk|, pivot_ratio() below) is compared with its value at the
 // anchor; if it dropped by more than kRcondDropLimit (1e-3, i.e. three decades
 // of lost pivot quality), or the refactor met a zero pivot, a fresh
 // klu_z_factor picks new pivots for this point. Those serve this point only:
@@ -20,6 +20,9 @@
 
 #include <klu.h>
 
+#include <algorithm>
+#include <cmath>
+#include <complex>
 #include <limits>
 #include <memory>
 #include <stdexcept>
@@ -30,6 +33,30 @@ namespace tacet {
 namespace {
 
 constexpr double kRcondDropLimit = 1e-3;
+
+// klu_z_rcond's figure, min |U_kk| / max |U_kk|, from the squared moduli: it
+// takes a careful hypot per pivot, a twentieth of a sweep on a ladder, and
+// the ratio needs one square root. A modulus whose square leaves the range
+// of doubles is taken exactly, as klu_z_rcond takes every one; a zero or
+// NaN pivot gives 0, as there.
+double pivot_ratio(const klu_numeric* numeric, int n) {
+  const auto* u = static_cast<const std::complex<double>*>(numeric->Udiag);
+  double low = std::numeric_limits<double>::infinity(), high = 0;
+  bool exact = false;
+  for (int k = 0; k < n; ++k) {
+    const double m = std::norm(u[k]);
+    if (!(m > 0)) return 0;  // zero or NaN
+    if (m == std::numeric_limits<double>::infinity() || m < std::numeric_limits<double>::min()) exact = true;
+    low = std::min(low, m), high = std::max(high, m);
+  }
+  if (!exact) return std::sqrt(low / high);
+  double lo = std::numeric_limits<double>::infinity(), hi = 0;
+  for (int k = 0; k < n; ++k) {
+    const double m = std::abs(u[k]);
+    lo = std::min(lo, m), hi = std::max(hi, m);
+  }
+  return lo / hi;
+}
 
 double* as_doubles(std::complex<double>* z) { return reinterpret_cast<double*>(z); }
 double* as_doubles(const std::complex<double>* z) {
@@ -125,8 +152,8 @@ class KluLu final : public SparseLu {
     if (!klu_z_refactor(analysis_->col_ptr.data(), analysis_->row_index.data(), as_doubles(values),
                         analysis_->symbolic, anchor_, &common_))
       return false;
-    klu_z_rcond(analysis_->symbolic, anchor_, &common_);
-    return common_.rcond >= kRcondDropLimit * rcond_at_anchor_ && common_.rcond > 0;
+    const double rcond = pivot_ratio(anchor_, pattern_->n);
+    return rcond >= kRcondDropLimit * rcond_at_anchor_ && rcond > 0;
   }
 
   /// A full factorisation into `numeric` (freed first); nullptr when singular.
@@ -149,10 +176,7 @@ class KluLu final : public SparseLu {
   // The first full factorisation: its pivots serve every later point.
   FactorStatus factor_anchor(const std::complex<double>* values) {
     const FactorStatus status = factor_into(anchor_, values);
-    if (status == FactorStatus::ok) {
-      klu_z_rcond(analysis_->symbolic, anchor_, &common_);
-      rcond_at_anchor_ = common_.rcond;
-    }
+    if (status == FactorStatus::ok) rcond_at_anchor_ = pivot_ratio(anchor_, pattern_->n);
     return status;
   }
 
