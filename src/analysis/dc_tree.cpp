@@ -260,7 +260,20 @@ void DcTree::plan(const MnaSystem& mna, const double* values, const std::vector<
   blocks_.clear();
   lu_.reserve(kMostBlockUnknowns);
   for (auto* v : {&rhs_, &z_, &ordered_rhs_, &ordered_x_}) v->assign(static_cast<std::size_t>(kMostBlockUnknowns), 0.0);
-  usable_ = plan_blocks(mna, values, errors) && plan_errors(mna, errors);
+  // A held cut whose current still moves what this block shows (an unloaded
+  // controlled source's output, set through its branch row by the far side)
+  // cannot pass zero for the far side: the blocks hanging on it join its
+  // block, found by a trial run at these values, as the singular blocks are.
+  forced_.clear();
+  for (int trial = 0; trial <= kMostTrials; ++trial) {
+    leaking_cut_ = -1;
+    usable_ = plan_blocks(mna, values, errors) && plan_errors(mna, errors);
+    if (!usable_ || run(values, errors) || leaking_cut_ < 0) return;
+    const Cut& cut = cuts_[static_cast<std::size_t>(leaking_cut_)];
+    for (int k = cut.children_begin; k < cut.children_end; ++k)
+      forced_[static_cast<std::size_t>(group_of_block_[static_cast<std::size_t>(children_[static_cast<std::size_t>(k)])])] = 1;
+  }
+  usable_ = false;
 }
 
 // The blocks: biconnected components, united where an error or a node
@@ -456,17 +469,28 @@ bool DcTree::plan_blocks(const MnaSystem& mna, const double* values, const std::
       if (block.parent_cut >= 0) column(block.parent_cut, block.owned);
       block.entries_end = static_cast<int>(entries_.size());
     }
-    // A cut is reduced when a block below has entries in both its row and its column.
+    // Which Schur complements are structurally there: a block's at its parent
+    // cut when it has entries in both the cut's row and its column; the
+    // owner's side at a cut likewise (its entries in the cut's row and column).
     for (std::size_t b = 0; b < blocks_.size(); ++b) {
-      const Block& block = blocks_[b];
-      if (block.parent_cut < 0) continue;
-      bool row = false, column = false;
-      for (int i = block.entries_begin; i < block.entries_end; ++i) {
-        const Entry& e = entries_[static_cast<std::size_t>(i)];
-        row = row || (e.row == block.owned && e.col < block.owned);
-        column = column || (e.col == block.owned && e.row < block.owned);
+      Block& block = blocks_[b];
+      // Entries in local's row and in its column, off the diagonal, among the first `among` unknowns.
+      auto touches = [&](int at, int among) {
+        bool row = false, column = false;
+        for (int i = block.entries_begin; i < block.entries_end; ++i) {
+          const Entry& e = entries_[static_cast<std::size_t>(i)];
+          row = row || (e.row == at && e.col != at && e.col < among);
+          column = column || (e.col == at && e.row != at && e.row < among);
+        }
+        return row && column;
+      };
+      for (int i = block.cuts_begin; i < block.cuts_end; ++i) {
+        Cut& cut = cuts_[static_cast<std::size_t>(block_cuts_[static_cast<std::size_t>(i)])];
+        cut.owner_reduces = touches(cut.local, block.size());
       }
-      if (row && column) cuts_[static_cast<std::size_t>(cut_of_[static_cast<std::size_t>(block.parent_cut)])].reduced = true;
+      if (block.parent_cut < 0) continue;
+      block.reduces = touches(block.owned, block.owned);
+      if (block.reduces) ++cuts_[static_cast<std::size_t>(cut_of_[static_cast<std::size_t>(block.parent_cut)])].reducing;
     }
     tau_.assign(static_cast<std::size_t>(tau_at), 0.0);
     sigma_.assign(blocks_.size(), 0.0);
@@ -485,8 +509,9 @@ bool DcTree::plan_blocks(const MnaSystem& mna, const double* values, const std::
   // too; a resistor network is singular at every value, so a plan made here
   // holds for every draw. Found by trial, leaves first; a block above one
   // that failed waits for the next trial.
-  std::vector<char> forced(ng, 0);
-  std::vector<int> group_of_block;
+  forced_.resize(ng, 0);
+  std::vector<char>& forced = forced_;
+  std::vector<int>& group_of_block = group_of_block_;
   for (int trial = 0;; ++trial) {
     if (!shape(forced, group_of_block)) return false;
     plan_orders(false);
@@ -628,6 +653,16 @@ DcTree::Variant DcTree::variant(std::size_t b, int v) const {
   return out;
 }
 
+// The parent cut's reduced diagonal A_pp - (the other sides' sigma) is
+// structurally there: A_pp is, or the owner's side or a sibling reaches p
+// both ways. Without it a block hung on a controlled source's current (an
+// unloaded output) finds the source's node held.
+bool DcTree::parent_diagonal_there(const Block& block) const {
+  if (parent_held(block)) return true;  // its row is x_p = 0
+  const Cut& cut = cuts_[static_cast<std::size_t>(cut_of_[static_cast<std::size_t>(block.parent_cut)])];
+  return cut.diagonal_at >= 0 || cut.owner_reduces || cut.reducing - (block.reduces ? 1 : 0) > 0;
+}
+
 bool DcTree::parent_held(const Block& block) const {
   return block.parent_cut >= 0 && held_[static_cast<std::size_t>(cut_of_[static_cast<std::size_t>(block.parent_cut)])];
 }
@@ -649,9 +684,9 @@ void DcTree::for_entries(std::size_t b, const Variant& v, Visit&& visit) const {
   }
   for (int i = block.cuts_begin; i < block.cuts_end; ++i) {
     const Cut& cut = cuts_[static_cast<std::size_t>(block_cuts_[static_cast<std::size_t>(i)])];
-    if (cut.local != v.skip && cut.reduced) visit(at(cut.local), at(cut.local), -1);
+    if (cut.local != v.skip && cut.reducing > 0) visit(at(cut.local), at(cut.local), -1);
   }
-  if (v.with_parent) visit(at(block.owned), at(block.owned), -1);
+  if (v.with_parent && parent_diagonal_there(block)) visit(at(block.owned), at(block.owned), -1);
 }
 
 // The variant's matrix into the dense LU in its block triangular order:
@@ -765,10 +800,20 @@ bool DcTree::solve_down(std::size_t b, const double* values) {
       before += sigma_[child];
     }
   }
-  if (block.units_end == block.units_begin) return true;
+  bool any_held = false;
+  for (int i = block.cuts_begin; i < block.cuts_end; ++i)
+    any_held = any_held || held_[static_cast<std::size_t>(block_cuts_[static_cast<std::size_t>(i)])];
+  if (block.units_end == block.units_begin && !any_held) return true;
   const Variant v = variant(b, kFull);
   fill(b, values, v);
   if (!lu_.factor()) return false;
+  for (int i = block.cuts_begin; any_held && i < block.cuts_end; ++i) {
+    const int c = block_cuts_[static_cast<std::size_t>(i)];
+    if (held_[static_cast<std::size_t>(c)] && !held_shows_nothing(b, v, cuts_[static_cast<std::size_t>(c)].local)) {
+      leaking_cut_ = c;
+      return false;
+    }
+  }
   for (int u = block.units_begin; u < block.units_end; ++u) {
     const Unit& unit = units_[static_cast<std::size_t>(u)];
     double* x = ell_.data() + unit.ell_at;
@@ -835,6 +880,28 @@ bool DcTree::plan_orders(bool all) {
     }
   }
   return true;
+}
+
+// Whether a current at held cut `local` (z = L^-1 e_c, z_c = 0) leaves
+// every node voltage of the block, its other cuts and its parent cut where
+// they were: then passing zero for the far side, as a held cut does, is
+// exact. An ideal output's current moves only its own current unknown.
+bool DcTree::held_shows_nothing(std::size_t b, const Variant& v, int local) {
+  const Block& block = blocks_[b];
+  const int n = v.size;
+  std::fill(rhs_.begin(), rhs_.begin() + n, 0.0);
+  rhs_[static_cast<std::size_t>(local)] = 1.0;
+  if (!solve(v, rhs_.data(), z_.data())) return false;
+  if (z_[static_cast<std::size_t>(local)] != 0) return false;  // not held after all
+  auto moved = [&](int at) { return at != local && z_[static_cast<std::size_t>(at)] != 0; };
+  for (int o = block.observables_begin; o < block.observables_end; ++o) {
+    const Observable& obs = observables_[static_cast<std::size_t>(o)];
+    for (int t = obs.terms_begin; t < obs.terms_end; ++t)
+      if (moved(terms_[static_cast<std::size_t>(t)].local)) return false;
+  }
+  for (int i = block.cuts_begin; i < block.cuts_end; ++i)
+    if (moved(cuts_[static_cast<std::size_t>(block_cuts_[static_cast<std::size_t>(i)])].local)) return false;
+  return block.parent_cut < 0 || !moved(block.owned);
 }
 
 double DcTree::tau(const Block& block, int slot, int local) const {

@@ -93,6 +93,7 @@ class DcTree {
     int units_begin = 0, units_end = 0, homed_begin = 0, homed_end = 0;
     int observables_begin = 0, observables_end = 0;
     int orders_at = 0;  // its variants' orders: order_of_[orders_at + v]
+    bool reduces = false;  // entries in its parent cut's row and column: a sigma there
     int size() const { return owned + (parent_cut >= 0 ? 1 : 0); }
   };
   struct Entry {
@@ -102,7 +103,8 @@ class DcTree {
     int unknown = -1, block = -1, local = -1;  // owned by `block` at `local`
     int slot = 0;                              // its proportions at tau_at + slot * size
     int diagonal_at = -1;                      // A_cc's position in the CSC values; -1: none
-    bool reduced = false;                      // a block below adds a Schur complement at it
+    int reducing = 0;                          // blocks below that add a Schur complement at it
+    bool owner_reduces = false;                // the owner's side reaches it both ways
     int children_begin = 0, children_end = 0;  // blocks hanging on it, in `children_`
   };
   struct Unit {
@@ -139,11 +141,13 @@ class DcTree {
   };
   Variant variant(std::size_t b, int v) const;
   bool parent_held(const Block& block) const;
+  bool parent_diagonal_there(const Block& block) const;
   template <typename Visit>
   void for_entries(std::size_t b, const Variant& v, Visit&& visit) const;
   bool plan_orders(bool all);
   void fill(std::size_t b, const double* values, const Variant& v);
   bool solve(const Variant& v, const double* rhs, double* x);
+  bool held_shows_nothing(std::size_t b, const Variant& v, int local);
   void own_sums(const Block& block, int local, DcSums& out) const;
   template <typename At>
   void own_sums_at(const Block& block, At&& at, DcSums& out) const;
@@ -173,6 +177,9 @@ class DcTree {
   std::vector<char> held_;  // per cut: no current moves it (z_c = 0)
   std::vector<char> unordered_;  // per block: its M has no matching (plan_orders)
   std::vector<int> orders_, order_of_;
+  std::vector<char> forced_;          // per group of the plan: joins the block above
+  std::vector<int> group_of_block_;   // per block: its group
+  int leaking_cut_ = -1;              // the held cut a run found moving what its block shows
   std::vector<DcSums> up_, in_, below_, sums_, scratch_;
   DenseBlockLu<double> lu_;
   std::vector<double> rhs_, z_, ordered_rhs_, ordered_x_;
