@@ -217,39 +217,41 @@ bool unite_path(const Rooted& tree, std::size_t components, int a_unknown, int b
   return true;
 }
 
+// The block triangular order (block_form.hpp) of the n x n pattern whose
+// entries are `pairs` (column, row), in any order and with repeats; false:
+// no perfect matching (structurally singular).
+bool order_of(std::vector<std::pair<int, int>>& pairs, int n, CscPattern& pattern, std::vector<int>& row_at,
+              std::vector<int>& col_at) {
+  std::sort(pairs.begin(), pairs.end());
+  pairs.erase(std::unique(pairs.begin(), pairs.end()), pairs.end());
+  pattern.n = n;
+  pattern.col_ptr.assign(static_cast<std::size_t>(n) + 1, 0);
+  pattern.row_index.clear();
+  for (const auto& [c, r] : pairs) {
+    ++pattern.col_ptr[static_cast<std::size_t>(c) + 1];
+    pattern.row_index.push_back(r);
+  }
+  for (int c = 0; c < n; ++c) pattern.col_ptr[static_cast<std::size_t>(c) + 1] += pattern.col_ptr[static_cast<std::size_t>(c)];
+  return block_order(pattern, row_at, col_at);
+}
+
 // Whether the square matrix on `members` (local indices in `local`) has a
 // structural perfect matching; `diagonal[k]`: a nonzero at (k, k) besides
 // the pattern's (a Schur complement from a block below).
 bool matched(const CscPattern& p, const std::vector<char>& live, const std::vector<int>& members,
              const std::vector<int>& local, const std::vector<char>& diagonal) {
-  const std::size_t m = members.size();
-  std::vector<std::vector<int>> columns_of_row(m);
-  for (std::size_t c = 0; c < m; ++c) {
+  std::vector<std::pair<int, int>> pairs;
+  for (std::size_t c = 0; c < members.size(); ++c) {
     const auto j = static_cast<std::size_t>(members[c]);
-    if (diagonal[c]) columns_of_row[c].push_back(static_cast<int>(c));
+    if (diagonal[c]) pairs.push_back({static_cast<int>(c), static_cast<int>(c)});
     for (int k = p.col_ptr[j]; k < p.col_ptr[j + 1]; ++k) {
       const int r = local[static_cast<std::size_t>(p.row_index[static_cast<std::size_t>(k)])];
-      if (r >= 0 && live[static_cast<std::size_t>(k)]) columns_of_row[static_cast<std::size_t>(r)].push_back(static_cast<int>(c));
+      if (r >= 0 && live[static_cast<std::size_t>(k)]) pairs.push_back({static_cast<int>(c), r});
     }
   }
-  std::vector<int> row_of_column(m, -1);
-  std::vector<int> visited(m, -1);
-  // Kuhn's augmenting paths; at most 64 rows, so recursion is shallow.
-  auto augment = [&](auto&& self, int row, int stamp) -> bool {
-    for (const int c : columns_of_row[static_cast<std::size_t>(row)]) {
-      if (visited[static_cast<std::size_t>(c)] == stamp) continue;
-      visited[static_cast<std::size_t>(c)] = stamp;
-      if (row_of_column[static_cast<std::size_t>(c)] < 0 ||
-          self(self, row_of_column[static_cast<std::size_t>(c)], stamp)) {
-        row_of_column[static_cast<std::size_t>(c)] = row;
-        return true;
-      }
-    }
-    return false;
-  };
-  for (std::size_t r = 0; r < m; ++r)
-    if (!augment(augment, static_cast<int>(r), static_cast<int>(r))) return false;
-  return true;
+  CscPattern pattern;
+  std::vector<int> row_at, col_at;
+  return order_of(pairs, static_cast<int>(members.size()), pattern, row_at, col_at);
 }
 
 }  // namespace
@@ -674,19 +676,18 @@ template <typename Visit>
 void DcTree::for_entries(std::size_t b, const Variant& v, Visit&& visit) const {
   const Block& block = blocks_[b];
   const int full = v.with_parent ? block.size() : block.owned;
-  auto at = [&](int local) { return local - (v.skip >= 0 && local > v.skip ? 1 : 0); };
   const bool held = v.with_parent && parent_held(block);
   for (int i = block.entries_begin; i < block.entries_end; ++i) {
     const Entry& e = entries_[static_cast<std::size_t>(i)];
     if (e.row >= full || e.col >= full || e.row == v.skip || e.col == v.skip) continue;
     if (held && e.row == block.owned) continue;
-    visit(at(e.row), at(e.col), e.at);
+    visit(v.at(e.row), v.at(e.col), e.at);
   }
   for (int i = block.cuts_begin; i < block.cuts_end; ++i) {
     const Cut& cut = cuts_[static_cast<std::size_t>(block_cuts_[static_cast<std::size_t>(i)])];
-    if (cut.local != v.skip && cut.reducing > 0) visit(at(cut.local), at(cut.local), -1);
+    if (cut.local != v.skip && cut.reducing > 0) visit(v.at(cut.local), v.at(cut.local), -1);
   }
-  if (v.with_parent && parent_diagonal_there(block)) visit(at(block.owned), at(block.owned), -1);
+  if (v.with_parent && parent_diagonal_there(block)) visit(v.at(block.owned), v.at(block.owned), -1);
 }
 
 // The variant's matrix into the dense LU in its block triangular order:
@@ -701,16 +702,15 @@ void DcTree::fill(std::size_t b, const double* values, const Variant& v) {
   for_entries(b, v, [&](int r, int c, int at) {
     if (at >= 0) a[row_at[r] * n + col_at[c]] = values[at];
   });
-  auto at = [&](int local) { return local - (v.skip >= 0 && local > v.skip ? 1 : 0); };
   for (int i = block.cuts_begin; i < block.cuts_end; ++i) {
     const Cut& cut = cuts_[static_cast<std::size_t>(block_cuts_[static_cast<std::size_t>(i)])];
     if (cut.local == v.skip) continue;
-    const int d = at(cut.local);
+    const int d = v.at(cut.local);
     for (int k = cut.children_begin; k < cut.children_end; ++k)
       a[row_at[d] * n + col_at[d]] -= sigma_[static_cast<std::size_t>(children_[static_cast<std::size_t>(k)])];
   }
   if (!v.with_parent) return;
-  const int p = at(block.owned);
+  const int p = v.at(block.owned);
   a[row_at[p] * n + col_at[p]] = parent_held(block) ? 1.0 : parent_diagonal_[b];
 }
 
@@ -769,19 +769,18 @@ bool DcTree::solve_down(std::size_t b, const double* values) {
       const Variant v = variant(b, kSkipFirst + i - block.cuts_begin);
       fill(b, values, v);
       if (!lu_.factor()) return false;
-      auto at = [&](int local) { return local - (local > cut.local ? 1 : 0); };
       std::fill(rhs_.begin(), rhs_.begin() + v.size, 0.0);
       for (int k = block.entries_begin; k < block.entries_end; ++k) {
         const Entry& e = entries_[static_cast<std::size_t>(k)];
         if (e.col != cut.local || e.row == cut.local || (held_parent && e.row == block.owned)) continue;
-        rhs_[static_cast<std::size_t>(at(e.row))] = values[e.at];  // a held parent's row is x_p = 0
+        rhs_[static_cast<std::size_t>(v.at(e.row))] = values[e.at];  // a held parent's row is x_p = 0
       }
       if (!solve(v, rhs_.data(), z_.data())) return false;
       for (int k = block.entries_begin; k < block.entries_end; ++k) {
         const Entry& e = entries_[static_cast<std::size_t>(k)];
-        if (e.row == cut.local && e.col != cut.local) side += values[e.at] * z_[static_cast<std::size_t>(at(e.col))];
+        if (e.row == cut.local && e.col != cut.local) side += values[e.at] * z_[static_cast<std::size_t>(v.at(e.col))];
       }
-      for (int k = 0; k < n; ++k) t[k] = k == cut.local ? 1.0 : -z_[static_cast<std::size_t>(at(k))];
+      for (int k = 0; k < n; ++k) t[k] = k == cut.local ? 1.0 : -z_[static_cast<std::size_t>(v.at(k))];
       if (!std::isfinite(side)) return false;
     }
     // Children k: A_cc - side - (siblings before k) - (siblings after k).
@@ -846,17 +845,7 @@ bool DcTree::plan_orders(bool all) {
   auto order = [&](std::size_t b, const Variant& v) {
     pairs.clear();
     for_entries(b, v, [&](int r, int c, int) { pairs.push_back({c, r}); });
-    std::sort(pairs.begin(), pairs.end());
-    pairs.erase(std::unique(pairs.begin(), pairs.end()), pairs.end());
-    pattern.n = v.size;
-    pattern.col_ptr.assign(static_cast<std::size_t>(v.size) + 1, 0);
-    pattern.row_index.clear();
-    for (const auto& [c, r] : pairs) {
-      ++pattern.col_ptr[static_cast<std::size_t>(c) + 1];
-      pattern.row_index.push_back(r);
-    }
-    for (int c = 0; c < v.size; ++c) pattern.col_ptr[static_cast<std::size_t>(c) + 1] += pattern.col_ptr[static_cast<std::size_t>(c)];
-    return block_order(pattern, row_at, col_at);
+    return order_of(pairs, v.size, pattern, row_at, col_at);
   };
   for (std::size_t b = 0; b < blocks_.size(); ++b) {
     Block& block = blocks_[b];

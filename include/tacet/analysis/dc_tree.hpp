@@ -138,6 +138,8 @@ class DcTree {
     bool with_parent = false;
     int skip = -1, size = 0;
     const int* order = nullptr;  // row positions, then column positions
+    /// A block-local index in this variant's compact indices.
+    int at(int local) const { return local - (skip >= 0 && local > skip ? 1 : 0); }
   };
   Variant variant(std::size_t b, int v) const;
   bool parent_held(const Block& block) const;
